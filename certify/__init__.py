@@ -1,0 +1,7 @@
+"""certify: certified enclosures of densities in prime races.
+
+Results are conditional on the hypotheses each one lists (GRH for the
+L-functions used, LI); certify gathers evidence for them but proves neither.
+"""
+
+__version__ = "0.1.0"

@@ -1,0 +1,223 @@
+"""Interval arithmetic and precision: the one module that owns them.
+
+Everything else in certify imports ball types and precision control from here,
+never from ``flint.ctx`` directly.  Precision is changed only in scoped blocks
+(:func:`workprec`), so a computation cannot leak a changed precision.
+
+Comparisons of balls are three-valued (:class:`Verdict`): a ball comparison
+is *proved* only when every point of the balls satisfies it.
+
+Decimal output is rounded *outward*: a lower end is rounded down and an upper
+end up, from the exact dyadic endpoints, so a printed interval always contains
+the ball it prints.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import enum
+import functools
+from fractions import Fraction
+
+import flint
+from flint import acb, acb_series, arb, arb_series, ctx, fmpq, fmpz
+
+__all__ = [
+    "arb", "acb", "arb_series", "acb_series", "fmpq", "fmpz",
+    "workprec", "current_prec", "Verdict", "sign_verdict", "less_verdict",
+    "arb_to_fraction", "lower_fraction", "upper_fraction",
+    "decimal_down", "decimal_up", "certified_digits", "ball_strings",
+    "ball_from_strings", "flint_version", "hull", "rad_float",
+]
+
+flint_version = flint.__version__
+
+
+def current_prec() -> int:
+    """The working precision in bits."""
+    return ctx.prec
+
+
+@contextlib.contextmanager
+def workprec(bits: int):
+    """Run a block at ``bits`` bits of working precision, restoring it after.
+
+    Also sets the power-series cap high enough for the series certify uses.
+    """
+    if bits < 2:
+        raise ValueError("precision must be at least 2 bits")
+    old_prec, old_cap = ctx.prec, ctx.cap
+    ctx.prec = int(bits)
+    try:
+        yield
+    finally:
+        ctx.prec, ctx.cap = old_prec, old_cap
+
+
+def at_prec(bits_arg: str = "prec"):
+    """Decorator: run the function at the precision given by its keyword ``prec``."""
+
+    def deco(fn):
+        @functools.wraps(fn)
+        def wrapper(*args, **kwargs):
+            with workprec(kwargs[bits_arg]):
+                return fn(*args, **kwargs)
+
+        return wrapper
+
+    return deco
+
+
+@contextlib.contextmanager
+def series_cap(length: int):
+    """Scoped power-series truncation length."""
+    old = ctx.cap
+    ctx.cap = int(length)
+    try:
+        yield
+    finally:
+        ctx.cap = old
+
+
+class Verdict(enum.Enum):
+    """Three-valued outcome of a ball comparison."""
+
+    PROVED = "proved"
+    DISPROVED = "disproved"
+    UNDECIDED = "undecided"
+
+    def __bool__(self):  # a verdict must never be used as a bare bool
+        raise TypeError("a Verdict is three-valued; compare with Verdict.PROVED")
+
+
+def sign_verdict(x: arb) -> Verdict:
+    """PROVED if x > 0 for every point of the ball, DISPROVED if x <= 0 everywhere."""
+    if x > 0:
+        return Verdict.PROVED
+    if x <= 0:
+        return Verdict.DISPROVED
+    return Verdict.UNDECIDED
+
+
+def less_verdict(x: arb, y: arb) -> Verdict:
+    """PROVED if x < y everywhere, DISPROVED if x >= y everywhere."""
+    if x < y:
+        return Verdict.PROVED
+    if x >= y:
+        return Verdict.DISPROVED
+    return Verdict.UNDECIDED
+
+
+def _exact_to_fraction(x: arb) -> Fraction:
+    m, e = x.mid().man_exp()
+    m, e = int(m), int(e)
+    return Fraction(m * 2**e) if e >= 0 else Fraction(m, 2 ** (-e))
+
+
+def arb_to_fraction(x: arb) -> Fraction:
+    """The midpoint of ``x`` as an exact rational."""
+    if not x.is_finite():
+        raise ValueError("ball is not finite")
+    return _exact_to_fraction(x.mid())
+
+
+def lower_fraction(x: arb) -> Fraction:
+    """The exact lower endpoint of ``x``."""
+    if not x.is_finite():
+        raise ValueError("ball is not finite")
+    return _exact_to_fraction(x.lower())
+
+
+def upper_fraction(x: arb) -> Fraction:
+    """The exact upper endpoint of ``x``."""
+    if not x.is_finite():
+        raise ValueError("ball is not finite")
+    return _exact_to_fraction(x.upper())
+
+
+def _fraction_decimal(v: Fraction, digits: int, up: bool) -> str:
+    scale = 10**digits
+    n = v * scale
+    k = -((-n.numerator) // n.denominator) if up else n.numerator // n.denominator
+    sign = "-" if k < 0 else ""
+    k = abs(k)
+    s = str(k).rjust(digits + 1, "0")
+    return f"{sign}{s[:-digits]}.{s[-digits:]}" if digits > 0 else f"{sign}{s}"
+
+
+def decimal_down(x: arb | Fraction, digits: int) -> str:
+    """A decimal string with ``digits`` places that is <= every point of ``x``."""
+    v = lower_fraction(x) if isinstance(x, arb) else Fraction(x)
+    return _fraction_decimal(v, digits, up=False)
+
+
+def decimal_up(x: arb | Fraction, digits: int) -> str:
+    """A decimal string with ``digits`` places that is >= every point of ``x``."""
+    v = upper_fraction(x) if isinstance(x, arb) else Fraction(x)
+    return _fraction_decimal(v, digits, up=True)
+
+
+def certified_digits(lo: Fraction, hi: Fraction, max_digits: int = 60) -> str:
+    """The longest decimal ``d`` such that every number of [lo, hi] begins with ``d``.
+
+    Returned as a string such as ``"0.99592"``; a truncated decimal, so each
+    printed digit is the same for every point of the interval.  Returns "" if
+    not even the integer part is common.
+    """
+    if lo > hi:
+        raise ValueError("empty interval")
+    if (lo < 0) != (hi < 0) and lo != 0:
+        return ""
+    best = ""
+    for d in range(0, max_digits + 1):
+        scale = 10**d
+        a = (abs(lo) * scale).__floor__()
+        b = (abs(hi) * scale).__floor__()
+        if a != b:
+            break
+        best = _fraction_decimal(Fraction(a, scale) * (1 if lo >= 0 else -1), d, up=False)
+        # a truncation boundary inside the interval would change the digit
+    return best
+
+
+def ball_strings(x: arb) -> tuple[str, str]:
+    """Exact decimal strings (midpoint, radius) of a ball; :func:`ball_from_strings` inverts."""
+    mid = arb_to_fraction(x)
+    rad = _exact_to_fraction(arb(x.rad()))
+    return _exact_decimal(mid), _exact_decimal(rad)
+
+
+def _exact_decimal(v: Fraction) -> str:
+    """The exact decimal expansion of a dyadic rational."""
+    den = v.denominator
+    k = 0
+    while den % 2 == 0:
+        den //= 2
+        k += 1
+    if den != 1:
+        raise ValueError("not a dyadic rational")
+    num = abs(v.numerator) * 5**k
+    s = str(num).rjust(k + 1, "0")
+    body = f"{s[:-k]}.{s[-k:]}" if k else s
+    return ("-" if v < 0 else "") + body
+
+
+def ball_from_strings(mid: str, rad: str) -> arb:
+    """Rebuild a ball from exact decimal strings; the result contains the original."""
+    fm, fr = Fraction(mid), Fraction(rad)
+    bits = max(64, fm.denominator.bit_length() + abs(fm.numerator).bit_length() + 8)
+    with workprec(bits):
+        m = arb(fmpq(fm.numerator, fm.denominator))
+        r = arb(fmpq(fr.numerator, fr.denominator))
+        # adding a ball [0 +/- r] keeps the midpoint and covers the radius outward
+        return m + arb(0, r.upper()) if fr != 0 else m
+
+
+def hull(a: arb, b: arb) -> arb:
+    """The smallest ball containing both a and b."""
+    return a.union(b)
+
+
+def rad_float(x: arb) -> float:
+    """The radius of a ball as a float (upper bound), for reporting only."""
+    return float(arb(x.rad()).upper())
