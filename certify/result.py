@@ -1,0 +1,103 @@
+"""Values carried by every result: hypotheses, error terms, enclosures.
+
+These are plain frozen dataclasses so that renderers and certificates can be
+built on a result without recomputing anything.  Balls stay as ``arb``
+here; the certificate layer turns them into exact strings.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Any
+
+from .arith import arb, certified_digits, decimal_down, decimal_up, lower_fraction, upper_fraction
+
+CAUTION = (
+    "Conditional result: this enclosure is proven only under the hypotheses listed "
+    "(such as GRH and LI); certify gathers evidence for them but does not prove them."
+)
+
+
+@dataclass(frozen=True)
+class Hypothesis:
+    """A hypothesis a result rests on, with the evidence gathered for it.
+
+    ``status`` is one of ``"assumed"`` (not proven; evidence only),
+    ``"theorem"`` (a proven theorem, cited in ``reference``) or
+    ``"verified"`` (checked by this computation, in full, for what ``statement`` says).
+    """
+
+    name: str
+    statement: str
+    status: str
+    evidence: tuple[str, ...] = ()
+    reference: str = ""
+    data: dict = field(default_factory=dict, compare=False, hash=False)
+
+
+@dataclass(frozen=True)
+class ErrorTerm:
+    """One named term of an error budget: |term| <= bound (an arb upper bound)."""
+
+    name: str
+    bound: arb
+    description: str
+
+    @property
+    def bound_float(self) -> float:
+        return float(self.bound.upper())
+
+
+@dataclass(frozen=True)
+class Enclosure:
+    """A proven interval [lower, upper] for a real number (exact rationals)."""
+
+    lower: Fraction
+    upper: Fraction
+
+    @classmethod
+    def from_arb(cls, x: arb) -> "Enclosure":
+        return cls(lower_fraction(x), upper_fraction(x))
+
+    @property
+    def width(self) -> Fraction:
+        return self.upper - self.lower
+
+    @property
+    def mid(self) -> Fraction:
+        return (self.lower + self.upper) / 2
+
+    def contains(self, value) -> bool:
+        v = Fraction(value)
+        return self.lower <= v <= self.upper
+
+    def digits(self) -> str:
+        """The decimal digits common to every point of the enclosure."""
+        return certified_digits(self.lower, self.upper)
+
+    def lower_str(self, places: int) -> str:
+        return decimal_down(self.lower, places)
+
+    def upper_str(self, places: int) -> str:
+        return decimal_up(self.upper, places)
+
+    def places(self) -> int:
+        """Decimal places enough to show the width (at least 4, at most 80)."""
+        w = self.width
+        p = 4
+        while p < 80 and Fraction(1, 10**p) * 20 > w:
+            break
+        while p < 80 and Fraction(1, 10**p) > w / 100:
+            p += 1
+        return p
+
+
+@dataclass(frozen=True)
+class DensityEnclosure:
+    """What the density engine returns: the enclosure and its itemised budget."""
+
+    enclosure: Enclosure
+    budget: tuple[ErrorTerm, ...]
+    parameters: dict[str, Any]
+    ball: arb
