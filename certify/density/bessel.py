@@ -38,3 +38,230 @@ class BesselVariable:
     mu: arb
     weights: tuple[arb, ...]
     residuals: tuple[ResidualGroup, ...] = field(default_factory=tuple)
+
+
+# ---------------------------------------------------------------------------
+# The engine
+# ---------------------------------------------------------------------------
+
+import math
+from fractions import Fraction
+
+from ..errors import PrecisionExhausted
+from ..result import DensityEnclosure, Enclosure, ErrorTerm
+from .besselj import check_j01, rayleigh_sigma, tail_constant
+
+
+class ResidualTooLarge(PrecisionExhausted):
+    """The residual weights are too large for the Rayleigh expansion at some frequency."""
+
+
+def _arb_q(x: Fraction) -> arb:
+    return arb(x.numerator) / x.denominator
+
+
+def variance(var: BesselVariable) -> arb:
+    """Var X = sum w_j^2 / 2 + sum_g scale_g^2 R_{g,1} / 2 (exact, as a ball)."""
+    v = sum((w * w for w in var.weights), arb(0)) / 2
+    for g in var.residuals:
+        v += g.scale * g.scale * g.power_sums[0] / 2
+    return v
+
+
+def truncation_bound(weights, xi: arb) -> tuple[arb, int]:
+    """Bound for sum_{n odd > N} (2/(pi n)) |Phi_0(n eps)| when N eps = xi.
+
+    Uses |J_0(x)| <= sqrt(2/(pi x)) on the J weights with w xi >= 2/pi and
+    |J_0| <= 1 on the others (docs/method.md, section 4):
+        (2 / (pi J)) prod_j sqrt(2 / (pi w_j xi)).
+    Returns (bound, J); an infinite bound if J = 0.
+    """
+    two_over_pi = 2 / arb.pi()
+    logp = arb(0)
+    J = 0
+    for w in weights:
+        f = two_over_pi / (w * xi)
+        if f < 1:
+            logp += f.log() / 2
+            J += 1
+    if J == 0:
+        return arb("inf"), 0
+    return (2 / (arb.pi() * J)) * logp.exp(), J
+
+
+def _residual_log_factor(group: ResidualGroup, xi: arb, need: float, j01_lo: arb, C: arb):
+    """(log of prod_res J_0, bound on the series tail) for one residual group.
+
+    Raises ResidualTooLarge if the largest residual weight times xi is not
+    provably below j_{0,1}.
+    """
+    x = group.scale * xi
+    # y_max = (x / j01) * min_k R_k^(1/(2k)) bounds x |rho|^-1 / j01 for every residual zero.
+    best = None
+    for k, R in enumerate(group.power_sums, start=1):
+        up = arb(R.upper())
+        if up <= 0:
+            return arb(0), arb(0)
+        r = up.root(2 * k)
+        best = r if best is None or r < best else best
+    y = x / j01_lo * best
+    if not (y < 1):
+        raise ResidualTooLarge("residual weights too large for the Rayleigh expansion")
+    y2 = y * y
+    geom = y2 / (1 - y2)
+    xj2 = (x / j01_lo) ** 2
+    total = arb(0)
+    xk = arb(1)
+    for k, R in enumerate(group.power_sums, start=1):
+        xk *= x * x
+        total -= _arb_q(rayleigh_sigma(k)) / k * xk * R
+        # tail after k terms
+        tail = C / (k + 1) * (xj2**k) * arb(R.upper()).nonnegative_part() * geom
+        if k >= 1 and tail.upper() < need:
+            return total, arb(tail.upper())
+    K = len(group.power_sums)
+    tail = C / (K + 1) * (xj2**K) * arb(group.power_sums[-1].upper()) * geom
+    return total, arb(tail.upper())
+
+
+def density_enclosure(var: BesselVariable, target_width: float, prec: int | None = None,
+                      max_terms: int = 200000) -> DensityEnclosure:
+    """An enclosure of P(X > 0) for X = mu + sum_j w_j cos Theta_j (+ residual groups).
+
+    Parameters
+    ----------
+    var : BesselVariable
+        Mean, direct weights (balls, all > 0) and residual groups.
+    target_width : float
+        Desired width of the enclosure; the error budget is split so that the
+        width comes out below it when the inputs are precise enough.
+    prec : int, optional
+        Working precision in bits (default: from the target).
+
+    Returns
+    -------
+    DensityEnclosure
+        The enclosure, the itemised budget (aliasing, frequency truncation,
+        residual zeros, rounding) and the parameters chosen.
+
+    References
+    ----------
+    docs/method.md, sections 3-5 (square-wave series, tail and truncation bounds,
+    Rayleigh expansion of the residual product).
+    """
+    tau = float(target_width)
+    if not (tau > 0):
+        raise ValueError("target width must be positive")
+    if prec is None:
+        prec = max(64, int(-math.log2(tau)) + 40)
+    from ..arith import workprec
+
+    with workprec(prec):
+        j01_lo_q, _ = check_j01()
+        j01_lo = _arb_q(j01_lo_q)
+        C = _arb_q(tail_constant())
+        mu = var.mu
+        weights = [w for w in var.weights]
+        V = variance(var)
+        if not (V > 0):
+            raise PrecisionExhausted("not certified: the race variable has no random part")
+        # --- aliasing: P(|X| >= L/2) <= e^{-(L/2-|mu|)^2/2V} + e^{-(L/2+|mu|)^2/2V}
+        budget_alias = tau / 8
+        vf = float(V.upper())
+        t = math.sqrt(2 * vf * math.log(2 / budget_alias))
+        half_L = Fraction(math.ceil((abs(float(mu.mid())) + float(mu.rad()) + t) * 64) / 64)
+        L = 2 * _arb_q(half_L)
+        mu_abs_up = arb(abs(mu).upper())
+        gap = _arb_q(half_L) - mu_abs_up
+        if not (gap > 0):
+            raise PrecisionExhausted("not certified: period too short for the mean")
+        alias = (-(gap**2) / (2 * V)).exp() + (-((_arb_q(half_L) + mu_abs_up) ** 2) / (2 * V)).exp()
+        alias = arb(alias.upper())
+        eps = 2 * arb.pi() / L
+        # --- truncation: smallest odd N with bound <= tau/8
+        budget_trunc = tau / 8
+        n_hi = 1
+        while True:
+            b, _ = truncation_bound(weights, eps * n_hi)
+            if b.is_finite() and b.upper() < budget_trunc:
+                break
+            n_hi *= 2
+            if n_hi > max_terms:
+                raise PrecisionExhausted(
+                    "not certified: the characteristic function does not decay fast enough "
+                    f"with {len(weights)} isolated weights (need more zeros)")
+        n_lo = max(1, n_hi // 2)
+        while n_hi - n_lo > 2:
+            mid = (n_lo + n_hi) // 2
+            b, _ = truncation_bound(weights, eps * mid)
+            if b.is_finite() and b.upper() < budget_trunc:
+                n_hi = mid
+            else:
+                n_lo = mid
+        N = n_hi if n_hi % 2 == 1 else n_hi + 1
+        trunc, J = truncation_bound(weights, eps * N)
+        trunc = arb(trunc.upper())
+        # --- main sum
+        n_terms = (N + 1) // 2
+        need_per_term = tau / 16 / n_terms
+        total = arb(0)
+        rayleigh = arb(0)
+        k_used = 0
+        fallback = 0
+        two_over_pi = 2 / arb.pi()
+        for n in range(1, N + 1, 2):
+            xi = eps * n
+            P = arb(1)
+            for w in weights:
+                P *= (w * xi).bessel_j(0)
+            absP = arb(abs(P).upper())
+            coef = two_over_pi / n * (eps * n * mu).sin()
+            log_res = arb(0)
+            tail_sum = arb(0)
+            try:
+                for g in var.residuals:
+                    ell, tl = _residual_log_factor(g, xi, need_per_term / max(float(absP.upper()), 1e-300) / 4, j01_lo, C)
+                    log_res += ell
+                    tail_sum += tl
+                k_used = max(k_used, len(var.residuals[0].power_sums) if var.residuals else 0)
+                factor = log_res.exp()
+                phi = P * factor
+                # the tail moves log_res by at most tail_sum: |e^{l+t} - e^l| <= e^l (e^{|t|} - 1)
+                ray = abs(coef) * absP * arb(factor.upper()) * tail_sum.exp().__sub__(1)
+                ray = arb(ray.upper())
+            except ResidualTooLarge:
+                # fall back on |prod_res J_0| <= 1: Phi_0 in P * [-1, 1]
+                fallback += 1
+                phi = arb(0)
+                ray = arb((abs(coef) * absP).upper())
+            total += coef * phi
+            rayleigh += ray
+        main = 1 / arb(2) + total
+        rounding = arb(main.rad())
+        err = alias + trunc + rayleigh
+        ball = main + arb(0, err.upper())
+        ball = arb(ball.upper()).union(arb(ball.lower()))
+        budget = (
+            ErrorTerm("aliasing", alias,
+                      "P(|X| >= L/2): square-wave period L; Chernoff bound with the exact variance"),
+            ErrorTerm("frequency truncation", trunc,
+                      "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on the isolated weights"),
+            ErrorTerm("residual zeros", rayleigh,
+                      "tail of the Rayleigh expansion of the product over zeros not isolated"),
+            ErrorTerm("rounding and zero enclosures", rounding,
+                      "radius of the interval sum (ball arithmetic, widths of the zero enclosures)"),
+        )
+        params = {
+            "period_L": str(Fraction(2) * half_L),
+            "terms": n_terms,
+            "last_odd_index": N,
+            "xi_max": float(eps.mid()) * N,
+            "direct_weights": len(weights),
+            "truncation_weights_used": J,
+            "residual_groups": len(var.residuals),
+            "moments_available": max((len(g.power_sums) for g in var.residuals), default=0),
+            "working_precision_bits": prec,
+            "variance": float(V.mid()),
+            "fallback_frequencies": fallback,
+        }
+        return DensityEnclosure(Enclosure.from_arb(ball), budget, params, ball)

@@ -1,0 +1,68 @@
+"""Facts about J_0 used by the density engine, each checked in interval arithmetic.
+
+* Rayleigh sums sigma_k = sum_n j_{0,n}^(-2k): exact rationals, from
+  log J_0(x) = -sum_k sigma_k x^(2k) / k  (|x| < j_{0,1}).
+* An enclosure of j_{0,1}, the first positive zero of J_0, certified by a sign
+  change of J_0 (that no zero of J_0 lies in (0, 2.4048) is classical:
+  Watson, A Treatise on the Theory of Bessel Functions, 1944, section 15.3).
+* For k >= 2, sigma_k j_{0,1}^(2k) = 1 + sum_{n >= 2} (j_{0,1}/j_{0,n})^(2k)
+  decreases in k, so sigma_k <= C j_{0,1}^(-2k) with C = sigma_2 j_{0,1}^4.
+* |J_0(x)| <= sqrt(2 / (pi x)) for x > 0, because x (J_0^2 + Y_0^2)(x)
+  increases to 2/pi (Watson, section 13.74).
+"""
+
+from __future__ import annotations
+
+from fractions import Fraction
+from functools import lru_cache
+from math import factorial
+
+from ..arith import arb, workprec
+from ..errors import PrecisionExhausted
+
+
+@lru_cache(maxsize=1)
+def _sigma_table(count: int = 200) -> tuple[Fraction, ...]:
+    # J_0(x) = sum_j a_j z^j with z = x^2, a_j = (-1)^j / (4^j j!^2).
+    a = [Fraction((-1) ** j, 4**j * factorial(j) ** 2) for j in range(count + 1)]
+    # g = log J: g' = J'/J, i.e. J g' = J'  =>  k g_k = k a_k - sum_{i=1}^{k-1} i g_i a_{k-i}
+    g = [Fraction(0)] * (count + 1)
+    for k in range(1, count + 1):
+        s = k * a[k]
+        for i in range(1, k):
+            s -= i * g[i] * a[k - i]
+        g[k] = s / k
+    # log J = -sum sigma_k z^k / k  =>  sigma_k = -k g_k
+    return tuple(-k * g[k] for k in range(1, count + 1))
+
+
+def rayleigh_sigma(k: int) -> Fraction:
+    """sigma_k = sum_n j_{0,n}^(-2k), exactly (k >= 1)."""
+    if k < 1:
+        raise ValueError("k >= 1")
+    table = _sigma_table(max(200, k))
+    if k > len(table):
+        _sigma_table.cache_clear()
+        table = _sigma_table(k + 50)
+    return table[k - 1]
+
+
+J01_LO = Fraction(24048255576, 10**10)
+J01_HI = Fraction(24048255577, 10**10)
+
+
+@lru_cache(maxsize=1)
+def check_j01() -> tuple[Fraction, Fraction]:
+    """Certify J_0(J01_LO) > 0 > J_0(J01_HI); returns the bracket of j_{0,1}."""
+    with workprec(128):
+        lo = arb(J01_LO.numerator) / J01_LO.denominator
+        hi = arb(J01_HI.numerator) / J01_HI.denominator
+        if not (lo.bessel_j(0) > 0 and hi.bessel_j(0) < 0):
+            raise PrecisionExhausted("not certified: the enclosure of j_{0,1} failed")
+    return J01_LO, J01_HI
+
+
+def tail_constant() -> Fraction:
+    """C >= sigma_k j_{0,1}^(2k) for every k >= 2 (rational upper bound)."""
+    _, hi = check_j01()
+    return rayleigh_sigma(2) * hi**4

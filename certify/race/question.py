@@ -1,0 +1,192 @@
+"""Races over Q as data: the question asked and its reduction to a race variable.
+
+A race modulo q is given by rational weights w_a on reduced classes with
+sum w_a = 0; it asks for the logarithmic density of
+{x >= 2 : sum_a w_a pi(x; q, a) > 0}.  Two-way races take w = e_a - e_b;
+the residue race takes w_a = 1/#N on non-residues and -1/#R on residues
+(do the non-residues lead, on average per class?).
+
+Under GRH and LI the normalised race has the limit law of
+X = mu + sum_{chi != chi_0} sum_{gamma_chi > 0} 2 |W(chi)| / |rho| cos Theta,
+with mu = -sum_a w_a c(q, a) and W(chi) = sum_a w_a chi(a) (docs/method.md, section 1).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from fractions import Fraction
+
+from flint import fmpq_poly, fmpz_poly
+
+from ..arith import acb, arb
+from ..errors import BadInput
+from ..source.dirichlet import (Character, c_value, characters, check_class, check_modulus,
+                                reduced_residues)
+
+
+@dataclass(frozen=True)
+class RaceQuestion:
+    """What is asked: modulus, race kind and the weights on classes.
+
+    ``weights`` is a tuple of (class, weight) pairs with exact rational weights
+    summing to zero; ``kind`` is "two-way", "residues" or "weighted".
+    """
+
+    modulus: int
+    kind: str
+    weights: tuple[tuple[int, Fraction], ...]
+    classes: tuple[int, ...] = ()
+
+    @property
+    def label(self) -> str:
+        q = self.modulus
+        if self.kind == "two-way":
+            a, b = self.classes
+            return f"delta({q};{a},{b})"
+        if self.kind == "residues":
+            return f"delta({q};N,R)"
+        terms = " ".join(f"{'+' if w > 0 else '-'}{abs(w)}*pi(x;{q},{a})" for a, w in self.weights)
+        return f"density of [{terms.lstrip('+')} > 0]"
+
+    @property
+    def statement(self) -> str:
+        q = self.modulus
+        if self.kind == "two-way":
+            a, b = self.classes
+            return (f"the logarithmic density of the set of x >= 2 with "
+                    f"pi(x;{q},{a}) > pi(x;{q},{b})")
+        if self.kind == "residues":
+            return (f"the logarithmic density of the set of x >= 2 where the quadratic "
+                    f"non-residues mod {q} lead the residues, each class group averaged: "
+                    f"sum over non-residues a of pi(x;{q},a)/#N > sum over residues b of pi(x;{q},b)/#R")
+        return f"the logarithmic density of the set of x >= 2 with {self.label[len('density of ['):-1]}"
+
+    def weight_of(self, a: int) -> Fraction:
+        for c, w in self.weights:
+            if c == a:
+                return w
+        return Fraction(0)
+
+
+def _as_fraction(w) -> Fraction:
+    if isinstance(w, bool):
+        raise BadInput(f"weight must be a number, got {w!r}")
+    try:
+        f = Fraction(w) if not isinstance(w, float) else Fraction(repr(w))
+    except (ValueError, ZeroDivisionError, TypeError):
+        raise BadInput(f"weight must be a rational number such as 1, -2 or 3/4, got {w!r}") from None
+    return f
+
+
+def two_way(q, a, b) -> RaceQuestion:
+    """The race pi(x;q,a) > pi(x;q,b)."""
+    q = check_modulus(q)
+    a = check_class(q, a, "class a")
+    b = check_class(q, b, "class b")
+    if a == b:
+        raise BadInput(f"the two classes must differ modulo {q} (got {a} and {b})")
+    return RaceQuestion(q, "two-way", ((a, Fraction(1)), (b, Fraction(-1))), (a, b))
+
+
+def quadratic_residues(q: int) -> list[int]:
+    return sorted({(x * x) % q for x in reduced_residues(q)})
+
+
+def residue_race(q) -> RaceQuestion:
+    """Non-residues against residues, each side averaged over its classes."""
+    q = check_modulus(q)
+    res = set(quadratic_residues(q))
+    non = [a for a in reduced_residues(q) if a not in res]
+    if not non:
+        raise BadInput(f"every reduced class mod {q} is a square: no residue race")
+    ws = [(a, Fraction(1, len(non))) for a in non] + [(a, Fraction(-1, len(res))) for a in sorted(res)]
+    ws.sort()
+    return RaceQuestion(q, "residues", tuple(ws))
+
+
+def weighted(q, weights: dict) -> RaceQuestion:
+    """The race sum_a w_a pi(x;q,a) > 0 for rational weights summing to zero."""
+    q = check_modulus(q)
+    acc: dict[int, Fraction] = {}
+    for a, w in weights.items():
+        a = check_class(q, a, "class")
+        acc[a] = acc.get(a, Fraction(0)) + _as_fraction(w)
+    acc = {a: w for a, w in acc.items() if w != 0}
+    if not acc:
+        raise BadInput("all weights are zero: there is no race")
+    if sum(acc.values()) != 0:
+        raise BadInput(f"weights must sum to zero (they sum to {sum(acc.values())})")
+    return RaceQuestion(q, "weighted", tuple(sorted(acc.items())))
+
+
+def mean_of(question: RaceQuestion) -> Fraction:
+    """mu = -sum_a w_a c(q, a)."""
+    return -sum((w * c_value(question.modulus, a) for a, w in question.weights), Fraction(0))
+
+
+def weight_sum_is_zero(question: RaceQuestion, chi: Character) -> bool:
+    """Whether W(chi) = sum_a w_a chi(a) is exactly 0 (in the cyclotomic field)."""
+    if chi.order == 1:
+        return sum(w for _, w in question.weights) == 0
+    coeffs = [Fraction(0)] * chi.order
+    for a, w in question.weights:
+        coeffs[chi.exponent(a)] += w
+    den = 1
+    for c in coeffs:
+        den = den * c.denominator // __import__("math").gcd(den, c.denominator)
+    poly = fmpz_poly([int(c * den) for c in coeffs])
+    if poly == 0:
+        return True
+    return poly % fmpz_poly.cyclotomic(chi.order) == 0
+
+
+def weight_modulus(question: RaceQuestion, chi: Character) -> arb:
+    """|W(chi)| as a ball."""
+    s = acb(0)
+    for a, w in question.weights:
+        s += chi.value(a) * (arb(w.numerator) / w.denominator)
+    return abs(s)
+
+
+@dataclass(frozen=True)
+class SpectralGroup:
+    """Characters sharing one zero multiset in the race variable.
+
+    A real character contributes the positive ordinates of its primitive
+    L-function; a pair {chi, conj chi} contributes all ordinates of L(s, chi*)
+    (its positive ones and those of the conjugate).  ``scale`` is 2|W(chi)|,
+    so each zero carries the weight scale / |rho|.
+    """
+
+    characters: tuple[Character, ...]
+    primitive_keys: tuple[tuple[int, int], ...]  # (conductor, label) whose positive ordinates count
+    parity: int
+    is_real: bool
+    scale: arb
+
+    @property
+    def label(self) -> str:
+        return " & ".join(str(c) for c in self.characters)
+
+
+def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
+    """The groups of characters with W(chi) != 0, with their scales 2|W(chi)|."""
+    out = []
+    seen = set()
+    for chi in characters(question.modulus):
+        if chi.is_principal or chi.label in seen:
+            continue
+        seen.add(chi.label)
+        if weight_sum_is_zero(question, chi):
+            seen.add(chi.conjugate_label)
+            continue
+        scale = 2 * weight_modulus(question, chi)
+        q_star, n_star = chi.primitive_key
+        if chi.is_real:
+            out.append(SpectralGroup((chi,), ((q_star, n_star),), chi.parity, True, scale))
+        else:
+            conj = next(c for c in characters(question.modulus) if c.label == chi.conjugate_label)
+            seen.add(conj.label)
+            out.append(SpectralGroup((chi, conj), ((q_star, n_star), (q_star, pow(n_star, -1, q_star))),
+                                     chi.parity, False, scale))
+    return out
