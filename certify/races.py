@@ -1,0 +1,370 @@
+"""Certified densities of Dirichlet prime races over Q: the driver.
+
+``certify_race(question, digits)`` plans the computation (period, frequency
+range, isolation heights, zero widths, number of moments, precision) from the
+requested width 10^-digits, gathers the spectra, runs the residual checks and
+the density engine, and refines the plan until the target is met or a
+ceiling is reached.  The result is a :class:`RaceResult` holding everything a
+certificate needs, so nothing is recomputed downstream.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+from . import __version__
+from .arith import acb, arb, flint_version, workprec
+from .density.bessel import BesselVariable, ResidualGroup, density_enclosure, truncation_bound
+from .errors import BadInput, PrecisionExhausted
+from .race.question import RaceQuestion, mean_of, spectral_groups
+from .result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
+from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
+
+J01 = 2.404825557695773
+MAX_DIGITS = 60
+DEFAULT_DIGITS = 10
+
+REFERENCES = (
+    "M. Rubinstein and P. Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
+    "G. N. Watson, A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge (1944), "
+    "sections 13.74 and 15.3.",
+    "F. Johansson, Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
+    "IEEE Transactions on Computers 66 (2017).",
+)
+
+
+@dataclass(frozen=True)
+class GroupReport:
+    """What one spectral group contributed: zeros used, residual sums, checks."""
+
+    label: str
+    primitive_keys: tuple
+    scale: arb
+    height: float
+    zeros: tuple  # arb ordinates used directly (sorted)
+    target_sums: tuple  # T_k (exact power sums of the group's ordinates)
+    residual: tuple  # R_k
+    central_values: tuple  # acb L(1/2, chi*) per primitive key
+    notes: tuple
+
+
+@dataclass(frozen=True)
+class RaceResult:
+    """A certified density with everything behind it.
+
+    Attributes
+    ----------
+    question : RaceQuestion
+    density : Enclosure
+        Proven interval for the density (under the hypotheses).
+    digits_requested : int
+    target_met : bool
+        Whether the width reached 10^-digits_requested.
+    mean : Fraction
+        mu of the race variable.
+    variance : arb
+    budget : tuple[ErrorTerm, ...]
+    parameters : dict
+    hypotheses : tuple[Hypothesis, ...]
+    groups : tuple[GroupReport, ...]
+    timings : dict
+    """
+
+    question: RaceQuestion
+    density: Enclosure
+    ball: arb
+    digits_requested: int
+    target_met: bool
+    mean: Fraction
+    variance: arb
+    budget: tuple
+    parameters: dict
+    hypotheses: tuple
+    groups: tuple
+    timings: dict
+    provenance: dict
+    references: tuple = REFERENCES
+    caution: str = CAUTION
+
+    def __repr__(self) -> str:
+        d = self.density
+        p = d.places()
+        status = "target met" if self.target_met else "TARGET NOT MET (best certified enclosure)"
+        return (f"<RaceResult {self.question.label} in [{d.lower_str(p)}, {d.upper_str(p)}] "
+                f"(width {float(d.width):.2e}; {status}; conditional on GRH and LI)>")
+
+    @property
+    def certified_digits(self) -> str:
+        return self.density.digits()
+
+    def to_dict(self) -> dict:
+        """A JSON-ready dictionary (decimal strings rounded outward)."""
+        d = self.density
+        places = d.places()
+        return {
+            "question": {
+                "modulus": self.question.modulus,
+                "kind": self.question.kind,
+                "label": self.question.label,
+                "statement": self.question.statement,
+                "weights": {str(a): str(w) for a, w in self.question.weights},
+            },
+            "density": {
+                "lower": d.lower_str(places),
+                "upper": d.upper_str(places),
+                "width": f"{float(d.width):.3e}",
+                "certified_digits": d.digits(),
+                "target_width": f"1e-{self.digits_requested}",
+                "target_met": self.target_met,
+            },
+            "mean": str(self.mean),
+            "variance": self.variance.str(20, radius=True),
+            "hypotheses": [
+                {"name": h.name, "statement": h.statement, "status": h.status,
+                 "evidence": list(h.evidence), "reference": h.reference}
+                for h in self.hypotheses
+            ],
+            "error_budget": [
+                {"name": e.name, "bound": f"{e.bound_float:.3e}", "description": e.description}
+                for e in self.budget
+            ],
+            "parameters": self.parameters,
+            "spectrum": [
+                {"group": g.label, "primitive_characters": [f"{c}.{n}" for c, n in g.primitive_keys],
+                 "isolation_height": g.height, "zeros_used": len(g.zeros),
+                 "first_zeros": [z.str(20, radius=False) for z in g.zeros[:3]]}
+                for g in self.groups
+            ],
+            "timings_seconds": self.timings,
+            "provenance": self.provenance,
+            "references": list(self.references),
+            "caution": self.caution,
+        }
+
+
+def _model_ordinates(conductor: int, height: float) -> list[float]:
+    """Approximate positive ordinates (for planning only): N(t) = (t/2pi) log(q t/(2 pi e)) + 7/8."""
+    out = []
+    k = 1
+    t = 1.0
+    while True:
+        target = k - 0.5
+        # Newton on f(t) = (t/2pi) log(q t / 2 pi e) + 7/8 - target
+        t = max(t, 1.0)
+        for _ in range(50):
+            f = t / (2 * math.pi) * math.log(conductor * t / (2 * math.pi * math.e)) + 0.875 - target
+            fp = math.log(conductor * t / (2 * math.pi)) / (2 * math.pi)
+            if fp <= 0:
+                t *= 2
+                continue
+            t_new = max(t - f / fp, t / 2)
+            if abs(t_new - t) < 1e-9:
+                break
+            t = t_new
+        if t > height:
+            return out
+        out.append(t)
+        k += 1
+
+
+def _plan_xi_max(groups, V: float, mu: float, tau: float) -> float:
+    """Frequency range where the truncation bound falls below tau/8 (model zeros)."""
+    t = math.sqrt(2 * V * math.log(16 / tau))
+    L = 2 * (abs(mu) + t)
+    eps = 2 * math.pi / L
+    xi = eps
+    model = []
+    for g in groups:
+        s = float(g.scale.mid())
+        for (qs, _) in g.primitive_keys:
+            model.append((s, _model_ordinates(qs, 2000.0)))
+    while xi < 1e4:
+        logp = 0.0
+        J = 0
+        for s, ords in model:
+            for gam in ords:
+                f = 2 / (math.pi * s / math.hypot(0.5, gam) * xi)
+                if f < 1:
+                    logp += 0.5 * math.log(f)
+                    J += 1
+        if J and 2 / (math.pi * J) * math.exp(logp) < tau / 8:
+            return xi
+        xi *= 1.15
+    return xi
+
+
+def _hypotheses(question, group_reports) -> tuple:
+    ls = sorted({k for g in group_reports for k in g.primitive_keys})
+    heights = {}
+    for g in group_reports:
+        for k in g.primitive_keys:
+            heights[k] = g.height
+    ev_grh = [f"L(s, chi_{{{c},{n}}}): {sum(1 for g in group_reports if (c, n) in g.primitive_keys for z in g.zeros if True) and ''}"
+              for (c, n) in ls]
+    ev_grh = []
+    for g in group_reports:
+        ev_grh.append(
+            f"{g.label}: {len(g.zeros)} zeros certified on the critical line by sign changes "
+            f"of the Hardy Z-function up to height {g.height:g}; residual power sums "
+            f"non-negative and consistent with none missing below that height")
+    ev_grh.append("Published interval verifications (not redone here): Math. Comp. 61 (1993), "
+                  "all conductors < 13 to height 10000; Math. Comp. (2016), conductors <= 400000.")
+    ev_li = []
+    for g in group_reports:
+        for (c, n), cv in zip(g.primitive_keys, g.central_values):
+            ev_li.append(f"L(1/2, chi_{{{c},{n}}}) = {cv.str(8)} excludes 0")
+    ev_li.append("every isolated zero is a certified sign change in its own disjoint interval "
+                 "(odd order; simplicity itself is assumed)")
+    names = ", ".join(f"L(s, chi_{{{c},{n}}})" for (c, n) in ls)
+    return (
+        Hypothesis("GRH", f"The generalised Riemann hypothesis for {names}: every non-trivial "
+                   "zero has real part 1/2.", "assumed", tuple(ev_grh)),
+        Hypothesis("LI", "The positive ordinates of the zeros of these L-functions (one "
+                   "ordinate set per character, conjugates counted apart) are linearly "
+                   "independent over Q.", "assumed", tuple(ev_li)),
+    )
+
+
+def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
+                 store: SpectrumStore | None = None, max_rounds: int = 5,
+                 command_line: str = "") -> RaceResult:
+    """Certify the density of ``question`` to width 10^-digits (or say how close it got).
+
+    Parameters
+    ----------
+    question : RaceQuestion
+        From :func:`certify.race.question.two_way`, ``residue_race`` or ``weighted``.
+    digits : int
+        Target: enclosure width at most 10^-digits.
+    store : SpectrumStore, optional
+        Shared spectra (reused across races).
+
+    Returns
+    -------
+    RaceResult
+        If the target cannot be reached within the ceilings, the best certified
+        enclosure, with ``target_met`` False.
+
+    Assumptions
+    -----------
+    GRH for every L-function used and LI; both are listed in the result with the
+    evidence gathered, neither is proven.
+    """
+    if isinstance(digits, bool) or not isinstance(digits, int):
+        raise BadInput(f"digits must be an integer, got {digits!r}")
+    if not (1 <= digits <= MAX_DIGITS):
+        raise BadInput(f"digits must be between 1 and {MAX_DIGITS} (got {digits})")
+    t_start = time.time()
+    store = store or SpectrumStore()
+    tau = 10.0 ** (-digits)
+    prec = max(80, int(digits * 3.33) + 48)
+    mu_q = mean_of(question)
+    groups = spectral_groups(question)
+    if not groups:
+        raise BadInput(f"{question.label}: every character sum W(chi) vanishes; the race is degenerate")
+    # exact variance (first moments only) for planning
+    with workprec(prec):
+        groups = spectral_groups(question)
+        V = arb(0)
+        for g in groups:
+            c, n = g.primitive_keys[0]
+            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
+            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
+            V += g.scale * g.scale * T1 / 2
+    xi_max = _plan_xi_max(groups, float(V.mid()), float(mu_q), tau)
+    height_factor = 2.6
+    width = min(1e-6, tau / (1000 * (1 + xi_max)))
+    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
+    best = None
+    timings = {"spectra": 0.0, "density": 0.0}
+    last_reason = ""
+    for round_no in range(max_rounds):
+        t0 = time.time()
+        reports = []
+        weights = []
+        residuals = []
+        with workprec(prec):
+            groups = spectral_groups(question)
+            for g in groups:
+                s = float(g.scale.mid())
+                height = max(8.0, height_factor * s * xi_max / J01)
+                grow = max(1.0, s * xi_max / J01)
+                bits = int(digits * 3.33 + 2 * moments * math.log2(grow * 4) + 40)
+                sps = [store.get(c, n, g.parity, height, width, moments, bits)
+                       for (c, n) in g.primitive_keys]
+                zs = sorted((z for sp in sps for z in sp.zeros.zeros if float(z.mid()) <= height),
+                            key=lambda z: float(z.mid()))
+                T = min(sp.height for sp in sps)
+                div = 2 if g.is_real else 1
+                target_sums = [s_k / div for s_k in sps[0].power_sums[:moments]]
+                R = residual_sums(target_sums, zs)
+                notes = residual_checks(g.label, R, T, g.primitive_keys[0][0], len(g.primitive_keys))
+                reports.append(GroupReport(g.label, g.primitive_keys, g.scale, T, tuple(zs),
+                                           tuple(target_sums), tuple(R),
+                                           tuple(sp.central for sp in sps), tuple(notes)))
+                for z in zs:
+                    weights.append(g.scale / (arb(1) / 4 + z * z).sqrt())
+                residuals.append(ResidualGroup(g.scale, tuple(R), g.label))
+            variable = BesselVariable(arb(mu_q.numerator) / mu_q.denominator, tuple(weights),
+                                      tuple(residuals))
+        t1 = time.time()
+        timings["spectra"] += t1 - t0
+        try:
+            dens = density_enclosure(variable, tau, prec=prec)
+        except PrecisionExhausted as exc:
+            last_reason = str(exc)
+            xi_max *= 1.5
+            continue
+        finally:
+            timings["density"] += time.time() - t1
+        if best is None or dens.enclosure.width < best[0].enclosure.width:
+            best = (dens, reports, dict(dens.parameters), (height_factor, width, moments, prec))
+        if dens.enclosure.width <= Fraction(tau):
+            break
+        # refine the plan where the budget says
+        b = {e.name: e.bound_float for e in dens.budget}
+        worst = max(b, key=b.get)
+        last_reason = f"largest error term: {worst} ({b[worst]:.2e})"
+        if worst == "residual zeros" or dens.parameters.get("fallback_frequencies", 0):
+            xi_max = max(xi_max, dens.parameters["xi_max"])
+            height_factor *= 1.5
+            moments = min(80, moments + 6)
+        if worst == "rounding and zero enclosures" or b["rounding and zero enclosures"] > tau / 8:
+            width = width * 1e-4
+            prec += 32
+        if worst == "frequency truncation":
+            height_factor *= 1.3
+    if best is None:
+        raise PrecisionExhausted(f"not certified: {question.label}: {last_reason}")
+    dens, reports, params, (hf, w, K, p) = best
+    met = dens.enclosure.width <= Fraction(tau)
+    params = dict(params)
+    params.update({
+        "target_width": f"1e-{digits}",
+        "isolation_height_factor": hf,
+        "zero_enclosure_width": w,
+        "moments": K,
+        "primitive_l_functions": sorted({f"{c}.{n}" for g in reports for (c, n) in g.primitive_keys}),
+        "zeros_used": sum(len(g.zeros) for g in reports),
+        "hardy_z_evaluations": store.z_calls,
+    })
+    if not met:
+        params["not_met_reason"] = last_reason
+    timings["total"] = time.time() - t_start
+    import platform
+    import sys
+
+    provenance = {
+        "certify": __version__,
+        "python_flint": flint_version,
+        "python": sys.version.split()[0],
+        "platform": platform.platform(),
+        "command_line": command_line,
+        "date": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
+    }
+    return RaceResult(question, dens.enclosure, dens.ball, digits, met, mu_q, V, dens.budget,
+                      params, _hypotheses(question, reports), tuple(reports),
+                      {k: round(v, 3) for k, v in timings.items()}, provenance)
