@@ -5,3 +5,7 @@ L-functions used, LI); certify gathers evidence for them but proves neither.
 """
 
 __version__ = "0.1.0"
+
+from .api import race, residue_race, weighted_race  # noqa: E402
+
+__all__ = ["race", "residue_race", "weighted_race", "__version__"]

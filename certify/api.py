@@ -1,0 +1,32 @@
+"""The notebook-facing API: one call per kind of race, returning a RaceResult.
+
+>>> from certify import race
+>>> r = race(4, 3, 1, digits=8)            # doctest: +SKIP
+>>> r.density.lower < 0.9959 < r.density.upper  # doctest: +SKIP
+True
+"""
+
+from __future__ import annotations
+
+from .race.question import residue_race as _residue_question
+from .race.question import two_way, weighted
+from .races import DEFAULT_DIGITS, RaceResult, certify_race
+from .spectrum.spectrum import SpectrumStore
+
+
+def race(q: int, a: int, b: int, digits: int = DEFAULT_DIGITS,
+         store: SpectrumStore | None = None) -> RaceResult:
+    """delta(q; a, b): density of x with pi(x;q,a) > pi(x;q,b), under GRH and LI."""
+    return certify_race(two_way(q, a, b), digits, store=store)
+
+
+def residue_race(q: int, digits: int = DEFAULT_DIGITS,
+                 store: SpectrumStore | None = None) -> RaceResult:
+    """Density of x where non-residues mod q lead residues (class-averaged counts)."""
+    return certify_race(_residue_question(q), digits, store=store)
+
+
+def weighted_race(q: int, weights: dict, digits: int = DEFAULT_DIGITS,
+                  store: SpectrumStore | None = None) -> RaceResult:
+    """Density of x with sum_a w_a pi(x;q,a) > 0 (rational weights summing to zero)."""
+    return certify_race(weighted(q, weights), digits, store=store)

@@ -1,0 +1,145 @@
+"""``certify race``, ``certify residues``, ``certify weighted``: densities of races over Q."""
+
+from __future__ import annotations
+
+import json
+import shlex
+import sys
+
+from ..errors import BadInput
+from ..race.question import residue_race, two_way, weighted
+from ..races import DEFAULT_DIGITS, MAX_DIGITS, certify_race
+
+
+def _int(text: str, what: str) -> int:
+    try:
+        return int(text)
+    except (TypeError, ValueError):
+        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+
+
+def _add_common(p):
+    p.add_argument("--digits", "-d", default=str(DEFAULT_DIGITS), metavar="D",
+                   help=f"target: enclosure width at most 10^-D (1..{MAX_DIGITS}; default {DEFAULT_DIGITS})")
+    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+
+
+def _digits(args) -> int:
+    return _int(args.digits, "--digits")
+
+
+def screen(result) -> str:
+    """The one-screen summary of a race result."""
+    d = result.density
+    places = d.places()
+    lines = [
+        f"{result.question.label} = {d.digits() or '(no digit certified)'}",
+        f"  {result.question.statement}",
+        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        + ("" if result.target_met else f"   (target 1e-{result.digits_requested} NOT met)"),
+    ]
+    one_minus = 1 - d.upper
+    if d.lower > 0.999:
+        lines.append(f"  1 - delta  in [{float(1 - d.upper):.6e}, {float(1 - d.lower):.6e}]")
+    elif d.upper < 0.001:
+        lines.append(f"  delta      in [{float(d.lower):.6e}, {float(d.upper):.6e}]")
+    del one_minus
+    lines.append(f"  mean {result.mean}, variance {result.variance.str(8)}; "
+                 f"{result.parameters['zeros_used']} zeros of "
+                 f"{len(result.parameters['primitive_l_functions'])} L-functions; "
+                 f"{result.timings.get('total', 0):.2f} s")
+    lines.append("  error budget:")
+    for e in result.budget:
+        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+    lines.append("  hypotheses (assumed, not proven):")
+    for h in result.hypotheses:
+        lines.append(f"    {h.name}: {h.statement}")
+    if not result.target_met:
+        lines.append(f"  not certified to the target: {result.parameters.get('not_met_reason', '')}")
+    lines.append(f"  {result.caution}")
+    return "\n".join(lines)
+
+
+def emit(result, args) -> int:
+    if args.json:
+        text = json.dumps(result.to_dict(), indent=2)
+        if args.json == "-":
+            sys.stdout.write(text + "\n")
+        else:
+            from ..io import write_atomic
+
+            write_atomic(args.json, text + "\n")
+    if args.json != "-":
+        print(screen(result))
+    return 0 if result.target_met else 5
+
+
+def _cmdline(argv_tail) -> str:
+    return "certify " + " ".join(shlex.quote(a) for a in argv_tail)
+
+
+def run_race(args) -> int:
+    q = _int(args.modulus, "modulus")
+    question = two_way(q, _int(args.a, "class a"), _int(args.b, "class b"))
+    d = _digits(args)
+    result = certify_race(question, d, command_line=_cmdline(
+        ["race", str(q), args.a, args.b, "--digits", str(d)]))
+    return emit(result, args)
+
+
+def run_residues(args) -> int:
+    q = _int(args.modulus, "modulus")
+    d = _digits(args)
+    result = certify_race(residue_race(q), d, command_line=_cmdline(
+        ["residues", str(q), "--digits", str(d)]))
+    return emit(result, args)
+
+
+def parse_weights(items: list[str]) -> dict:
+    """Parse CLASS:WEIGHT items (weights rational: 1, -2, 3/4)."""
+    out = {}
+    for item in items:
+        if ":" not in item:
+            raise BadInput(f"weight {item!r} is not of the form CLASS:WEIGHT (e.g. 3:1 or 1:-1/2)")
+        a, w = item.split(":", 1)
+        a = _int(a.strip(), "class")
+        if a in out:
+            raise BadInput(f"class {a} is given twice")
+        out[a] = w.strip()
+    return out
+
+
+def run_weighted(args) -> int:
+    q = _int(args.modulus, "modulus")
+    question = weighted(q, parse_weights(args.weights))
+    d = _digits(args)
+    result = certify_race(question, d, command_line=_cmdline(
+        ["weighted", str(q), *args.weights, "--digits", str(d)]))
+    return emit(result, args)
+
+
+def register(sub) -> None:
+    p = sub.add_parser("race", help="density of pi(x;q,a) > pi(x;q,b) (two-way race over Q)",
+                       description="Certify delta(q;a,b), the logarithmic density of x with "
+                       "pi(x;q,a) > pi(x;q,b), under GRH and LI.")
+    p.add_argument("modulus", help="the modulus q >= 3")
+    p.add_argument("a", help="the class expected to lead")
+    p.add_argument("b", help="the other class")
+    _add_common(p)
+    p.set_defaults(func=run_race)
+
+    p = sub.add_parser("residues", help="non-residues against residues modulo q",
+                       description="Certify the density of x where the quadratic non-residues "
+                       "mod q lead the residues (counts averaged over the classes of each side).")
+    p.add_argument("modulus", help="the modulus q >= 3")
+    _add_common(p)
+    p.set_defaults(func=run_residues)
+
+    p = sub.add_parser("weighted", help="density of sum_a w_a pi(x;q,a) > 0 for weights summing to 0",
+                       description="Certify the density of x with sum_a w_a pi(x;q,a) > 0. "
+                       "Weights are CLASS:WEIGHT items with rational weights summing to zero, "
+                       "e.g. `certify weighted 5 1:1 4:1 2:-1 3:-1`.")
+    p.add_argument("modulus", help="the modulus q >= 3")
+    p.add_argument("weights", nargs="+", help="CLASS:WEIGHT items")
+    _add_common(p)
+    p.set_defaults(func=run_weighted)
