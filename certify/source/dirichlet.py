@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from fractions import Fraction
 from functools import lru_cache
 
 from flint import dirichlet_char, dirichlet_group
@@ -135,12 +136,41 @@ class Character:
         return f"chi_{{{self.modulus},{self.label}}}"
 
 
+def _value_fraction(q: int, n: int, a: int) -> Fraction:
+    """chi_{q,n}(a) = exp(2 pi i f) with f in [0, 1) returned exactly."""
+    g = dirichlet_group(q)
+    return Fraction(int(dirichlet_char(q, n).chi_exponent(a % q)), int(g.exponent())) % 1
+
+
+def _primitive_label(q: int, n: int, cond: int) -> int:
+    """Label mod ``cond`` of the primitive character inducing chi_{q,n}.
+
+    Found by comparing exact values (labels do not always reduce as n mod cond).
+    """
+    if cond == 1:
+        return 1
+    lifts = []
+    for a in range(1, cond):
+        if math.gcd(a, cond) != 1:
+            continue
+        b = a
+        while math.gcd(b, q) != 1:
+            b += cond
+        lifts.append((a, _value_fraction(q, n, b)))
+    guess = n % cond
+    candidates = [guess] + [m for m in range(1, cond) if m != guess and math.gcd(m, cond) == 1]
+    for m in candidates:
+        if all(_value_fraction(cond, m, a) == f for a, f in lifts):
+            return m
+    raise RuntimeError(f"no primitive character mod {cond} induces chi_{{{q},{n}}}")
+
+
 @lru_cache(maxsize=256)
 def characters(q: int) -> tuple[Character, ...]:
     """All Dirichlet characters modulo q, principal first, in label order."""
     q = check_modulus(q)
     out = []
-    for n in reduced_residues(q) if q > 1 else [1]:
+    for n in reduced_residues(q):
         chi = dirichlet_char(q, n)
         cond = int(chi.conductor())
         out.append(
@@ -149,7 +179,7 @@ def characters(q: int) -> tuple[Character, ...]:
                 label=n,
                 order=int(chi.order()),
                 conductor=cond,
-                primitive_label=n % cond if cond > 1 else 1,
+                primitive_label=_primitive_label(q, n, cond),
                 parity=int(chi.parity()),
                 conjugate_label=pow(n, -1, q),
             )
