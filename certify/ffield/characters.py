@@ -1,0 +1,454 @@
+"""Characters of (F_q[t]/m)^x for monic m: structure, discrete logarithms, parity, conductors.
+
+The unit group is built as an abstract finite abelian group from exact
+arithmetic, with vectorised products on the F_p-linear model of F_q[t]/m
+(:class:`certify.ffield.poly.ResidueRing`):
+
+1. Units are the residues not divisible by any prime factor P of m
+   (multiples of P are P*h with deg h < deg m - deg P).
+2. A subgroup H (list of residue indices, with ``pos[index] = position``)
+   grows by one element g at a time: k = order of gH in G/H (from the
+   factorisation of [G:H], exact ``pow_mod``), then H' = H + gH + ... + g^(k-1)H,
+   built by doubling so the work is O(|G|) vectorised products.  The position
+   of an element is then a mixed-radix number whose digits l_i are its
+   exponents on g_1, g_2, ...; the relations g_i^(k_i) in H_(i-1) form a
+   triangular integer matrix R.
+3. The Smith normal form U R V = diag(d_1 | d_2 | ...) turns the mixed-radix
+   exponents l into coordinates y = l V (mod d_i) of (F_q[t]/m)^x = sum Z/d_i.
+
+A character is a vector c (c_i mod d_i): chi_c(y) = exp(2 pi i sum c_i y_i / d_i).
+Values are stored exactly as exponents of zeta_e, e = lcm(d_i) = d_r (the
+group exponent); a character of order o takes values in the o-th roots of unity.
+
+Parity: chi is *even* if it is trivial on F_q^x (the constants), odd otherwise.
+Conductor: the least divisor f of m such that chi is trivial on the units
+congruent to 1 modulo f, found place by place (the exponent at P is the least
+j with chi trivial on {a = 1 mod P^j, a = 1 mod m/P^e}).
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import BadInput
+from .poly import (
+    FiniteField, ResidueRing, factor, poly_from_index, poly_index, poly_str, prime_factors,
+)
+
+__all__ = ["CharacterGroup", "Character", "smith_normal_form", "character_group"]
+
+
+# ---------------------------------------------------------------- Smith normal form
+def smith_normal_form(A: list[list[int]]):
+    """(U, D, V) with U A V = D diagonal, d_i | d_(i+1), d_i >= 0, U and V unimodular."""
+    A = [list(map(int, row)) for row in A]
+    n = len(A)
+    m = len(A[0]) if n else 0
+    U = [[int(i == j) for j in range(n)] for i in range(n)]
+    V = [[int(i == j) for j in range(m)] for i in range(m)]
+
+    def swap_rows(i, j):
+        A[i], A[j] = A[j], A[i]
+        U[i], U[j] = U[j], U[i]
+
+    def swap_cols(i, j):
+        for row in A:
+            row[i], row[j] = row[j], row[i]
+        for row in V:
+            row[i], row[j] = row[j], row[i]
+
+    def add_row(dst, src, f):  # row dst += f * row src
+        if f:
+            A[dst] = [a + f * b for a, b in zip(A[dst], A[src])]
+            U[dst] = [a + f * b for a, b in zip(U[dst], U[src])]
+
+    def add_col(dst, src, f):
+        if f:
+            for row in A:
+                row[dst] += f * row[src]
+            for row in V:
+                row[dst] += f * row[src]
+
+    t = 0
+    while t < min(n, m):
+        nz = [(abs(A[i][j]), i, j) for i in range(t, n) for j in range(t, m) if A[i][j]]
+        if not nz:
+            break
+        _, i0, j0 = min(nz)
+        swap_rows(t, i0)
+        swap_cols(t, j0)
+        while True:
+            changed = False
+            for i in range(t + 1, n):
+                if A[i][t]:
+                    add_row(i, t, -(A[i][t] // A[t][t]))
+                    changed = changed or A[i][t] != 0
+            for j in range(t + 1, m):
+                if A[t][j]:
+                    add_col(j, t, -(A[t][j] // A[t][t]))
+                    changed = changed or A[t][j] != 0
+            if changed:
+                cand = [(abs(A[i][t]), i, t) for i in range(t, n) if A[i][t]]
+                cand += [(abs(A[t][j]), t, j) for j in range(t, m) if A[t][j]]
+                _, i0, j0 = min(cand)
+                swap_rows(t, i0)
+                swap_cols(t, j0)
+                continue
+            bad = next(((i, j) for i in range(t + 1, n) for j in range(t + 1, m)
+                        if A[i][j] % A[t][t]), None)
+            if bad is None:
+                break
+            add_row(t, bad[0], 1)
+        if A[t][t] < 0:
+            A[t] = [-a for a in A[t]]
+            U[t] = [-a for a in U[t]]
+        t += 1
+    return U, A, V
+
+
+# ---------------------------------------------------------------- the group
+class CharacterGroup:
+    """(F_q[t]/m)^x with exact discrete logarithms and its character group.
+
+    Parameters
+    ----------
+    F : FiniteField
+    m : fq_default_poly, monic of degree >= 1.
+
+    Attributes
+    ----------
+    invariants : tuple of int
+        d_1 | d_2 | ... | d_r (all > 1): the group is the sum of Z/d_i.
+    exponent : int
+        e = d_r (1 for the trivial group).
+    order : int
+        phi(m), the number of units.
+    """
+
+    def __init__(self, F: FiniteField, m, seed: int = 20261201):
+        if m.degree() < 1 or not m.is_monic():
+            raise BadInput("modulus must be monic of degree >= 1")
+        self.F, self.m = F, m
+        self.M = m.degree()
+        self.ring = ResidueRing(F, m)
+        self.size = self.ring.size
+        self.factors = factor(m, F)
+        q = F.q
+        self.order = 1
+        for P, e in self.factors:
+            d = P.degree()
+            self.order *= q ** (d * e) - q ** (d * (e - 1))
+        self._build(seed)
+
+    # -- structure
+    def _unit_mask(self) -> np.ndarray:
+        mask = np.ones(self.size, dtype=bool)
+        mask[0] = False
+        for P, _ in self.factors:
+            h = np.arange(self.F.q ** (self.M - P.degree()), dtype=np.int64)
+            mask[self.ring.mul_many(h, P)] = False
+        if int(mask.sum()) != self.order:
+            raise AssertionError("unit count disagrees with phi(m)")  # pragma: no cover
+        return mask
+
+    def _index(self, f) -> int:
+        return poly_index(f % self.m, self.F)
+
+    def _build(self, seed: int) -> None:
+        ring, m = self.ring, self.m
+        self.is_unit = self._unit_mask()
+        pos = np.full(self.size, -1, dtype=np.int64)
+        elems = np.array([1 if self.M >= 1 else 0], dtype=np.int64)
+        pos[elems] = 0
+        gens, radices, rel_pos = [], [], []
+        rng = np.random.default_rng(seed)
+        unit_idx = None
+        while len(elems) < self.order:
+            n_quot = self.order // len(elems)
+            best = None
+            for attempt in range(6):
+                if unit_idx is None or attempt % 3 == 0:
+                    cand_idx = np.nonzero(self.is_unit & (pos < 0))[0]
+                    unit_idx = cand_idx
+                g_i = int(unit_idx[rng.integers(len(unit_idx))])
+                g = poly_from_index(g_i, self.F)
+                k = n_quot
+                for ell, _ in prime_factors(n_quot):
+                    while k % ell == 0 and pos[self._index(g.pow_mod(k // ell, m))] >= 0:
+                        k //= ell
+                if best is None or k > best[1]:
+                    best = (g, k)
+                if k == n_quot:
+                    break
+            g, k = best
+            H = len(elems)
+            T = elems
+            n = 1
+            while 2 * n <= k:
+                T = np.concatenate([T, ring.mul_many(T, g.pow_mod(n, m))])
+                n *= 2
+            if n < k:
+                T = np.concatenate([T, ring.mul_many(T[: (k - n) * H], g.pow_mod(n, m))])
+            if len(T) != k * H or np.any(pos[T[H:]] >= 0):
+                raise AssertionError("coset construction failed")  # pragma: no cover
+            pos[T] = np.arange(len(T), dtype=np.int64)
+            rel_pos.append(int(pos[self._index(g.pow_mod(k, m))]))
+            if rel_pos[-1] < 0 or rel_pos[-1] >= H:
+                raise AssertionError("relation outside the subgroup")  # pragma: no cover
+            gens.append(g)
+            radices.append(k)
+            elems = T
+        self.pos = pos
+        self.elements = elems
+        self.gens = tuple(gens)
+        self.radices = tuple(radices)
+        r = len(gens)
+        R = [[0] * r for _ in range(r)]
+        for i in range(r):
+            R[i][i] = radices[i]
+            for j, lj in enumerate(self._mixed_digits(rel_pos[i])[:i]):
+                R[i][j] -= lj
+        if r:
+            U, D, V = smith_normal_form(R)
+            diag = [D[i][i] for i in range(r)]
+        else:
+            diag, V = [], []
+        keep = [i for i in range(r) if diag[i] > 1]
+        self.invariants = tuple(diag[i] for i in keep)
+        self.exponent = self.invariants[-1] if self.invariants else 1
+        # V reduced column-wise modulo d_i keeps products small and exact in int64
+        self._V = np.array([[V[j][i] % diag[i] for i in keep] for j in range(r)],
+                           dtype=np.int64).reshape(r, len(keep))
+        prod = 1
+        for d in self.invariants:
+            prod *= d
+        if prod != self.order:
+            raise AssertionError("Smith form disagrees with phi(m)")  # pragma: no cover
+        # W = V^(-1): row i gives the exponents on g_j of the basis element for y = e_i
+        if r:
+            from flint import fmpz_mat
+            Vi = fmpz_mat(V).inv()  # V is unimodular, so the inverse is integral
+            self._W = [[int(str(Vi[i, j])) for j in range(r)] for i in keep]
+        else:
+            self._W = []
+        self._gamma = self._constant_generator()
+
+    def _mixed_digits(self, p: int) -> list[int]:
+        out = []
+        for k in self.radices:
+            p, r = divmod(int(p), k)
+            out.append(r)
+        return out
+
+    def _constant_generator(self) -> int:
+        """Index of a generator of F_q^x (as a constant residue)."""
+        F = self.F
+        if F.q == 2:
+            return 1
+        if F.k > 1:
+            return F.p  # the code of z, primitive by construction
+        p = F.p
+        cof = [(p - 1) // ell for ell, _ in prime_factors(p - 1)]
+        for g in range(2, p):
+            if all(pow(g, c, p) != 1 for c in cof):
+                return g
+        raise AssertionError("no primitive root")  # pragma: no cover
+
+    # -- logarithms
+    def logs(self, idx) -> np.ndarray:
+        """Coordinates y (mod d_i) of the residues with the given indices (units only)."""
+        idx = np.atleast_1d(np.asarray(idx, dtype=np.int64))
+        p = self.pos[idx]
+        if np.any(p < 0):
+            raise BadInput("discrete logarithm of a non-unit")
+        L = np.empty((len(idx), len(self.radices)), dtype=np.int64)
+        for j, k in enumerate(self.radices):
+            p, L[:, j] = np.divmod(p, k)
+        d = np.array(self.invariants, dtype=np.int64)
+        return (L @ self._V) % d if len(d) else np.zeros((len(idx), 0), dtype=np.int64)
+
+    def log(self, f) -> tuple[int, ...]:
+        """Coordinates of a polynomial coprime to m."""
+        return tuple(int(v) for v in self.logs([self._index(f)])[0])
+
+    def basis_element(self, i: int):
+        """The residue with coordinates e_i."""
+        def g_pow(x, w):
+            return x.pow_mod(w % self.order, self.m)
+
+        g = self.F.one_poly()
+        for j, w in enumerate(self._W[i]):
+            g = (g * g_pow(self.gens[j], w)) % self.m
+        return g
+
+    # -- characters
+    def character(self, c) -> "Character":
+        c = tuple(int(ci) % di for ci, di in zip(c, self.invariants))
+        if len(c) != len(self.invariants):
+            raise BadInput(f"a character needs {len(self.invariants)} exponents")
+        return Character(self, c)
+
+    def characters(self):
+        """All characters, in mixed-radix order of c (c_1 fastest)."""
+        for n in range(self.order):
+            c = []
+            for d in self.invariants:
+                n, r = divmod(n, d)
+                c.append(r)
+            yield Character(self, tuple(c))
+
+    def trivial(self) -> "Character":
+        return Character(self, (0,) * len(self.invariants))
+
+    def class_index(self, f) -> int:
+        """Residue index of a class given as a polynomial; BadInput unless a unit."""
+        i = self._index(f)
+        if not self.is_unit[i]:
+            raise BadInput(f"class {poly_str(f, self.F)!r} is not coprime to the modulus "
+                           f"{poly_str(self.m, self.F)!r}")
+        return i
+
+    def power_map(self, k: int) -> np.ndarray:
+        """For each position p (element elements[p]) the position of its k-th power."""
+        d = np.array(self.invariants, dtype=np.int64)
+        Y = self.logs(self.elements)
+        Yk = (Y * k) % d
+        return self.positions_of_logs(Yk)
+
+    def positions_of_logs(self, Y: np.ndarray) -> np.ndarray:
+        """Positions of the elements with coordinates Y (rows), via a lookup on all logs."""
+        key_all = self._log_keys(self.logs(self.elements))
+        order = np.argsort(key_all)
+        key = self._log_keys(Y)
+        return order[np.searchsorted(key_all, key, sorter=order)]
+
+    def _log_keys(self, Y: np.ndarray) -> np.ndarray:
+        k = np.zeros(len(Y), dtype=np.int64)
+        for j, d in enumerate(self.invariants):
+            k = k * d + Y[:, j]
+        return k
+
+    def describe(self) -> str:
+        inv = " x ".join(f"Z/{d}" for d in self.invariants) or "trivial"
+        return f"(F_{self.F.q}[t]/({poly_str(self.m, self.F)}))^x = {inv}, order {self.order}"
+
+
+@functools.lru_cache(maxsize=32)
+def _group_cached(q: int, m_index: int) -> CharacterGroup:
+    from .poly import finite_field
+    F = finite_field(q)
+    return CharacterGroup(F, poly_from_index(m_index, F))
+
+
+def character_group(F: FiniteField, m) -> CharacterGroup:
+    """A cached :class:`CharacterGroup` for (F, m)."""
+    if m.degree() < 1 or not m.is_monic():
+        raise BadInput("modulus must be monic of degree >= 1")
+    return _group_cached(F.q, poly_index(m, F))
+
+
+@dataclass(frozen=True, eq=False)
+class Character:
+    """chi_c on (F_q[t]/m)^x; values are zeta_order^(exponent)."""
+
+    group: CharacterGroup
+    c: tuple[int, ...]
+
+    @functools.cached_property
+    def order(self) -> int:
+        from math import gcd, lcm
+        o = 1
+        for ci, di in zip(self.c, self.group.invariants):
+            o = lcm(o, di // gcd(ci, di))
+        return o
+
+    @functools.cached_property
+    def _weights(self) -> np.ndarray:
+        G = self.group
+        e = G.exponent
+        w = np.array([ci * (e // di) for ci, di in zip(self.c, G.invariants)], dtype=np.int64)
+        return (G._V @ w) % e if len(w) else np.zeros(len(G.radices), dtype=np.int64)
+
+    @functools.cached_property
+    def position_exponents(self) -> np.ndarray:
+        """Exponents (mod order) of chi on every unit, indexed by position."""
+        G = self.group
+        e = G.exponent
+        ex = np.zeros(1, dtype=np.int64)
+        for k, a in zip(G.radices, self._weights):
+            ex = (np.add.outer(np.arange(k, dtype=np.int64) * int(a), ex) % e).ravel()
+        return ex // (e // self.order)
+
+    @functools.cached_property
+    def table(self) -> np.ndarray:
+        """Exponent of chi(f) mod order for every residue index; -1 where chi(f) = 0."""
+        G = self.group
+        out = np.full(G.size, -1, dtype=np.int64)
+        out[G.elements] = self.position_exponents
+        return out
+
+    def exponent_at(self, f) -> int:
+        """chi(f) = zeta_order^result, or -1 if f is not coprime to m."""
+        return int(self.table[self.group._index(f)])
+
+    def is_trivial(self) -> bool:
+        return all(ci == 0 for ci in self.c)
+
+    @property
+    def is_even(self) -> bool:
+        """Trivial on the constants F_q^x."""
+        return int(self.table[self.group._gamma]) == 0
+
+    def conjugate(self) -> "Character":
+        return Character(self.group, tuple((-ci) % di for ci, di in zip(self.c, self.group.invariants)))
+
+    def power(self, k: int) -> "Character":
+        return Character(self.group, tuple((k * ci) % di for ci, di in zip(self.c, self.group.invariants)))
+
+    @functools.cached_property
+    def conductor_exponents(self) -> tuple[int, ...]:
+        """For each prime power P^e || m (in group.factors order) the exponent of P in the conductor."""
+        G = self.group
+        F, ring = G.F, G.ring
+        out = []
+        for P, e in G.factors:
+            cof = G.F.one_poly()
+            for Q, eq in G.factors:
+                if Q != P:
+                    cof *= Q**eq
+            fexp = e
+            for j in range(0, e):
+                base = cof * P**j
+                h = np.arange(F.q ** (G.M - base.degree()), dtype=np.int64)
+                idx = ring.mul_many(h, base)
+                # add 1: the constant term's lowest F_p digit
+                b0 = idx % F.p
+                idx = idx - b0 + (b0 + 1) % F.p
+                idx = idx[G.is_unit[idx]]
+                if np.all(self.table[idx] == 0):
+                    fexp = j
+                    break
+            out.append(fexp)
+        return tuple(out)
+
+    @property
+    def conductor(self):
+        f = self.group.F.one_poly()
+        for (P, _), fe in zip(self.group.factors, self.conductor_exponents):
+            f *= P**fe
+        return f
+
+    @property
+    def is_primitive(self) -> bool:
+        return self.conductor == self.group.m
+
+    def label(self) -> str:
+        return "chi[" + ",".join(map(str, self.c)) + "]"
+
+    def describe(self) -> str:
+        F = self.group.F
+        return (f"{self.label()} of order {self.order}, "
+                f"{'even' if self.is_even else 'odd'}, conductor {poly_str(self.conductor, F)}")

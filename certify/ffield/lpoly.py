@@ -1,0 +1,254 @@
+"""L-polynomials L(u, chi) = sum_{f monic} chi(f) u^(deg f) with exact coefficients.
+
+For chi non-trivial modulo m (degree M), the sum over monic f of degree n
+vanishes for n >= M (each residue class is hit q^(n-M) times and the
+character sums to 0), so L(u, chi) = sum_{n < M} c_n u^n with
+
+    c_n = sum_{f monic, deg f = n} chi(f) = sum_j N_{n,j} zeta_o^j,
+
+N_{n,j} the number of monic f of degree n with chi(f) = zeta_o^j (an exact
+integer count; o the order of chi).  The coefficients are elements of
+Z[zeta_o] (:mod:`certify.ffield.cyclo`).
+
+Inverse roots.  L(u, chi) = prod_j (1 - alpha_j u), so the alpha_j are the
+roots of the reversed polynomial u^D L(1/u).  They are isolated by Arb's
+polynomial root finder on ball coefficients (every returned ball holds
+exactly one root); when that fails (a repeated root) the roots are
+located among the roots of the norm N(u) = prod_sigma L^sigma(u) in Z[u],
+factored exactly, with multiplicities bounded by derivatives (see
+:func:`_roots_via_norm`).
+
+Weil's theorem (the Riemann hypothesis for curves) says |alpha| = sqrt(q) or
+1; the count of each kind is known from the conductor f and the parity:
+deg L = deg f - 1 + sum_{P | m, P not | f} deg P, and the number of roots of
+modulus 1 is [chi even] + sum_{P | m, P not | f} deg P.  :func:`weil_check`
+compares the certified balls with this (a consistency check; the race uses
+the theorem itself).
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass, field
+
+import numpy as np
+from flint import acb, acb_poly, fmpz_mpoly_ctx, fmpz_poly
+
+from ..arith import arb, workprec
+from ..errors import Inconsistent, PrecisionExhausted
+from .characters import Character
+from .cyclo import CycloRing, cyclo_ring
+from .poly import poly_str
+
+__all__ = ["LPolynomial", "l_polynomial", "weil_check", "WeilReport"]
+
+
+def _coefficient_counts(chi: Character) -> np.ndarray:
+    """N[n, j] = #{f monic, deg f = n, chi(f) = zeta_o^j} for n = 0..M-1."""
+    G = chi.group
+    q, M, o = G.F.q, G.M, chi.order
+    tab = chi.table
+    out = np.zeros((M, o), dtype=np.int64)
+    for n in range(M):
+        vals = tab[q**n: 2 * q**n]
+        vals = vals[vals >= 0]
+        out[n] = np.bincount(vals, minlength=o)
+    return out
+
+
+@dataclass(frozen=True, eq=False)
+class WeilReport:
+    """Outcome of comparing the root balls with Weil's theorem and the degree formula."""
+
+    degree: int
+    expected_degree: int
+    n_sqrt_q: int
+    n_unit: int
+    expected_unit: int
+    undecided: int
+
+    @property
+    def ok(self) -> bool:
+        return (self.degree == self.expected_degree and self.undecided == 0
+                and self.n_unit == self.expected_unit
+                and self.n_sqrt_q == self.degree - self.expected_unit)
+
+    def describe(self) -> str:
+        return (f"degree {self.degree} (expected {self.expected_degree}); "
+                f"{self.n_sqrt_q} roots of modulus sqrt(q), {self.n_unit} of modulus 1 "
+                f"(expected {self.expected_unit}); {self.undecided} undecided")
+
+
+@dataclass(frozen=True, eq=False)
+class LPolynomial:
+    """L(u, chi) with exact coefficients in Z[zeta_o] and certified inverse roots."""
+
+    chi: Character
+    ring: CycloRing
+    coeffs: tuple  # fmpz_poly elements of Z[zeta_o]; coeffs[0] = 1, trailing zeros trimmed
+    counts: np.ndarray = field(repr=False)
+
+    @property
+    def degree(self) -> int:
+        return len(self.coeffs) - 1
+
+    @property
+    def q(self) -> int:
+        return self.chi.group.F.q
+
+    def coefficient_balls(self, prec: int) -> list[acb]:
+        return [self.ring.to_acb(c, prec) for c in self.coeffs]
+
+    def coefficient_strings(self) -> list[str]:
+        """Each coefficient as a polynomial in zeta_o (exact)."""
+        out = []
+        for c in self.coeffs:
+            cs = [int(x) for x in c.coeffs()]
+            terms = [f"{v}" if j == 0 else (f"{v}*zeta^{j}" if j > 1 else f"{v}*zeta")
+                     for j, v in enumerate(cs) if v]
+            out.append(" + ".join(terms) if terms else "0")
+        return out
+
+    @functools.lru_cache(maxsize=8)
+    def inverse_roots(self, prec: int = 128) -> tuple[acb, ...]:
+        """Certified isolating balls of the inverse roots alpha_j (with multiplicity)."""
+        D = self.degree
+        if D == 0:
+            return ()
+        p = prec
+        while p <= 8 * prec + 1024:
+            with workprec(p):
+                rev = acb_poly(list(reversed(self.coefficient_balls(p))))
+                try:
+                    roots = rev.roots(tol=arb(2) ** (-(prec - 16)), maxprec=4 * p)
+                    return tuple(roots)
+                except (ValueError, ArithmeticError):
+                    pass
+            p *= 2
+        return _roots_via_norm(self, prec)
+
+    @functools.cached_property
+    def norm_polynomial(self) -> fmpz_poly:
+        """N(u) = prod over Galois conjugates of L(u, chi), in Z[u] (resultant in zeta)."""
+        ring = self.ring
+        o = ring.o
+        ctx = fmpz_mpoly_ctx.get(("u", "z"), "lex") if hasattr(fmpz_mpoly_ctx, "get") else \
+            fmpz_mpoly_ctx(2, "lex", ["u", "z"])
+        u, z = ctx.gens()
+        L = ctx.from_dict({}) if hasattr(ctx, "from_dict") else 0 * u
+        for n, c in enumerate(self.coeffs):
+            for j, v in enumerate(c.coeffs()):
+                if int(v):
+                    L += int(v) * u**n * z**j
+        phi = 0 * u
+        for j, v in enumerate(ring.phi.coeffs()):
+            if int(v):
+                phi += int(v) * z**j
+        if ring.phi.degree() == 1 and o <= 2:
+            # Z[zeta_1] = Z[zeta_2] = Z: substitute zeta = 1 or -1 directly
+            zval = 1 if o == 1 else -1
+            cs = [sum(int(v) * zval**j for j, v in enumerate(c.coeffs())) for c in self.coeffs]
+            return fmpz_poly(cs)
+        res = phi.resultant(L, "z")
+        d = res.to_dict() if hasattr(res, "to_dict") else dict(res.terms())
+        deg = max((k[0] for k in d), default=0)
+        cs = [0] * (deg + 1)
+        for k, v in d.items():
+            cs[k[0]] += int(v)
+        N = fmpz_poly(cs)
+        # the resultant is N up to sign (Phi_o is monic); normalise so that N(0) = 1
+        if N.coeffs() and int(N.coeffs()[0]) == -1:
+            N = -N
+        return N
+
+    def label(self) -> str:
+        return self.chi.label()
+
+    def describe(self) -> str:
+        F = self.chi.group.F
+        return (f"L(u, {self.chi.label()}) of degree {self.degree} over F_{F.q}, "
+                f"modulus {poly_str(self.chi.group.m, F)}")
+
+
+def _roots_via_norm(L: LPolynomial, prec: int) -> tuple[acb, ...]:
+    """Roots of u^D L(1/u) among the exact roots of the reversed norm polynomial.
+
+    Each irreducible factor of the reversed norm has simple, certified
+    isolated roots (``fmpz_poly.complex_roots``).  A candidate beta is
+    discarded when the ball of L's reversed polynomial at beta excludes 0; for
+    the others an upper bound on the multiplicity is the least k with the
+    k-th derivative nonzero on the ball.  If the bounds add up to D, each bound
+    is the true multiplicity (the D roots are among the candidates).
+    """
+    D = L.degree
+    N = L.norm_polynomial
+    rev_n = fmpz_poly(list(reversed(N.coeffs())))
+    _, facs = rev_n.factor()
+    cands = []
+    for g, _ in facs:
+        if g.degree() < 1:
+            continue
+        for r, _m in g.complex_roots():
+            cands.append(r)
+    p = prec
+    while p <= 16 * prec:
+        with workprec(p):
+            rev = acb_poly(list(reversed(L.coefficient_balls(p))))
+            out = []
+            total = 0
+            for r0 in cands:
+                r = acb(r0)
+                if not rev(r).contains(0):
+                    continue
+                k = 1
+                der = rev.derivative()
+                while k < D and der(r).contains(0):
+                    der = der.derivative()
+                    k += 1
+                out.extend([r] * k)
+                total += k
+            if total == D:
+                return tuple(out)
+        p *= 2
+    raise PrecisionExhausted(f"not certified: could not isolate the inverse roots of {L.label()}")
+
+
+def l_polynomial(chi: Character) -> LPolynomial:
+    """The L-polynomial of a non-trivial character, from exact character sums."""
+    if chi.is_trivial():
+        raise ValueError("L(u, chi_0) is not a polynomial; the trivial character is handled apart")
+    counts = _coefficient_counts(chi)
+    ring = cyclo_ring(chi.order)
+    coeffs = [ring.from_counts(counts[n]) for n in range(counts.shape[0])]
+    if coeffs[0] != ring.one:
+        raise Inconsistent("L(0, chi) is not 1")
+    while len(coeffs) > 1 and coeffs[-1].is_zero():
+        coeffs.pop()
+    return LPolynomial(chi, ring, tuple(coeffs), counts)
+
+
+def expected_shape(chi: Character) -> tuple[int, int]:
+    """(degree of L, number of inverse roots of modulus 1) from the conductor and parity."""
+    G = chi.group
+    fexp = chi.conductor_exponents
+    fdeg = sum(P.degree() * fe for (P, _), fe in zip(G.factors, fexp))
+    extra = sum(P.degree() for (P, _), fe in zip(G.factors, fexp) if fe == 0)
+    return fdeg - 1 + extra, int(chi.is_even) + extra
+
+
+def weil_check(L: LPolynomial, prec: int = 128) -> WeilReport:
+    """Classify each root ball as |alpha|^2 = q or 1 and compare with the expected shape."""
+    deg_exp, unit_exp = expected_shape(L.chi)
+    q = L.q
+    n_q = n_1 = und = 0
+    with workprec(prec):
+        for a in L.inverse_roots(prec):
+            a2 = (a * a.conjugate()).real
+            in_q, in_1 = a2.contains(q), a2.contains(1)
+            if in_q and not in_1:
+                n_q += 1
+            elif in_1 and not in_q:
+                n_1 += 1
+            else:
+                und += 1
+    return WeilReport(L.degree, deg_exp, n_q, n_1, unit_exp, und)
