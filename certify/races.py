@@ -18,7 +18,7 @@ from fractions import Fraction
 from . import __version__
 from .arith import acb, arb, flint_version, workprec
 from .density.bessel import BesselVariable, ResidualGroup, density_enclosure, truncation_bound
-from .errors import BadInput, PrecisionExhausted
+from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.question import RaceQuestion, mean_of, spectral_groups
 from .result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
 from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
@@ -293,15 +293,26 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
                 height = max(8.0, height_factor * s * xi_max / J01)
                 grow = max(1.0, s * xi_max / J01)
                 bits = int(digits * 3.33 + 2 * moments * math.log2(grow * 4) + 40)
-                sps = [store.get(c, n, g.parity, height, width, moments, bits)
-                       for (c, n) in g.primitive_keys]
-                zs = sorted((z for sp in sps for z in sp.zeros.zeros if float(z.mid()) <= height),
-                            key=lambda z: float(z.mid()))
-                T = min(sp.height for sp in sps)
-                div = 2 if g.is_real else 1
-                target_sums = [s_k / div for s_k in sps[0].power_sums[:moments]]
-                R = residual_sums(target_sums, zs)
-                notes = residual_checks(g.label, R, T, g.primitive_keys[0][0], len(g.primitive_keys))
+                fraction = 0.25
+                while True:
+                    sps = [store.get(c, n, g.parity, height, width, moments, bits, fraction)
+                           for (c, n) in g.primitive_keys]
+                    zs = sorted((z for sp in sps for z in sp.zeros.zeros),
+                                key=lambda z: float(z.mid()))
+                    T = min(sp.height for sp in sps)
+                    div = 2 if g.is_real else 1
+                    target_sums = [s_k / div for s_k in sps[0].power_sums[:moments]]
+                    R = residual_sums(target_sums, zs)
+                    try:
+                        notes = residual_checks(g.label, R, T, g.primitive_keys[0][0],
+                                                len(g.primitive_keys))
+                        break
+                    except Inconsistent:
+                        # a zero may hide between two grid points: search on a finer grid,
+                        # and refuse only if the residual sums still disagree
+                        if fraction < 0.25 / 16 + 1e-12:
+                            raise
+                        fraction /= 4
                 reports.append(GroupReport(g.label, g.primitive_keys, g.scale, T, tuple(zs),
                                            tuple(target_sums), tuple(R),
                                            tuple(sp.central for sp in sps), tuple(notes)))

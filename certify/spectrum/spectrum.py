@@ -58,16 +58,22 @@ class SpectrumStore:
     z_calls: int = 0
 
     def get(self, conductor: int, label: int, parity: int, height: float, width: float,
-            moments: int, moment_bits: int) -> PrimitiveSpectrum:
+            moments: int, moment_bits: int, fraction: float = 0.25) -> PrimitiveSpectrum:
+        """The spectrum of chi_{conductor,label} with at least what is asked.
+
+        ``fraction`` is the zero-search grid step as a fraction of the mean
+        spacing; asking for a finer grid than the stored one searches again.
+        """
         key = (conductor, label)
         sp = self.spectra.get(key)
         if sp is None and self.backend is not None:
             sp = self.backend.load(key)
         changed = False
-        if sp is None or sp.height < height or sp.zeros.width > width:
-            start = sp.zeros if sp is not None else None
+        regrid = sp is not None and sp.zeros.grid_fraction > fraction
+        if sp is None or regrid or sp.height < height or sp.zeros.width > width:
+            start = sp.zeros if sp is not None and not regrid else None
             zl = find_zeros(conductor, label, max(height, sp.height if sp else 0.0), width,
-                            start=start)
+                            fraction=fraction, start=start)
             self.z_calls += zl.z_calls - (start.z_calls if start else 0)
             sums = sp.power_sums if sp else []
             bits = sp.power_sum_bits if sp else 0
