@@ -20,7 +20,7 @@ def test_rayleigh_sums_against_bessel_zeros():
         assert 0 <= float(rayleigh_sigma(k)) - float(ref) < 1e-9
     assert rayleigh_sigma(1) == Fraction(1, 4) and rayleigh_sigma(2) == Fraction(1, 32)
     lo, hi = check_j01()
-    assert lo < mpmath.besseljzero(0, 1) < hi
+    assert float(lo) < float(mpmath.besseljzero(0, 1)) < float(hi)
     mpmath.mp.dps = 15
 
 
