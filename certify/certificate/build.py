@@ -1,0 +1,281 @@
+"""Build a certificate from a race result.
+
+:func:`certify_with_certificate` runs the race engine with its own spectrum
+store (so that each isolated zero can be attributed to its L-function),
+gathers the evidence for the hypotheses and returns the frozen
+:class:`~certify.certificate.model.Certificate`.  Nothing in the certificate
+is a float that matters: balls are exact strings, bounds are decimals rounded
+up, enclosure ends are decimals rounded outward.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from fractions import Fraction
+
+from ..arith import arb, arb_to_fraction, certified_digits, decimal_down, decimal_up, workprec
+from ..errors import PrecisionExhausted
+from ..race.question import RaceQuestion
+from ..races import DEFAULT_DIGITS, RaceResult, certify_race
+from ..result import CAUTION
+from ..spectrum.spectrum import SpectrumStore
+from .evidence import exact_ends, moment_consequences, refine_ordinate, relation_search
+from .model import Certificate, ball_record
+from .numbers import places_for, sci, sci_bound
+
+#: Ordinates used in the integer-relation search, their enclosure width and the lattice scale.
+RELATION_SIZE = 10
+RELATION_WIDTH_BITS = 100
+RELATION_SCALE_BITS = 96
+
+PUBLISHED_GRH = ("Published interval verifications of GRH, not redone here: Math. Comp. 61 "
+                 "(1993), every conductor < 13 to height 10000; Math. Comp. (2016), every "
+                 "primitive character of conductor <= 400000 to a height of order 10^8/q.")
+
+NORMALISATION = ("E(x) = (log x / sqrt x) * phi(q) * sum_a w_a pi(x; q, a); under GRH and LI "
+                 "E has the limit law of X = mu + sum_chi sum_{gamma_chi > 0} "
+                 "2 |W(chi)| / sqrt(1/4 + gamma^2) cos(Theta), Theta independent uniform, "
+                 "W(chi) = sum_a w_a chi(a), mu = -sum_a w_a c(q, a).")
+
+DEFINITION = ("delta = lim_{X -> oo} (1 / log X) * integral over {2 <= x <= X : "
+              "sum_a w_a pi(x; q, a) > 0} of dx / x (logarithmic density), which equals "
+              "P(X > 0) for the limit law above.")
+
+
+def input_digest(question: RaceQuestion, digits: int) -> str:
+    """sha256 of the canonical description of what was asked."""
+    payload = json.dumps({"modulus": question.modulus, "kind": question.kind,
+                          "weights": [[a, str(w)] for a, w in question.weights],
+                          "digits": digits}, sort_keys=True)
+    return "sha256:" + hashlib.sha256(payload.encode()).hexdigest()
+
+
+def reproduce_command(question: RaceQuestion, digits: int) -> str:
+    if question.kind == "two-way":
+        a, b = question.classes
+        return f"certify certificate {question.modulus} {a} {b} --digits {digits}"
+    if question.kind == "residues":
+        return f"certify certificate {question.modulus} --residues --digits {digits}"
+    ws = " ".join(f"{a}:{w}" for a, w in question.weights)
+    return f"certify certificate {question.modulus} --weights {ws} --digits {digits}"
+
+
+def question_record(question: RaceQuestion) -> dict:
+    return {
+        "kind": question.kind,
+        "modulus": question.modulus,
+        "classes": list(question.classes),
+        "weights": [{"class": a, "weight": str(w)} for a, w in question.weights],
+        "label": question.label,
+        "statement": question.statement,
+        "normalisation": NORMALISATION,
+        "definition": DEFINITION,
+    }
+
+
+def answer_record(result: RaceResult) -> dict:
+    """The enclosure widened outward to printable decimals, with digits and gaps."""
+    lo, hi = result.density.lower, result.density.upper
+    width = hi - lo
+    places = places_for(width)
+    # a margin of width/10^6 keeps the stored ends strictly outside the engine's
+    # (so a re-computation from re-parsed balls, which may be wider by an ulp, still fits)
+    margin = width / 10**6 if width > 0 else Fraction(1, 10 ** (places + 3))
+    lower = decimal_down(lo - margin, places)
+    upper = decimal_up(hi + margin, places)
+    flo, fhi = Fraction(lower), Fraction(upper)
+    return {
+        "enclosure": {"lower": lower, "upper": upper},
+        "engine_ball": ball_record(result.ball),
+        "width": sci(fhi - flo, 3, up=True),
+        "certified_digits": certified_digits(flo, fhi),
+        "gap_to_half": {"lower": sci(flo - Fraction(1, 2), 4, up=False),
+                        "upper": sci(fhi - Fraction(1, 2), 4, up=True)},
+        "gap_to_one": {"lower": sci(1 - fhi, 4, up=False), "upper": sci(1 - flo, 4, up=True)},
+        "target_width": f"1e-{result.digits_requested}",
+        "target_met": bool(fhi - flo <= Fraction(1, 10**result.digits_requested)),
+        "mean": str(result.mean),
+        "variance": ball_record(result.variance),
+    }
+
+
+def _spectrum_record(result: RaceResult, store: SpectrumStore) -> dict:
+    groups = []
+    for g in result.groups:
+        keys = list(g.primitive_keys)
+        # attribute each zero to its L-function by identity with the store's lists
+        owner = {}
+        for i, key in enumerate(keys):
+            for z in store.spectra[key].zeros.zeros:
+                owner[id(z)] = i
+        zeros = []
+        for z in g.zeros:
+            if id(z) not in owner:
+                raise PrecisionExhausted("not certified: a zero of the result is not in the "
+                                         "spectrum store (cannot attribute it)")
+            zeros.append({"l": owner[id(z)], **ball_record(z)})
+        sp0 = store.spectra[keys[0]]
+        ls = []
+        for i, key in enumerate(keys):
+            sp = store.spectra[key]
+            ls.append({"conductor": key[0], "label": key[1], "parity": sp.parity,
+                       "central_value": {"re": ball_record(g.central_values[i].real),
+                                         "im": ball_record(g.central_values[i].imag)}})
+        groups.append({
+            "label": g.label,
+            "real": len(keys) == 1,
+            "scale": ball_record(g.scale),
+            "isolation_height": repr(float(g.height)),
+            "l_functions": ls,
+            "moments": {"count": len(g.target_sums), "divisor": 2 if len(keys) == 1 else 1,
+                        "source_count": len(sp0.power_sums), "source_bits": sp0.power_sum_bits,
+                        "target_sums": [ball_record(t) for t in g.target_sums],
+                        "residual_sums": [ball_record(r) for r in g.residual]},
+            "zeros": zeros,
+            "checks": list(g.notes),
+        })
+    return {"groups": groups}
+
+
+def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
+    """GRH and LI with structured evidence (each item: kind, text, data)."""
+    grh_ev, li_ev = [], []
+    ordinates = []  # (height, group index, l index, zero ball) for the relation search
+    for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
+        prec = int(result.parameters.get("working_precision_bits", 128))
+        cons = moment_consequences(list(g.residual), list(g.zeros), prec=max(prec, 128))
+        for li, lf in enumerate(rec["l_functions"]):
+            c, n = lf["conductor"], lf["label"]
+            count = sum(1 for z in rec["zeros"] if z["l"] == li)
+            grh_ev.append({
+                "kind": "zeros-on-critical-line",
+                "l_function": f"{c}.{n}",
+                "text": (f"L(s, chi_{{{c},{n}}}): {count} zeros on the critical line with ordinates "
+                         f"in (0, {float(g.height):.6g}], each certified by a sign change of the "
+                         "Hardy Z-function at the two ends of its enclosure"),
+                "data": {"conductor": c, "label": n, "zeros": count,
+                         "isolation_height": rec["isolation_height"]},
+            })
+        h = cons["complete_below"]
+        grh_ev.append({
+            "kind": "moment-completeness",
+            "group": g.label,
+            "text": (f"{g.label}: assuming GRH, no ordinate below {float(h):.6g} is missing from "
+                     f"the isolated list: a missing one would exceed the exact residual power sum "
+                     f"R_{cons['moment_index']} by itself (zeros off the line are not counted; "
+                     "this is not a proof of GRH)"),
+            "data": {"complete_below": decimal_down(h, 6), "moment_index": cons["moment_index"]},
+        })
+        for li, lf in enumerate(rec["l_functions"]):
+            c, n = lf["conductor"], lf["label"]
+            cv = g.central_values[li]
+            li_ev.append({
+                "kind": "central-value",
+                "l_function": f"{c}.{n}",
+                "text": f"L(1/2, chi_{{{c},{n}}}) = {cv.str(10)}, an enclosure excluding 0",
+                "data": {"re": lf["central_value"]["re"], "im": lf["central_value"]["im"]},
+            })
+        n_simple = cons["simple"]
+        li_ev.append({
+            "kind": "simple-zeros",
+            "group": g.label,
+            "text": (f"{g.label}: each of the {len(g.zeros)} isolated zeros has odd order (a sign "
+                     f"change in its own disjoint interval); {n_simple} of them are proven simple "
+                     "assuming GRH, since a multiple zero would leave two copies in the exact "
+                     "residual power sums"),
+            "data": {"isolated": len(g.zeros), "proven_simple": n_simple},
+        })
+        for z in rec["zeros"]:
+            ordinates.append((Fraction(z["mid"]), gi, z["l"], z))
+    ordinates.sort(key=lambda t: t[0])
+    chosen = ordinates[:relation_size]
+    if len(chosen) >= 2:
+        refined = []
+        for _, gi, li, z in chosen:
+            lf = spectrum["groups"][gi]["l_functions"][li]
+            zb = next(zz for zz in result.groups[gi].zeros
+                      if ball_record(zz)["mid"] == z["mid"])
+            refined.append((lf, refine_ordinate(lf["conductor"], lf["label"], zb,
+                                                RELATION_WIDTH_BITS)))
+        rs = relation_search([b for _, b in refined], RELATION_SCALE_BITS)
+        K = rs["size"]
+        if rs["candidate"] is None:
+            text = (f"integer-relation search (LLL) among the first {K} ordinates: none found; "
+                    f"every integer relation among them has Euclidean norm >= "
+                    f"{float(rs['norm_lower_bound']):.6g}, so none has all |k_i| <= "
+                    f"{rs['coefficient_bound']}")
+            if rs["linear_form_lower_bound"] is not None:
+                text += (f"; |sum k_i gamma_i| >= {float(rs['linear_form_lower_bound']):.3e} "
+                         "for every such non-zero k")
+        else:
+            text = (f"integer-relation search (LLL) among the first {K} ordinates: candidate "
+                    f"relation {rs['candidate']} at this precision (not confirmed, not refuted)")
+        li_ev.append({
+            "kind": "integer-relation-search",
+            "text": text,
+            "data": {
+                "size": K, "scale_bits": rs["scale_bits"],
+                "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **ball_record(b)}
+                              for lf, b in refined],
+                "norm_lower_bound": decimal_down(rs["norm_lower_bound"], 6),
+                "coefficient_bound": rs["coefficient_bound"],
+                "linear_form_lower_bound": (None if rs["linear_form_lower_bound"] is None
+                                            else sci(rs["linear_form_lower_bound"], 4, up=False)),
+                "candidate": rs["candidate"],
+            },
+        })
+    grh_ev.append({"kind": "published-verification", "text": PUBLISHED_GRH, "data": {}})
+    by_name = {h.name: h for h in result.hypotheses}
+    out = [
+        {"name": "GRH", "statement": by_name["GRH"].statement, "status": "assumed",
+         "evidence": grh_ev, "reference": by_name["GRH"].reference},
+        {"name": "LI", "statement": by_name["LI"].statement, "status": "assumed",
+         "evidence": li_ev, "reference": by_name["LI"].reference},
+    ]
+    for h in result.hypotheses:
+        if h.name not in ("GRH", "LI"):
+            out.append({"name": h.name, "statement": h.statement, "status": h.status,
+                        "evidence": [{"kind": "note", "text": e, "data": {}} for e in h.evidence],
+                        "reference": h.reference})
+    return out
+
+
+def certificate_from_result(result: RaceResult, store: SpectrumStore,
+                            relation_size: int = RELATION_SIZE) -> Certificate:
+    """The certificate of a race result computed with ``store``."""
+    spectrum = _spectrum_record(result, store)
+    params = {k: v for k, v in result.parameters.items()}
+    params["digits_requested"] = result.digits_requested
+    params["density_target_width"] = repr(10.0 ** (-result.digits_requested))
+    prov = dict(result.provenance)
+    if not prov.get("command_line"):
+        prov["command_line"] = reproduce_command(result.question, result.digits_requested)
+    prov["input_digest"] = input_digest(result.question, result.digits_requested)
+    prov["timings_seconds"] = dict(result.timings)
+    budget = [{"name": e.name, "bound": sci_bound(e.bound, 3), "description": e.description}
+              for e in result.budget]
+    refs = list(result.references) + [
+        "Lattice reduction: A. K. Lenstra, H. W. Lenstra and L. Lovasz, Factoring polynomials "
+        "with rational coefficients, Mathematische Annalen 261 (1982).",
+    ]
+    return Certificate(
+        question=question_record(result.question),
+        answer=answer_record(result),
+        hypotheses=_hypotheses(result, spectrum, relation_size),
+        error_budget=budget,
+        parameters=params,
+        spectrum=spectrum,
+        provenance=prov,
+        references=refs,
+        caution=CAUTION + " Re-check this file with `certify verify`.",
+    )
+
+
+def certify_with_certificate(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
+                             store: SpectrumStore | None = None, command_line: str = ""
+                             ) -> tuple[RaceResult, Certificate]:
+    """Run the race engine and build the certificate of its result."""
+    store = store if store is not None else SpectrumStore()
+    result = certify_race(question, digits, store=store, command_line=command_line)
+    return result, certificate_from_result(result, store)
