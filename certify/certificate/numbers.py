@@ -55,3 +55,14 @@ def places_for(width: Fraction) -> int:
     while Fraction(1, 10**p) > width / 1000 and p < 200:
         p += 1
     return p
+
+
+def interval_str(lo: Fraction, hi: Fraction) -> str:
+    """``[lo, hi]`` printed with enough places to show the width, rounded outward."""
+    from ..arith import decimal_down, decimal_up
+
+    w = hi - lo
+    p = 4
+    while p < 80 and Fraction(1, 10**p) > w / 10:
+        p += 1
+    return f"[{decimal_down(Fraction(lo), p)}, {decimal_up(Fraction(hi), p)}]"
