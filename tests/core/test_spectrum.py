@@ -87,3 +87,27 @@ def test_power_sums_against_isolated_zeros_plus_tail(q, label, real):
     assert 0.9 * tail1 < float(R[0].mid()) < 1.1 * tail1
     tail2 = n_sets * (math.log(q * T / (2 * math.pi)) + 1 / 3) / (2 * math.pi * 3 * T**3)
     assert 0.8 * tail2 < float(R[1].mid()) < 1.2 * tail2
+
+
+def test_power_sum_formula_inverts_the_series_identity_exactly():
+    """sum_m (-1)^(m+1) S_m (x + x^2)^m / m = sum_k a_k x^k, inverted by the closed form (sympy)."""
+    import sympy as sp
+    from certify.spectrum.moments import power_sums_from_coefficients
+
+    M = 12
+    x = sp.symbols("x")
+    S = sp.symbols(f"S1:{M + 1}")
+    lhs = sp.expand(sum((-1) ** (m + 1) * S[m - 1] * (x + x**2) ** m / m for m in range(1, M + 1)))
+    a = [lhs.coeff(x, k) for k in range(1, M + 1)]  # a_k = 2 Re c_k
+    for m in range(1, M + 1):
+        recovered = sum(sp.binomial(2 * m - j - 1, m - 1) * (-1) ** (j - 1) * j * a[j - 1]
+                        for j in range(1, m + 1))
+        assert sp.expand(recovered - S[m - 1]) == 0
+    # and the package's implementation is this formula (with Re c_j = a_j / 2)
+    vals = [sp.Rational(k, 7) for k in range(1, M + 1)]
+    subs = dict(zip(S, vals))
+    re_c = [arb(int(sp.numer(v)), 1) / int(sp.denom(v)) / 2 for v in (ak.subs(subs) for ak in a)]
+    with workprec(200):
+        got = power_sums_from_coefficients(re_c, M)
+    for g, v in zip(got, vals):
+        assert g.contains(arb(int(sp.numer(v))) / int(sp.denom(v)))
