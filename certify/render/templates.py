@@ -1,0 +1,76 @@
+"""Finding and loading the jinja2 templates (a checkout or an installed package).
+
+The templates live in the top-level ``templates/`` folder of the project;
+``certify/templates`` points there (a symbolic link in the repository, a real
+folder in an installed wheel, where ``package-data`` copies the files).  The
+environment variable ``CERTIFY_TEMPLATES`` overrides both.
+"""
+
+from __future__ import annotations
+
+import os
+from functools import lru_cache
+from importlib import resources
+from pathlib import Path
+
+from ..errors import BadInput
+
+MARKER = "certificate.md.j2"
+
+
+def template_dir() -> Path:
+    """The first folder holding the templates: $CERTIFY_TEMPLATES, the package, the checkout."""
+    candidates = []
+    if os.environ.get("CERTIFY_TEMPLATES"):
+        candidates.append(Path(os.environ["CERTIFY_TEMPLATES"]))
+    try:
+        candidates.append(Path(str(resources.files("certify").joinpath("templates"))))
+    except (ModuleNotFoundError, TypeError):  # pragma: no cover - zipped installs
+        pass
+    candidates.append(Path(__file__).resolve().parents[2] / "templates")
+    for c in candidates:
+        if (c / MARKER).is_file():
+            return c
+    raise BadInput("the certificate templates were not found (looked in "
+                   + ", ".join(str(c) for c in candidates) + "); reinstall certify")
+
+
+def _latex_escape(text) -> str:
+    import re
+
+    s = str(text)
+    repl = {"\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "_": r"\_", "^": r"\^{}",
+            "#": r"\#", "$": r"\$", "%": r"\%", "&": r"\&", "~": r"\~{}"}
+    s = "".join(repl.get(ch, ch) for ch in s)
+    # readable mathematics for the few patterns certify writes
+    s = re.sub(r"chi\\_\\\{(\d+),(\d+)\\\}", r"$\\chi_{\1,\2}$", s)
+    s = re.sub(r"\bgamma\\_i\b", r"$\\gamma_i$", s)
+    s = re.sub(r"\bk\\_i\b", r"$k_i$", s)
+    s = s.replace("<=", r"$\le$").replace(">=", r"$\ge$").replace("!=", r"$\ne$")
+    s = s.replace("+/-", r"$\pm$")
+    s = re.sub(r"\bdelta\b", r"$\\delta$", s)
+    s = re.sub(r"(?<![\\$])\bpi\(", r"$\\pi$(", s)
+    return s
+
+
+@lru_cache(maxsize=2)
+def environment(kind: str):
+    """A jinja2 environment with StrictUndefined: ``"text"`` (Markdown) or ``"latex"``."""
+    import jinja2
+
+    loader = jinja2.FileSystemLoader(str(template_dir()))
+    common = dict(loader=loader, undefined=jinja2.StrictUndefined, keep_trailing_newline=True,
+                  trim_blocks=True, lstrip_blocks=True, autoescape=False)
+    if kind == "latex":
+        env = jinja2.Environment(block_start_string="<%", block_end_string="%>",
+                                 variable_start_string="<<", variable_end_string=">>",
+                                 comment_start_string="<#", comment_end_string="#>", **common)
+        env.filters["tex"] = _latex_escape
+    else:
+        env = jinja2.Environment(**common)
+        env.filters["cell"] = lambda t: str(t).replace("|", "\\|")
+    return env
+
+
+def render_template(name: str, context: dict, kind: str = "text") -> str:
+    return environment(kind).get_template(name).render(**context)
