@@ -1,0 +1,332 @@
+"""Running batch tasks: in this process, on local processes, or on dask.distributed.
+
+Two kinds of task, both plain functions of picklable arguments so that any
+executor can run them:
+
+* :func:`spectrum_task` computes (or extends) one primitive spectrum and
+  returns it encoded (:mod:`certify.batch.serial`) with the time spent on
+  zeros, power sums and L(1/2);
+* :func:`race_task` certifies a few races of one modulus from spectra shipped
+  with the task, and returns each result's JSON dictionary.
+
+Workers never write the cache: the coordinating process does, one
+transaction per spectrum, so a worker killed at any moment loses only its
+current task.  Spectra travel with the tasks, so a dask worker on another
+machine needs no shared file system.
+
+python-flint's working precision is process-wide, so tasks in one process
+run one at a time (a lock), even on a dask worker started with several
+threads; start workers with ``--nthreads 1`` and as many processes as cores.
+"""
+
+from __future__ import annotations
+
+import collections
+import os
+import sys
+import threading
+import time
+
+from ..errors import CertifyError
+from .serial import decode, encode
+
+_LOCK = threading.Lock()
+_DECODED: "collections.OrderedDict[str, object]" = collections.OrderedDict()
+_DECODED_MAX = 2000
+
+
+def _spectrum_of(blob: bytes, digest: str):
+    sp = _DECODED.get(digest)
+    if sp is None:
+        sp = decode(blob, digest)
+        _DECODED[digest] = sp
+        if len(_DECODED) > _DECODED_MAX:
+            _DECODED.popitem(last=False)
+    return sp
+
+
+# --- tasks -------------------------------------------------------------------
+
+def spectrum_task(req: dict, start: tuple | None = None) -> dict:
+    """Compute the spectrum ``req`` asks for, extending ``start`` (blob, digest) if given.
+
+    ``req`` has conductor, label, parity, height, width, moments, bits.
+    Mirrors :meth:`certify.spectrum.spectrum.SpectrumStore.get`, timing each part.
+    """
+    from ..spectrum.moments import central_value, zero_power_sums
+    from ..spectrum.spectrum import PrimitiveSpectrum
+    from ..spectrum.zeros import find_zeros
+
+    with _LOCK:
+        c, n, par = int(req["conductor"]), int(req["label"]), int(req["parity"])
+        h, w = float(req["height"]), float(req["width"])
+        k, b = int(req["moments"]), int(req["bits"])
+        fraction = float(req.get("fraction", 0.25))
+        sp = decode(*start) if start is not None else None
+        t = {"zeros": 0.0, "moments": 0.0, "central": 0.0}
+        z_calls = 0
+        t0 = time.perf_counter()
+        if sp is None or sp.height < h or sp.zeros.width > w or sp.zeros.grid_fraction > fraction:
+            base = sp.zeros if sp is not None and sp.zeros.grid_fraction <= fraction else None
+            zl = find_zeros(c, n, max(h, sp.height if sp else 0.0), min(w, sp.zeros.width if sp else w),
+                            fraction=fraction, start=base)
+            z_calls = zl.z_calls - (base.z_calls if base else 0)
+            sp = PrimitiveSpectrum(c, n, par, zl, sp.power_sums if sp else [],
+                                   sp.power_sum_bits if sp else 0, sp.central if sp else None)
+        t1 = time.perf_counter()
+        t["zeros"] = t1 - t0
+        if len(sp.power_sums) < k or sp.power_sum_bits < b:
+            sums = zero_power_sums(c, n, par, max(k, len(sp.power_sums)), max(b, sp.power_sum_bits))
+            sp = PrimitiveSpectrum(c, n, par, sp.zeros, sums, max(b, sp.power_sum_bits), sp.central)
+        t2 = time.perf_counter()
+        t["moments"] = t2 - t1
+        if sp.central is None:
+            sp = PrimitiveSpectrum(c, n, par, sp.zeros, sp.power_sums, sp.power_sum_bits,
+                                   central_value(c, n))
+        t["central"] = time.perf_counter() - t2
+        blob, digest = encode(sp)
+        return {"key": [c, n], "blob": blob, "digest": digest, "timings": t, "z_calls": z_calls,
+                "zeros": len(sp.zeros.zeros), "height": sp.height, "pid": os.getpid()}
+
+
+def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -> list[dict]:
+    """Certify each (slug, question) of ``items`` from the shipped ``spectra``.
+
+    ``spectra`` maps "conductor.label" to (blob, digest).  Each race gets its
+    own view of them, so one race extending a spectrum cannot change another's
+    enclosure.  Spectra a race had to extend come back encoded in
+    ``new_spectra`` for the coordinator to store.
+    """
+    from ..races import certify_race
+    from .cache import CachedStore
+    from .plan import install_fast_planner
+
+    with _LOCK:
+        install_fast_planner()
+        base = {}
+        digests = {}
+        for key, (blob, digest) in spectra.items():
+            c, n = (int(x) for x in key.split("."))
+            base[(c, n)] = _spectrum_of(blob, digest)
+            digests[key] = digest
+        out = []
+        for slug, question in items:
+            store = CachedStore(backend=None, spectra=base)
+            t0 = time.perf_counter()
+            try:
+                r = certify_race(question, digits, store=store, command_line=command_line)
+            except CertifyError as exc:
+                out.append({"slug": slug, "ok": False, "error": str(exc),
+                            "error_kind": type(exc).__name__,
+                            "seconds": time.perf_counter() - t0})
+                continue
+            d = r.to_dict()
+            used = sorted({f"{c}.{n}" for g in r.groups for (c, n) in g.primitive_keys})
+            new = []
+            for key in dict.fromkeys(store.computed):
+                blob, digest = encode(store.spectra[key])
+                new.append({"key": list(key), "blob": blob, "digest": digest})
+            d["batch"] = {
+                "slug": slug,
+                "spectra": {k: digests.get(k, "computed in this task") for k in used},
+                "spectra_extended_in_task": [f"{c}.{n}" for c, n in dict.fromkeys(store.computed)],
+            }
+            out.append({"slug": slug, "ok": True, "result": d, "target_met": r.target_met,
+                        "timings": dict(r.timings), "seconds": time.perf_counter() - t0,
+                        "z_calls": store.z_calls, "new_spectra": new})
+        return out
+
+
+# --- executors ---------------------------------------------------------------
+
+class InlineExecutor:
+    """Runs tasks in this process, one after the other."""
+
+    name = "inline"
+    workers = 1
+
+    def submit(self, fn, *args):
+        class _Done:
+            def __init__(self, value=None, error=None):
+                self.value, self.error = value, error
+
+        try:
+            return _Done(fn(*args))
+        except BaseException as exc:  # re-raised by result()
+            return _Done(error=exc)
+
+    @staticmethod
+    def result(fut):
+        if fut.error is not None:
+            raise fut.error
+        return fut.value
+
+    def wait_one(self, pending):
+        return [pending[0]]
+
+    def close(self):
+        pass
+
+
+class ProcessExecutor:
+    """Local worker processes (spawned, so no state is shared by fork)."""
+
+    name = "local processes"
+
+    def __init__(self, workers: int):
+        import concurrent.futures as cf
+        import multiprocessing as mp
+
+        self.workers = workers
+        self._cf = cf
+        self.pool = cf.ProcessPoolExecutor(max_workers=workers, mp_context=mp.get_context("spawn"))
+
+    def submit(self, fn, *args):
+        return self.pool.submit(fn, *args)
+
+    @staticmethod
+    def result(fut):
+        return fut.result()
+
+    def wait_one(self, pending):
+        done, _ = self._cf.wait(pending, return_when=self._cf.FIRST_COMPLETED)
+        return list(done)
+
+    def close(self):
+        self.pool.shutdown(wait=True, cancel_futures=True)
+
+
+class DaskExecutor:
+    """Tasks on a dask.distributed cluster given by its scheduler address.
+
+    dask is an optional extra (``pip install "dask[distributed]"``), imported
+    only here.  The workers must be able to import certify (same version).
+    """
+
+    name = "dask.distributed"
+
+    def __init__(self, address: str, timeout: float = 30.0):
+        try:
+            from dask.distributed import Client, wait
+        except ImportError:
+            from ..errors import BadInput
+
+            raise BadInput("--scheduler needs dask.distributed: pip install \"dask[distributed]\"") \
+                from None
+        from ..errors import BadInput
+
+        try:
+            self.client = Client(address, timeout=timeout, set_as_default=False)
+        except (OSError, TimeoutError) as exc:
+            raise BadInput(f"cannot reach the dask scheduler at {address}: {exc}") from None
+        self._wait = wait
+        info = self.client.scheduler_info()
+        self.workers = max(1, sum(int(w.get("nthreads", 1)) for w in info.get("workers", {}).values()))
+        self.address = address
+
+    def submit(self, fn, *args):
+        return self.client.submit(fn, *args, pure=False)
+
+    @staticmethod
+    def result(fut):
+        return fut.result()
+
+    def wait_one(self, pending):
+        res = self._wait(pending, return_when="FIRST_COMPLETED")
+        return list(res.done)
+
+    def close(self):
+        self.client.close()
+
+
+def make_executor(workers: int | None = None, scheduler: str | None = None):
+    if scheduler:
+        return DaskExecutor(scheduler)
+    workers = workers or os.cpu_count() or 1
+    if workers <= 1:
+        return InlineExecutor()
+    return ProcessExecutor(workers)
+
+
+def run_all(executor, fn, arglists, window: int | None = None):
+    """Yield (index, result) as tasks finish; at most ``window`` tasks in flight.
+
+    The window keeps memory small (spectra travel with tasks) and lets a
+    killed run lose only the tasks in flight.
+    """
+    window = window or max(2, 2 * executor.workers)
+    it = iter(enumerate(arglists))
+    pending = {}
+    for i, args in it:
+        pending[executor.submit(fn, *args)] = i
+        if len(pending) >= window:
+            break
+    while pending:
+        for fut in executor.wait_one(list(pending)):
+            i = pending.pop(fut)
+            yield i, executor.result(fut)
+            nxt = next(it, None)
+            if nxt is not None:
+                pending[executor.submit(fn, *nxt[1])] = nxt[0]
+
+
+# --- progress ------------------------------------------------------------------
+
+def _fmt_seconds(s: float) -> str:
+    s = max(0, int(round(s)))
+    if s >= 3600:
+        return f"{s // 3600}h{(s % 3600) // 60:02d}m"
+    if s >= 60:
+        return f"{s // 60}m{s % 60:02d}s"
+    return f"{s}s"
+
+
+class Progress:
+    """One status line on stderr: what is done, elapsed and estimated time left.
+
+    On a terminal the line is rewritten in place; otherwise a line is printed
+    every ``every`` seconds.  Time left is extrapolated from the work done,
+    weighted by each item's estimated cost.
+    """
+
+    def __init__(self, phase: str, total_items: int, total_cost: float | None = None,
+                 unit: str = "races", enabled: bool = True, every: float = 15.0, stream=None):
+        self.phase, self.total, self.unit = phase, total_items, unit
+        self.total_cost = total_cost if total_cost else float(total_items)
+        self.done = 0
+        self.cost_done = 0.0
+        self.t0 = time.time()
+        self.enabled = enabled and total_items > 0
+        self.stream = stream or sys.stderr
+        self.tty = hasattr(self.stream, "isatty") and self.stream.isatty()
+        self.every = every
+        self._last = 0.0
+
+    def line(self) -> str:
+        el = time.time() - self.t0
+        frac = self.cost_done / self.total_cost if self.total_cost else 1.0
+        left = el * (1 - frac) / frac if frac > 0 else float("nan")
+        left_s = _fmt_seconds(left) if frac > 0 else "?"
+        return (f"{self.phase}: {self.done}/{self.total} {self.unit} "
+                f"({100 * frac:.0f}%), {_fmt_seconds(el)} elapsed, ~{left_s} left")
+
+    def advance(self, n: int = 1, cost: float | None = None) -> None:
+        self.done += n
+        self.cost_done += cost if cost is not None else n
+        if not self.enabled:
+            return
+        now = time.time()
+        if self.tty and now - self._last > 0.2:
+            self.stream.write("\r" + self.line().ljust(79))
+            self.stream.flush()
+            self._last = now
+        elif not self.tty and now - self._last > self.every:
+            self.stream.write(self.line() + "\n")
+            self.stream.flush()
+            self._last = now
+
+    def finish(self) -> None:
+        if not self.enabled:
+            return
+        self.stream.write(("\r" if self.tty else "") + self.line().ljust(79) + "\n")
+        self.stream.flush()

@@ -1,0 +1,313 @@
+"""Planning a batch: which races, which primitive spectra, and how far each must go.
+
+A batch over moduli Q asks for every two-way race delta(q; a, b) with a < b
+(the reverse race is 1 - delta(q; a, b), exactly, since under LI the limit
+law has no atom at 0), the residue race for each q, and any race the user
+adds.  Each race needs the spectra of the primitive characters inducing the
+characters mod q with W(chi) != 0; chi mod q* serves every multiple of q*.
+
+The plan asks, for each primitive character, the largest height, the finest
+zero width and the most (and most accurate) power sums that any race of the
+batch will request in the driver's first round, so each spectrum is computed
+once, before the races run (:func:`spectrum_requests`).  The requests mirror
+the driver's own plan (:func:`certify.races.certify_race`); if the driver asks
+for more (a refinement round), the spectrum is extended where it is needed
+and stored again: the plan only saves work, it certifies nothing.
+"""
+
+from __future__ import annotations
+
+import functools
+import hashlib
+import inspect
+import itertools
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+
+from ..arith import arb, workprec
+from ..errors import BadInput
+from ..race.question import RaceQuestion, mean_of, residue_race, spectral_groups, two_way, weighted
+from ..source.dirichlet import check_modulus, reduced_residues
+
+
+@dataclass(frozen=True)
+class RaceItem:
+    """One race of a batch, with a stable identifier used for file names."""
+
+    question: RaceQuestion
+
+    @property
+    def modulus(self) -> int:
+        return self.question.modulus
+
+    @property
+    def slug(self) -> str:
+        q = self.question
+        if q.kind == "two-way":
+            a, b = q.classes
+            return f"q{q.modulus}/two-way_{q.modulus}_{a}_{b}"
+        if q.kind == "residues":
+            return f"q{q.modulus}/residues_{q.modulus}"
+        h = hashlib.sha256(repr(q.weights).encode()).hexdigest()[:12]
+        return f"q{q.modulus}/weighted_{q.modulus}_{h}"
+
+
+def parse_moduli(text: str) -> list[int]:
+    """'3-30', '5,7,11-13' -> sorted list of moduli (each >= 3)."""
+    out = set()
+    for part in str(text).replace(" ", "").split(","):
+        if not part:
+            continue
+        try:
+            if "-" in part:
+                lo, hi = part.split("-", 1)
+                lo, hi = int(lo), int(hi)
+                if hi < lo:
+                    raise BadInput(f"empty range of moduli {part!r}")
+                if hi - lo > 100000:
+                    raise BadInput(f"range of moduli {part!r} is too long")
+                out.update(range(lo, hi + 1))
+            else:
+                out.add(int(part))
+        except ValueError:
+            raise BadInput(f"moduli must be integers or ranges such as 3-30, got {part!r}") from None
+    if not out:
+        raise BadInput("no modulus given")
+    for q in sorted(out):
+        if q < 3:
+            raise BadInput(f"modulus {q}: races need q >= 3 (there is one reduced class mod {q})")
+        check_modulus(q)
+    return sorted(out)
+
+
+def parse_race(text: str) -> RaceQuestion:
+    """A race given on the command line.
+
+    ``Q:A,B`` (two-way, pi(x;Q,A) > pi(x;Q,B)), ``Q:N,R`` (residue race) or
+    ``Q:A=W,B=W,...`` (weighted, rational weights summing to 0).
+    """
+    s = str(text).replace(" ", "")
+    if ":" not in s:
+        raise BadInput(f"race {text!r} is not of the form Q:A,B or Q:N,R or Q:A=W,B=W,...")
+    qs, rest = s.split(":", 1)
+    try:
+        q = int(qs)
+    except ValueError:
+        raise BadInput(f"race {text!r}: modulus must be an integer") from None
+    if rest.upper() == "N,R":
+        return residue_race(q)
+    parts = [p for p in rest.split(",") if p]
+    if parts and all("=" in p for p in parts):
+        w = {}
+        for p in parts:
+            a, v = p.split("=", 1)
+            try:
+                a = int(a)
+            except ValueError:
+                raise BadInput(f"race {text!r}: class {a!r} is not an integer") from None
+            if a in w:
+                raise BadInput(f"race {text!r}: class {a} given twice")
+            w[a] = v
+        return weighted(q, w)
+    if len(parts) == 2 and not any("=" in p for p in parts):
+        try:
+            a, b = int(parts[0]), int(parts[1])
+        except ValueError:
+            raise BadInput(f"race {text!r}: classes must be integers") from None
+        return two_way(q, a, b)
+    raise BadInput(f"race {text!r} is not of the form Q:A,B or Q:N,R or Q:A=W,B=W,...")
+
+
+def races_for(moduli: list[int], kinds=("two-way", "residues"), extra=()) -> list[RaceItem]:
+    """The races of a batch, in a stable order (by modulus, then kind, then classes)."""
+    items: dict[str, RaceItem] = {}
+    for q in moduli:
+        if "residues" in kinds:
+            try:
+                it = RaceItem(residue_race(q))
+                items[it.slug] = it
+            except BadInput:
+                pass  # every class a square: no residue race
+        if "two-way" in kinds:
+            for a, b in itertools.combinations(reduced_residues(q), 2):
+                it = RaceItem(two_way(q, a, b))
+                items[it.slug] = it
+    for qn in extra:
+        if qn.kind == "two-way" and qn.classes[0] > qn.classes[1]:
+            qn = two_way(qn.modulus, qn.classes[1], qn.classes[0])  # the reverse is free
+        it = RaceItem(qn)
+        items.setdefault(it.slug, it)
+    return sorted(items.values(), key=lambda it: (it.modulus, _kind_order(it.question.kind), it.slug))
+
+
+def _kind_order(kind: str) -> int:
+    return {"residues": 0, "two-way": 1}.get(kind, 2)
+
+
+# --- spectra requirements -------------------------------------------------
+
+@dataclass
+class Request:
+    """What one primitive spectrum must hold to serve every race of a batch."""
+
+    conductor: int
+    label: int
+    parity: int
+    height: float = 0.0
+    width: float = float("inf")
+    moments: int = 0
+    bits: int = 0
+    races: int = 0
+
+    @property
+    def key(self) -> tuple[int, int]:
+        return (self.conductor, self.label)
+
+    def widen(self, height, width, moments, bits):
+        self.height = max(self.height, height)
+        self.width = min(self.width, width)
+        self.moments = max(self.moments, moments)
+        self.bits = max(self.bits, bits)
+        self.races += 1
+
+    @property
+    def cost(self) -> float:
+        """A relative cost estimate (for ordering work: biggest first)."""
+        return (self.height * math.log(2 + self.conductor * self.height) ** 2
+                + 0.02 * self.moments * self.bits)
+
+
+def _driver_constants():
+    from .. import races
+
+    return races.J01, races._plan_xi_max
+
+
+def first_round_requests(question: RaceQuestion, digits: int, store) -> list[tuple]:
+    """The (conductor, label, parity, height, width, moments, bits) the driver asks first.
+
+    Mirrors the first round of :func:`certify.races.certify_race`; ``store``
+    supplies the first power sums (cheap), used for the exact variance.
+    """
+    J01, plan_xi_max = _driver_constants()
+    tau = 10.0 ** (-digits)
+    prec = max(80, int(digits * 3.33) + 48)
+    mu = mean_of(question)
+    with workprec(prec):
+        groups = spectral_groups(question)
+        V = arb(0)
+        for g in groups:
+            c, n = g.primitive_keys[0]
+            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
+            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
+            V += g.scale * g.scale * T1 / 2
+        xi_max = plan_xi_max(groups, float(V.mid()), float(mu), tau)
+        width = min(1e-6, tau / (1000 * (1 + xi_max)))
+        moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
+        out = []
+        for g in groups:
+            s = float(g.scale.mid())
+            height = max(8.0, 2.6 * s * xi_max / J01)
+            grow = max(1.0, s * xi_max / J01)
+            bits = int(digits * 3.33 + 2 * moments * math.log2(grow * 4) + 40)
+            for (c, n) in g.primitive_keys:
+                out.append((c, n, g.parity, height, width, moments, bits))
+    return out
+
+
+def spectrum_requests(items: list[RaceItem], digits: int, store=None) -> dict:
+    """{(conductor, label): Request} covering the first round of every race in ``items``."""
+    from ..spectrum.spectrum import SpectrumStore
+
+    store = store if store is not None else SpectrumStore()
+    reqs: dict[tuple[int, int], Request] = {}
+    for it in items:
+        for (c, n, par, h, w, k, b) in first_round_requests(it.question, digits, store):
+            r = reqs.setdefault((c, n), Request(c, n, par))
+            r.widen(h, w, k, b)
+    return reqs
+
+
+# --- a faster planner for the driver ---------------------------------------
+#
+# The driver's frequency planner (certify.races._plan_xi_max) rebuilds model
+# ordinates and loops over them in Python for every race: about 1 s per race
+# mod 29, more than the density sums themselves.  In a batch the same model is
+# used thousands of times, so batch workers swap in a vectorised equivalent.
+# It computes the same quantity (up to floating-point summation order) and only
+# chooses parameters; every bound is still certified by the density engine.
+# It is installed only if the driver's planner is the version it was written
+# against (source digest below); otherwise the driver's own planner runs.
+
+_PLANNER_SOURCE_DIGESTS = {
+    "6ec9ee039fc99d7e59778cdc98dbac22",  # certify.races at commit 53b6f6e
+}
+
+
+def _source_digest(fn) -> str:
+    return hashlib.sha256(inspect.getsource(fn).encode()).hexdigest()[:32]
+
+
+@functools.lru_cache(maxsize=None)
+def _model_radii(conductor: int):
+    import numpy as np
+
+    from .. import races
+
+    gam = np.array(races._model_ordinates(conductor, 2000.0), dtype=float)
+    return 1.0 / np.hypot(0.5, gam)
+
+
+def fast_plan_xi_max(groups, V: float, mu: float, tau: float) -> float:
+    """Vectorised twin of the driver's ``_plan_xi_max`` (same model, same stopping rule)."""
+    import numpy as np
+
+    t = math.sqrt(2 * V * math.log(16 / tau))
+    L = 2 * (abs(mu) + t)
+    eps = 2 * math.pi / L
+    xi = eps
+    parts = []
+    for g in groups:
+        s = float(g.scale.mid())
+        for (qs, _) in g.primitive_keys:
+            parts.append(s * _model_radii(qs))
+    r = np.sort(np.concatenate(parts))[::-1] if parts else np.zeros(0)
+    # f = 2/(pi r xi) < 1  <=>  r > 2/(pi xi): a prefix of the sorted weights
+    logs = np.cumsum(np.log(2.0 / (math.pi * r))) if len(r) else np.zeros(0)
+    neg = -r
+    while xi < 1e4:
+        J = int(np.searchsorted(neg, -2.0 / (math.pi * xi), side="left"))
+        # weights with pi r xi > 2 exactly as the driver's test f < 1 selects them
+        while J < len(r) and 2 / (math.pi * r[J] * xi) < 1:
+            J += 1
+        while J > 0 and not (2 / (math.pi * r[J - 1] * xi) < 1):
+            J -= 1
+        if J:
+            logp = 0.5 * (float(logs[J - 1]) - J * math.log(xi))
+            if 2 / (math.pi * J) * math.exp(logp) < tau / 8:
+                return xi
+        xi *= 1.15
+    return xi
+
+
+def planner_status() -> str:
+    from .. import races
+
+    fn = races._plan_xi_max
+    if fn is fast_plan_xi_max:
+        return "vectorised planner active"
+    return "driver planner " + _source_digest(fn)
+
+
+def install_fast_planner() -> bool:
+    """Use :func:`fast_plan_xi_max` in this process if the driver's planner is the known one."""
+    from .. import races
+
+    fn = races._plan_xi_max
+    if fn is fast_plan_xi_max:
+        return True
+    if _source_digest(fn) not in _PLANNER_SOURCE_DIGESTS:
+        return False
+    races._plan_xi_max = fast_plan_xi_max
+    return True

@@ -1,0 +1,262 @@
+"""A batch of races, end to end: plan, spectra, races, tables; resumable.
+
+:func:`run_batch` is what ``certify table`` runs:
+
+1. list the races (:func:`certify.batch.plan.races_for`) and skip those whose
+   result file already exists in the output folder (a resumed run);
+2. plan the spectra the remaining races need and compute, once each, those
+   the cache does not already hold (phase "spectra"); each is stored in the
+   cache as soon as it arrives, in its own transaction;
+3. certify the races, a few of one modulus per task (phase "races"); each
+   result is written at once, atomically, to ``OUT/results/q<q>/<race>.json``;
+4. write the tables (LaTeX, CSV, Markdown), the ranking of the most biased
+   races and ``OUT/batch.json`` (what ran, where the time went).
+
+A run killed at any point (even SIGKILL) leaves complete result files and
+complete cache entries only; running the same command again redoes only what
+is missing.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import time
+from collections import defaultdict
+
+from .. import __version__
+from ..errors import BadInput
+from ..io import write_atomic
+from ..race.question import spectral_groups
+from ..source.dirichlet import reduced_residues
+from .cache import SOFTWARE_VERSION, CachedStore, SpectrumCache
+from .execute import Progress, make_executor, race_task, run_all, spectrum_task
+from .plan import RaceItem, install_fast_planner, planner_status, races_for, spectrum_requests
+
+CHUNK = 6
+
+
+def result_path(out: str, item: RaceItem) -> str:
+    return os.path.join(out, "results", item.slug + ".json")
+
+
+def _load_done(out: str, item: RaceItem, digits: int) -> dict | None:
+    """A finished result for ``item`` at this target (None if absent, stale or unreadable)."""
+    path = result_path(out, item)
+    try:
+        with open(path, encoding="utf-8") as fh:
+            d = json.load(fh)
+    except (OSError, ValueError):
+        return None
+    try:
+        if d["provenance"]["certify"] != __version__:
+            return None
+        if d["density"]["target_width"] != f"1e-{digits}":
+            return None
+        if d["batch"]["slug"] != item.slug:
+            return None
+    except (KeyError, TypeError):
+        return None
+    return d
+
+
+def _chunks(items: list[RaceItem], size: int) -> list[list[RaceItem]]:
+    by_q = defaultdict(list)
+    for it in items:
+        by_q[it.modulus].append(it)
+    out = []
+    # largest moduli first: they take longest, so the tail of the run stays short
+    for q in sorted(by_q, reverse=True):
+        lst = by_q[q]
+        for i in range(0, len(lst), size):
+            out.append(lst[i:i + size])
+    return out
+
+
+def _keys_of(item: RaceItem) -> list[tuple[int, int]]:
+    return sorted({k for g in spectral_groups(item.question) for k in g.primitive_keys})
+
+
+def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = None,
+              scheduler: str | None = None, cache_path: str | None = None,
+              kinds=("two-way", "residues"), extra=(), top: int = 20, progress: bool = True,
+              command_line: str = "", chunk: int = CHUNK, use_cache: bool = True) -> dict:
+    """Certify every race of the batch and write its tables; returns the summary dict.
+
+    Parameters
+    ----------
+    moduli : list of int
+    digits : int
+        Target width 10^-digits for every race.
+    out : str
+        Output folder (created); results, tables and ``batch.json`` go there.
+    workers : int, optional
+        Local processes (default: all cores; 1 runs in this process).
+    scheduler : str, optional
+        A dask.distributed scheduler address; overrides ``workers``.
+    cache_path : str, optional
+        The spectra cache (default :func:`certify.batch.cache.default_cache_path`).
+    use_cache : bool
+        False keeps spectra in a throw-away cache inside ``out``.
+    """
+    from .tables import write_tables
+
+    if isinstance(digits, bool) or not isinstance(digits, int) or not (1 <= digits <= 60):
+        raise BadInput(f"digits must be an integer between 1 and 60 (got {digits!r})")
+    t_start = time.time()
+    os.makedirs(out, exist_ok=True)
+    if not use_cache:
+        cache_path = os.path.join(out, "spectra-scratch.sqlite")
+    cache = SpectrumCache(cache_path)
+    cache.connection()
+    install_fast_planner()
+    items = races_for(moduli, kinds, extra)
+    if not items:
+        raise BadInput("the batch has no race (no modulus with two reduced classes?)")
+    done: dict[str, dict] = {}
+    for it in items:
+        d = _load_done(out, it, digits)
+        if d is not None:
+            done[it.slug] = d
+    pending = [it for it in items if it.slug not in done]
+    summary = {
+        "moduli": moduli, "digits": digits, "races": len(items),
+        "races_reused": len(done), "races_run": len(pending),
+        "software": SOFTWARE_VERSION, "cache": cache.path,
+        "planner": planner_status(),
+        "spectra": {"needed": 0, "from_cache": 0, "computed": 0, "extended_by_races": 0},
+        "timings_seconds": {}, "failures": [], "per_modulus": {}, "per_conductor": {},
+        "command_line": command_line,
+        "caution": ("Every density is conditional on GRH and LI for the L-functions used; "
+                    "certify does not prove GRH or LI."),
+    }
+    executor = None
+    try:
+        # ---- plan -------------------------------------------------------
+        t0 = time.time()
+        plan_store = CachedStore(backend=cache)
+        reqs = spectrum_requests(pending, digits, plan_store) if pending else {}
+        keys_of = {it.slug: _keys_of(it) for it in pending}
+        summary["timings_seconds"]["plan"] = round(time.time() - t0, 3)
+        summary["spectra"]["needed"] = len(reqs)
+        # ---- spectra ----------------------------------------------------
+        t0 = time.time()
+        todo = []
+        blobs: dict[str, tuple[bytes, str]] = {}
+        for key, r in sorted(reqs.items(), key=lambda kv: -kv[1].cost):
+            got = cache.load_blob(key, r.height, r.width, r.moments, r.bits)
+            if got is not None:
+                blobs[f"{key[0]}.{key[1]}"] = got
+                continue
+            start_entry = cache.best_entry(key)
+            start = cache.read(start_entry.id) if start_entry is not None else None
+            todo.append((r, start))
+        summary["spectra"]["from_cache"] = len(blobs)
+        if pending:
+            executor = make_executor(workers, scheduler)
+            summary["executor"] = {"kind": executor.name, "workers": executor.workers}
+        per_conductor = defaultdict(lambda: {"characters": 0, "zeros_s": 0.0, "moments_s": 0.0,
+                                             "central_s": 0.0, "z_calls": 0, "zeros": 0})
+        if todo:
+            prog = Progress("spectra", len(todo), sum(r.cost for r, _ in todo), "L-functions",
+                            enabled=progress)
+            args = [({"conductor": r.conductor, "label": r.label, "parity": r.parity,
+                      "height": r.height, "width": r.width, "moments": r.moments,
+                      "bits": r.bits}, start) for r, start in todo]
+            for i, res in run_all(executor, spectrum_task, args):
+                r = todo[i][0]
+                sp_seconds = sum(res["timings"].values())
+                from .serial import decode
+
+                sp = decode(res["blob"], res["digest"])
+                cache.save_blob(sp, res["blob"], res["digest"], sp_seconds)
+                got = cache.load_blob(r.key, r.height, r.width, r.moments, r.bits)
+                blobs[f"{r.conductor}.{r.label}"] = got or (res["blob"], res["digest"])
+                pc = per_conductor[r.conductor]
+                pc["characters"] += 1
+                pc["zeros_s"] += res["timings"]["zeros"]
+                pc["moments_s"] += res["timings"]["moments"]
+                pc["central_s"] += res["timings"]["central"]
+                pc["z_calls"] += res["z_calls"]
+                pc["zeros"] += res["zeros"]
+                summary["spectra"]["computed"] += 1
+                prog.advance(1, r.cost)
+            prog.finish()
+        summary["per_conductor"] = {str(c): {k: (round(v, 3) if isinstance(v, float) else v)
+                                             for k, v in d.items()}
+                                    for c, d in sorted(per_conductor.items())}
+        summary["timings_seconds"]["spectra"] = round(time.time() - t0, 3)
+        # ---- races --------------------------------------------------------
+        t0 = time.time()
+        per_q = defaultdict(lambda: {"races": 0, "density_s": 0.0, "race_spectra_s": 0.0,
+                                     "total_s": 0.0, "z_calls_in_races": 0})
+        if pending:
+            chunks = _chunks(pending, chunk)
+            args = []
+            for ch in chunks:
+                keys = sorted({k for it in ch for k in keys_of[it.slug]})
+                shipped = {f"{c}.{n}": blobs[f"{c}.{n}"] for c, n in keys if f"{c}.{n}" in blobs}
+                args.append(([(it.slug, it.question) for it in ch], digits, shipped, command_line))
+            prog = Progress("races", len(pending), enabled=progress)
+            for i, results in run_all(executor, race_task, args):
+                for res in results:
+                    it = next(x for x in chunks[i] if x.slug == res["slug"])
+                    if not res["ok"]:
+                        summary["failures"].append({"race": it.question.label, "slug": it.slug,
+                                                    "error": res["error"]})
+                        prog.advance(1)
+                        continue
+                    for ns in res["new_spectra"]:
+                        from .serial import decode
+
+                        cache.save_blob(decode(ns["blob"], ns["digest"]), ns["blob"], ns["digest"])
+                        summary["spectra"]["extended_by_races"] += 1
+                    write_atomic(result_path(out, it), json.dumps(res["result"], indent=1) + "\n")
+                    done[it.slug] = res["result"]
+                    pq = per_q[it.modulus]
+                    pq["races"] += 1
+                    pq["density_s"] += res["timings"].get("density", 0.0)
+                    pq["race_spectra_s"] += res["timings"].get("spectra", 0.0)
+                    pq["total_s"] += res["seconds"]
+                    pq["z_calls_in_races"] += res["z_calls"]
+                    prog.advance(1)
+            prog.finish()
+        summary["timings_seconds"]["races"] = round(time.time() - t0, 3)
+    finally:
+        if executor is not None:
+            executor.close()
+        cache.close()
+    # ---- per modulus cost: its races plus the spectra of its characters ----------
+    for q in moduli:
+        phi = len(reduced_residues(q))
+        pq = per_q.get(q, {"races": 0, "density_s": 0.0, "race_spectra_s": 0.0, "total_s": 0.0,
+                           "z_calls_in_races": 0})
+        summary["per_modulus"][str(q)] = {"q": q, "phi": phi,
+                                          **{k: (round(v, 3) if isinstance(v, float) else v)
+                                             for k, v in pq.items()}}
+    # ---- outputs ----------------------------------------------------------
+    t0 = time.time()
+    ordered = [(it, done.get(it.slug)) for it in items]
+    files = write_tables(out, ordered, digits, top=top, command_line=command_line)
+    summary["timings_seconds"]["tables"] = round(time.time() - t0, 3)
+    summary["timings_seconds"]["total"] = round(time.time() - t_start, 3)
+    summary["files"] = files
+    summary["not_met"] = sum(1 for _, d in ordered if d is not None and not d["density"]["target_met"])
+    summary["missing"] = sum(1 for _, d in ordered if d is None)
+    write_atomic(os.path.join(out, "batch.json"), json.dumps(summary, indent=1) + "\n")
+    return summary
+
+
+def cost_table(summary: dict) -> list[dict]:
+    """Per modulus: races, phi(q), time in races, and the spectra of the conductors dividing q."""
+    rows = []
+    pc = summary.get("per_conductor", {})
+    for qs, d in summary.get("per_modulus", {}).items():
+        q = int(qs)
+        own = pc.get(str(q), {})
+        rows.append({**d, "own_spectra_s": round(own.get("zeros_s", 0) + own.get("moments_s", 0)
+                                                 + own.get("central_s", 0), 3),
+                     "per_race_ms": round(1000 * d["total_s"] / d["races"], 1) if d["races"] else 0.0,
+                     "phi_log": math.log(max(d["phi"], 2))})
+    return rows

@@ -1,0 +1,307 @@
+"""Tables of a batch: LaTeX (booktabs), CSV, Markdown, and the most biased races.
+
+Rows are built from the result files only (nothing is recomputed), from the
+enclosures they store, which are rounded outward.  A density is shown by
+its *certified digits*: the decimal digits shared by every point of the
+enclosure (truncated, not rounded).  When delta is close to 1 the table also
+gives 1 - delta in scientific notation, again with only the digits common to
+the whole enclosure of 1 - delta; when the enclosure straddles a digit
+boundary (for instance delta = 1/2 exactly, a race with mean 0), the
+enclosure itself is printed, rounded outward.
+
+The reverse race delta(q; b, a) = 1 - delta(q; a, b) is exact (under LI the
+limit law has no atom at 0), so it is listed with the same certificate.
+Every row names the result file it comes from and that file's SHA-256.
+"""
+
+from __future__ import annotations
+
+import csv
+import hashlib
+import io
+import math
+import os
+from dataclasses import dataclass
+from fractions import Fraction
+
+from ..arith import certified_digits, decimal_down, decimal_up
+from ..io import write_atomic
+
+CLOSE_TO_ONE = Fraction(99, 100)
+HYPOTHESES_NOTE = ("Every density is conditional on the generalised Riemann hypothesis (GRH) "
+                   "for the Dirichlet L-functions used and on the linear independence "
+                   "hypothesis (LI); certify gathers evidence for both and proves neither. "
+                   "Each result file lists the hypotheses with their evidence.")
+DIGITS_NOTE = ("Digits shown are common to every point of the certified enclosure "
+               "(truncated, not rounded); an interval is shown where no digit is common.")
+
+
+@dataclass
+class Row:
+    q: int
+    kind: str
+    a: int | None
+    b: int | None
+    label: str
+    lower: Fraction | None
+    upper: Fraction | None
+    target_met: bool
+    mean: str
+    source: str  # result file, relative to the output folder
+    sha256: str
+    derived: bool = False
+    error: str = ""
+
+    @property
+    def certified(self) -> bool:
+        return self.lower is not None
+
+    @property
+    def latex_label(self) -> str:
+        if self.kind == "two-way":
+            return rf"$\delta({self.q};{self.a},{self.b})$"
+        if self.kind == "residues":
+            return rf"$\delta({self.q};N,R)$"
+        return self.label.replace("_", r"\_").replace("#", r"\#")
+
+
+def _file_digest(path: str) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        h.update(fh.read())
+    return h.hexdigest()
+
+
+def rows_from_results(out: str, ordered, reverse: bool = True) -> list[Row]:
+    """Rows for (item, result dict or None) pairs; reverse two-way races added if asked."""
+    from .run import result_path
+
+    rows = []
+    for it, d in ordered:
+        qn = it.question
+        a, b = (qn.classes if qn.kind == "two-way" else (None, None))
+        path = result_path(out, it)
+        rel = os.path.relpath(path, out)
+        if d is None:
+            rows.append(Row(qn.modulus, qn.kind, a, b, qn.label, None, None, False, "", rel, "",
+                            error="not certified (see batch.json)"))
+            continue
+        lo, hi = Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"])
+        digest = _file_digest(path) if os.path.exists(path) else ""
+        met = bool(d["density"]["target_met"])
+        rows.append(Row(qn.modulus, qn.kind, a, b, qn.label, lo, hi, met, d.get("mean", ""), rel,
+                        digest))
+        if reverse and qn.kind == "two-way":
+            mean = str(-Fraction(d["mean"])) if d.get("mean") else ""
+            rows.append(Row(qn.modulus, qn.kind, b, a, f"delta({qn.modulus};{b},{a})", 1 - hi,
+                            1 - lo, met, mean, rel, digest, derived=True))
+    return rows
+
+
+def _floor_log10(x: Fraction) -> int:
+    e = math.floor(math.log10(float(x))) if x > 0 else 0
+    while Fraction(10) ** e > x:
+        e -= 1
+    while Fraction(10) ** (e + 1) <= x:
+        e += 1
+    return e
+
+
+def density_text(lo: Fraction, hi: Fraction, places: int) -> str:
+    """Certified digits of [lo, hi], or the interval rounded outward to ``places``."""
+    d = certified_digits(lo, hi)
+    if "." in d and len(d.split(".")[1]) >= 1:
+        return d
+    return f"[{decimal_down(lo, places)}, {decimal_up(hi, places)}]"
+
+
+def sci_parts(lo: Fraction, hi: Fraction, sig: int = 12) -> tuple[str, int] | None:
+    """(mantissa digits, exponent) common to every x in [lo, hi] (0 < lo <= hi), or None."""
+    if lo <= 0:
+        return None
+    e = _floor_log10(hi)
+    if _floor_log10(lo) != e:
+        return None
+    scale = Fraction(10) ** (-e)
+    d = certified_digits(lo * scale, hi * scale, max_digits=sig)
+    if not d:
+        return None
+    return d, e
+
+
+def sci_interval(lo: Fraction, hi: Fraction, sig: int = 3) -> tuple[str, str, int]:
+    """[lo, hi] as two mantissas with one exponent, rounded outward."""
+    e = _floor_log10(hi) if hi > 0 else 0
+    scale = Fraction(10) ** (-e)
+    return decimal_down(lo * scale, sig), decimal_up(hi * scale, sig), e
+
+
+def one_minus_text(row: Row, latex: bool) -> str:
+    """1 - delta in scientific notation where delta is close to 1 (else empty)."""
+    if not row.certified or row.lower < CLOSE_TO_ONE:
+        return ""
+    lo, hi = 1 - row.upper, 1 - row.lower
+    if lo <= 0:
+        return ""
+    parts = sci_parts(lo, hi)
+    if parts is not None:
+        m, e = parts
+        return rf"${m} \times 10^{{{e}}}$" if latex else f"{m}e{e}"
+    a, b, e = sci_interval(lo, hi)
+    return rf"$[{a}, {b}] \times 10^{{{e}}}$" if latex else f"[{a}, {b}]e{e}"
+
+
+def _mark(row: Row) -> str:
+    return "" if row.target_met else "*"
+
+
+def leader_first(rows: list[Row]) -> list[Row]:
+    """One row per two-way race, oriented so the leading class comes first (delta > 1/2).
+
+    A race whose enclosure contains 1/2 keeps the order a < b.  Other kinds pass.
+    """
+    out = []
+    for r in rows:
+        if r.kind != "two-way":
+            out.append(r)
+            continue
+        if not r.certified:
+            if not r.derived:
+                out.append(r)
+            continue
+        half = Fraction(1, 2)
+        contains_half = r.lower <= half <= r.upper
+        if contains_half:
+            if not r.derived:
+                out.append(r)
+        elif r.lower > half:
+            out.append(r)
+    return out
+
+
+def render_latex(rows: list[Row], digits: int, caption: str = "") -> str:
+    """A longtable (booktabs rules); needs \\usepackage{booktabs,longtable}."""
+    lines = [
+        "% certify batch table: needs \\usepackage{booktabs,longtable}",
+        "% " + HYPOTHESES_NOTE,
+        "% " + DIGITS_NOTE,
+        "% The comment after each row names its result file and that file's SHA-256.",
+        r"\begin{longtable}{rllc}",
+    ]
+    if caption:
+        lines.append(rf"\caption{{{caption}}}\\")
+    head = r"$q$ & race & $\delta$ & $1-\delta$ \\"
+    lines += [r"\toprule", head, r"\midrule", r"\endfirsthead", r"\toprule", head, r"\midrule",
+              r"\endhead", r"\bottomrule", r"\endfoot"]
+    for r in rows:
+        if r.certified:
+            dtext = density_text(r.lower, r.upper, digits)
+            dcell = f"${dtext}$" if not dtext.startswith("[") else f"${dtext}$"
+            omt = one_minus_text(r, True)
+        else:
+            dcell, omt = "not certified", ""
+        mark = r"$^{*}$" if r.certified and not r.target_met else ""
+        lines.append(f"{r.q} & {r.latex_label} & {dcell}{mark} & {omt} \\\\ % {r.source} "
+                     f"sha256={r.sha256[:16]}{' (reverse race: 1 - delta)' if r.derived else ''}")
+    lines.append(r"\end{longtable}")
+    lines.append(r"\par\noindent{\footnotesize " + _latex_escape(HYPOTHESES_NOTE) + " "
+                 + _latex_escape(DIGITS_NOTE)
+                 + rf" Target width $10^{{-{digits}}}$; $^{{*}}$ marks a race where it was not met "
+                 "(the certified enclosure is shown).}")
+    return "\n".join(lines) + "\n"
+
+
+def _latex_escape(s: str) -> str:
+    return s.replace("&", r"\&").replace("%", r"\%").replace("_", r"\_")
+
+
+def render_latex_ranking(rows: list[Row], digits: int) -> str:
+    lines = [
+        "% certify batch: the most biased races; needs \\usepackage{booktabs}",
+        "% " + HYPOTHESES_NOTE,
+        r"\begin{tabular}{rrllc}",
+        r"\toprule",
+        r"rank & $q$ & race & $\delta$ & $1-\delta$ \\",
+        r"\midrule",
+    ]
+    for i, r in enumerate(rows, 1):
+        mark = r"$^{*}$" if not r.target_met else ""
+        lines.append(f"{i} & {r.q} & {r.latex_label} & ${density_text(r.lower, r.upper, digits)}$"
+                     f"{mark} & {one_minus_text(r, True)} \\\\ % {r.source} sha256={r.sha256[:16]}")
+    lines += [r"\bottomrule", r"\end{tabular}"]
+    return "\n".join(lines) + "\n"
+
+
+def render_markdown(rows: list[Row], digits: int, title: str) -> str:
+    lines = [f"# {title}", "", f"> {HYPOTHESES_NOTE}", ">", f"> {DIGITS_NOTE} Target width "
+             f"1e-{digits}; `*` marks a race where it was not met.", "",
+             "| q | race | delta | 1 - delta | certificate |", "|---:|---|---|---|---|"]
+    for r in rows:
+        if r.certified:
+            d = density_text(r.lower, r.upper, digits) + _mark(r)
+            om = one_minus_text(r, False)
+        else:
+            d, om = "not certified", ""
+        src = f"[{os.path.basename(r.source)}]({r.source})" + (" (1 - delta)" if r.derived else "")
+        lines.append(f"| {r.q} | {r.label} | {d} | {om} | {src} |")
+    return "\n".join(lines) + "\n"
+
+
+CSV_FIELDS = ["q", "kind", "a", "b", "race", "lower", "upper", "width", "certified_digits",
+              "one_minus_delta", "target_met", "mean", "derived", "result_file", "result_sha256",
+              "status"]
+
+
+def render_csv(rows: list[Row]) -> str:
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["# " + HYPOTHESES_NOTE])
+    w.writerow(CSV_FIELDS)
+    for r in rows:
+        if r.certified:
+            lower = decimal_down(r.lower, 30).rstrip("0")
+            upper = decimal_up(r.upper, 30).rstrip("0")
+            w.writerow([r.q, r.kind, r.a if r.a is not None else "", r.b if r.b is not None else "",
+                        r.label, lower, upper, f"{float(r.upper - r.lower):.3e}",
+                        certified_digits(r.lower, r.upper), one_minus_text(r, False),
+                        "yes" if r.target_met else "no", r.mean, "yes" if r.derived else "no",
+                        r.source, r.sha256, "certified"])
+        else:
+            w.writerow([r.q, r.kind, r.a or "", r.b or "", r.label, "", "", "", "", "", "no", "",
+                        "no", r.source, "", r.error])
+    return buf.getvalue()
+
+
+def ranking(rows: list[Row], top: int) -> list[Row]:
+    """The ``top`` races with the largest certified lower bound for delta (all orientations)."""
+    ok = [r for r in rows if r.certified]
+    ok.sort(key=lambda r: (-r.lower, r.q, r.label))
+    return ok[:top]
+
+
+def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: str = "") -> dict:
+    """Write table.{tex,csv,md} and ranking.{tex,md,csv}; returns {kind: path}."""
+    rows = rows_from_results(out, ordered)
+    shown = leader_first(rows)
+    best = ranking(rows, top)
+    files = {
+        "table_tex": os.path.join(out, "table.tex"),
+        "table_csv": os.path.join(out, "table.csv"),
+        "table_md": os.path.join(out, "table.md"),
+        "ranking_tex": os.path.join(out, "ranking.tex"),
+        "ranking_md": os.path.join(out, "ranking.md"),
+        "ranking_csv": os.path.join(out, "ranking.csv"),
+    }
+    moduli = sorted({r.q for r in rows})
+    span = f"{moduli[0]}..{moduli[-1]}" if moduli else ""
+    write_atomic(files["table_tex"], render_latex(shown, digits))
+    write_atomic(files["table_csv"], render_csv(rows))
+    md = render_markdown(shown, digits, f"Prime races modulo q = {span}")
+    if command_line:
+        md += f"\nProduced by `{command_line}`.\n"
+    write_atomic(files["table_md"], md)
+    write_atomic(files["ranking_tex"], render_latex_ranking(best, digits))
+    write_atomic(files["ranking_md"], render_markdown(best, digits,
+                                                      f"The {len(best)} most biased races, q = {span}"))
+    write_atomic(files["ranking_csv"], render_csv(best))
+    return {k: os.path.relpath(v, out) for k, v in files.items()}

@@ -1,0 +1,176 @@
+"""``certify table`` (every race for a range of moduli) and ``certify cache`` (the spectra cache)."""
+
+from __future__ import annotations
+
+import os
+import shlex
+import sys
+
+from ..errors import BadInput
+
+
+def _int(text, what: str, low: int | None = None) -> int:
+    try:
+        v = int(text)
+    except (TypeError, ValueError):
+        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+    if low is not None and v < low:
+        raise BadInput(f"{what} must be at least {low}, got {v}")
+    return v
+
+
+def _command_line(args) -> str:
+    """The command that reproduces this table (what each result records)."""
+    parts = ["certify", "table"]
+    if args.moduli:
+        parts += ["--moduli", args.moduli]
+    for r in args.race or []:
+        parts += ["--race", r]
+    if args.kinds != "two-way,residues":
+        parts += ["--kinds", args.kinds]
+    parts += ["--digits", str(args.digits), "--out", args.out]
+    return " ".join(shlex.quote(x) for x in parts)
+
+
+def run_table(args) -> int:
+    from ..batch.plan import parse_moduli, parse_race
+    from ..batch.run import run_batch
+
+    moduli = parse_moduli(args.moduli) if args.moduli else []
+    extra = [parse_race(r) for r in (args.race or [])]
+    if not moduli and not extra:
+        raise BadInput("give --moduli (e.g. 3-30) or at least one --race")
+    digits = _int(args.digits, "--digits", 1)
+    workers = _int(args.workers, "--workers", 1) if args.workers is not None else None
+    kinds = tuple(k.strip() for k in args.kinds.split(",") if k.strip())
+    for k in kinds:
+        if k not in ("two-way", "residues"):
+            raise BadInput(f"--kinds: unknown race kind {k!r} (use two-way, residues)")
+    cmd = _command_line(args)
+    summary = run_batch(moduli, digits, args.out, workers=workers, scheduler=args.scheduler,
+                        cache_path=args.cache, kinds=kinds, extra=extra,
+                        top=_int(args.top, "--top", 1), progress=not args.quiet,
+                        command_line=cmd, use_cache=not args.no_cache)
+    t = summary["timings_seconds"]
+    sp = summary["spectra"]
+    print(f"{summary['races']} races ({summary['races_run']} certified now, "
+          f"{summary['races_reused']} already done) in {t['total']:.1f} s; "
+          f"spectra: {sp['needed']} needed, {sp['from_cache']} from the cache, "
+          f"{sp['computed']} computed")
+    for k, v in summary["files"].items():
+        print(f"  {k:<12} {os.path.join(args.out, v)}")
+    print(f"  results      {os.path.join(args.out, 'results')}/  (one JSON per race)")
+    print("Every density is conditional on GRH and LI for the L-functions used; "
+          "certify proves neither.")
+    if summary["failures"] or summary["missing"]:
+        for f in summary["failures"]:
+            print(f"  not certified: {f['race']}: {f['error']}", file=sys.stderr)
+        return 3
+    if summary["not_met"]:
+        print(f"  {summary['not_met']} race(s) did not reach width 1e-{digits} "
+              "(marked *; their certified enclosures are shown)", file=sys.stderr)
+        return 5
+    return 0
+
+
+def _cache(args):
+    from ..batch.cache import SpectrumCache, default_cache_path
+
+    path = args.cache or default_cache_path()
+    if args.cache_command == "show" and not os.path.exists(path):
+        raise BadInput(f"no cache at {path}")
+    return SpectrumCache(path)
+
+
+def run_cache_show(args) -> int:
+    cache = _cache(args)
+    rows = cache.entries(all_versions=True)
+    size = os.path.getsize(cache.path) if os.path.exists(cache.path) else 0
+    print(f"cache {cache.path}: {len(rows)} entries, {size / 1e6:.2f} MB "
+          f"(this software: {cache.version})")
+    conductors = sorted({e.conductor for e in rows})
+    if args.verbose:
+        print(f"{'character':>12} {'height':>8} {'width':>9} {'moments':>7} {'bits':>5} "
+              f"{'zeros':>6} {'seconds':>8}  version")
+        for e in rows:
+            print(f"{str(e.conductor) + '.' + str(e.label):>12} {e.height:8.1f} {e.width:9.1e} "
+                  f"{e.moments:7d} {e.moment_bits:5d} {e.zeros:6d} {e.seconds:8.2f}  {e.version}")
+    else:
+        for c in conductors:
+            es = [e for e in rows if e.conductor == c]
+            print(f"  conductor {c:>5}: {len(es):3d} entries, heights "
+                  f"{min(e.height for e in es):.1f}..{max(e.height for e in es):.1f}, "
+                  f"{sum(e.zeros for e in es)} zeros")
+    other = sum(1 for e in rows if e.version != cache.version)
+    if other:
+        print(f"  {other} entries from other software versions (ignored; "
+              "`certify cache prune --other-versions` removes them)")
+    rc = 0
+    if args.check:
+        res = cache.check()
+        print(f"  integrity: {res['integrity']}; damaged entries: {len(res['damaged'])}")
+        if res["integrity"] != "ok" or res["damaged"]:
+            rc = 4
+    cache.close()
+    return rc
+
+
+def run_cache_prune(args) -> int:
+    if not (args.other_versions or args.damaged or args.all or args.conductor_above is not None):
+        raise BadInput("say what to prune: --other-versions, --damaged, --conductor-above N or --all")
+    cache = _cache(args)
+    n = cache.prune(other_versions=args.other_versions, damaged=args.damaged,
+                    conductor_above=(_int(args.conductor_above, "--conductor-above", 1)
+                                     if args.conductor_above is not None else None),
+                    everything=args.all)
+    print(f"removed {n} entries from {cache.path}")
+    cache.close()
+    return 0
+
+
+def register(sub) -> None:
+    p = sub.add_parser(
+        "table", help="certify every race for a range of moduli and write tables",
+        description="Certify every two-way race delta(q;a,b) (a < b; the reverse is 1 - delta) "
+        "and the residue race for each modulus, sharing each primitive L-function's spectrum "
+        "through a persistent cache, and write LaTeX/CSV/Markdown tables and a ranking of the "
+        "most biased races.  Resumable: run the same command again after an interruption.  "
+        "Results are conditional on GRH and LI; certify proves neither.")
+    p.add_argument("--moduli", "-q", metavar="LIST", help="moduli, e.g. 3-30 or 5,7,11-13")
+    p.add_argument("--race", action="append", metavar="RACE",
+                   help="an extra race: Q:A,B (two-way), Q:N,R (residues) or Q:A=W,B=W,... "
+                   "(weighted); repeatable")
+    p.add_argument("--kinds", default="two-way,residues",
+                   help="race kinds for each modulus (default two-way,residues)")
+    p.add_argument("--digits", "-d", default="8", help="target width 10^-D for every race (default 8)")
+    p.add_argument("--out", "-o", required=True, metavar="DIR", help="output folder")
+    p.add_argument("--workers", "-j", default=None, help="local worker processes (default: all cores)")
+    p.add_argument("--scheduler", metavar="ADDR",
+                   help="run on dask.distributed (e.g. tcp://host:8786); needs dask[distributed]")
+    p.add_argument("--cache", metavar="PATH",
+                   help="spectra cache (default $CERTIFY_CACHE or ~/.cache/certify/spectra.sqlite)")
+    p.add_argument("--no-cache", action="store_true",
+                   help="keep spectra in a scratch cache inside DIR instead")
+    p.add_argument("--top", default="20", help="length of the ranking of most biased races")
+    p.add_argument("--quiet", action="store_true", help="no progress line")
+    p.set_defaults(func=run_table)
+
+    c = sub.add_parser("cache", help="inspect or prune the cache of certified spectra",
+                       description="The SQLite cache of certified spectra (zeros, power sums, "
+                       "L(1/2)) shared by batch runs.")
+    csub = c.add_subparsers(dest="cache_command", metavar="ACTION")
+    s = csub.add_parser("show", help="list what the cache holds")
+    s.add_argument("--cache", metavar="PATH", help="cache file")
+    s.add_argument("--verbose", "-v", action="store_true", help="one line per entry")
+    s.add_argument("--check", action="store_true",
+                   help="verify the file's integrity and every entry's checksum")
+    s.set_defaults(func=run_cache_show)
+    r = csub.add_parser("prune", help="remove entries")
+    r.add_argument("--cache", metavar="PATH", help="cache file")
+    r.add_argument("--other-versions", action="store_true",
+                   help="entries written by another software version")
+    r.add_argument("--damaged", action="store_true", help="entries failing their checksum")
+    r.add_argument("--conductor-above", metavar="N", help="entries with conductor > N")
+    r.add_argument("--all", action="store_true", help="every entry")
+    r.set_defaults(func=run_cache_prune)
+    c.set_defaults(func=lambda args: (c.print_help(), 2)[1])
