@@ -300,6 +300,12 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
                     zs = sorted((z for sp in sps for z in sp.zeros.zeros),
                                 key=lambda z: float(z.mid()))
                     T = min(sp.height for sp in sps)
+                    for sp in sps:
+                        # T_k = S_k/2 for a real character needs no zero at s = 1/2
+                        if sp.central.real.contains(0) and sp.central.imag.contains(0):
+                            raise Inconsistent(
+                                f"L(1/2, chi_{{{sp.conductor},{sp.label}}}) = {sp.central.str(5)}: "
+                                "a zero at s = 1/2 cannot be excluded; not certified")
                     div = 2 if g.is_real else 1
                     target_sums = [s_k / div for s_k in sps[0].power_sums[:moments]]
                     R = residual_sums(target_sums, zs)
