@@ -14,6 +14,7 @@ import math
 import time
 from dataclasses import dataclass, field
 from fractions import Fraction
+from functools import lru_cache
 
 from . import __version__
 from .arith import acb, arb, flint_version, workprec
@@ -145,8 +146,9 @@ class RaceResult:
         }
 
 
-def _model_ordinates(conductor: int, height: float) -> list[float]:
-    """Approximate positive ordinates (for planning only): N(t) = (t/2pi) log(q t/(2 pi e)) + 7/8."""
+@lru_cache(maxsize=4096)
+def _model_ordinates(conductor: int, height: float) -> tuple[float, ...]:
+    """Approximate positive ordinates (planning only): N(t) = (t/2pi) log(q t/(2 pi e)) + 7/8."""
     out = []
     k = 1
     t = 1.0
@@ -165,35 +167,40 @@ def _model_ordinates(conductor: int, height: float) -> list[float]:
                 break
             t = t_new
         if t > height:
-            return out
+            return tuple(out)
         out.append(t)
         k += 1
 
 
-def _plan_xi_max(groups, V: float, mu: float, tau: float) -> float:
-    """Frequency range where the truncation bound falls below tau/8 (model zeros)."""
+def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
+    """Frequency range where the truncation bound falls below tau/8, on model zeros.
+
+    Planning only (floating point): the engine later evaluates the bound rigorously
+    on the certified zeros.
+    """
+    import numpy as np
+
     t = math.sqrt(2 * V * math.log(16 / tau))
     L = 2 * (abs(mu) + t)
     eps = 2 * math.pi / L
-    xi = eps
-    model = []
+    parts = []
     for g in groups:
         s = float(g.scale.mid())
         for (qs, _) in g.primitive_keys:
-            model.append((s, _model_ordinates(qs, 2000.0)))
+            gam = np.asarray(_model_ordinates(qs, 2000.0))
+            parts.append(s / np.hypot(0.5, gam))
+    weights = np.concatenate(parts) if parts else np.zeros(0)
+    xi = eps
     while xi < 1e4:
-        logp = 0.0
-        J = 0
-        for s, ords in model:
-            for gam in ords:
-                f = 2 / (math.pi * s / math.hypot(0.5, gam) * xi)
-                if f < 1:
-                    logp += 0.5 * math.log(f)
-                    J += 1
-        if J and 2 / (math.pi * J) * math.exp(logp) < tau / 8:
+        f = 2 / (math.pi * weights * xi)
+        small = f[f < 1]
+        if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
             return xi
         xi *= 1.15
     return xi
+
+
+_plan_xi_max = plan_frequency_range  # former private name
 
 
 def _hypotheses(question, group_reports) -> tuple:
@@ -274,7 +281,7 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
             sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
             T1 = sp.power_sums[0] / (2 if g.is_real else 1)
             V += g.scale * g.scale * T1 / 2
-    xi_max = _plan_xi_max(groups, float(V.mid()), float(mu_q), tau)
+    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau)
     height_factor = 2.6
     width = min(1e-6, tau / (1000 * (1 + xi_max)))
     moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
