@@ -1,0 +1,112 @@
+"""Batch planning (which races, which spectra) and the table formatting rules."""
+
+import itertools
+import math
+import random
+from fractions import Fraction
+
+import pytest
+
+from certify import races
+from certify.arith import arb, workprec
+from certify.batch.plan import (fast_plan_xi_max, parse_moduli, parse_race, races_for,
+                                spectrum_requests)
+from certify.batch.tables import Row, density_text, leader_first, one_minus_text, ranking, sci_parts
+from certify.errors import BadInput
+from certify.race.question import mean_of, residue_race, spectral_groups, two_way
+from certify.spectrum.spectrum import SpectrumStore
+
+
+def test_parse_moduli_and_races():
+    assert parse_moduli("3-6,9, 11-12") == [3, 4, 5, 6, 9, 11, 12]
+    for bad in ["", "2-5", "x", "9-3", "3-a"]:
+        with pytest.raises(BadInput):
+            parse_moduli(bad)
+    assert parse_race("4:3,1").classes == (3, 1)
+    assert parse_race("8:N,R").kind == "residues"
+    w = parse_race("12:1=1,5=-1/2,7=-1/2")
+    assert w.kind == "weighted" and sum(x for _, x in w.weights) == 0
+    for bad in ["4", "4:3", "4:3,3", "4:2,1", "x:1,3", "12:1=1,5=1", "4:1=1,1=-1"]:
+        with pytest.raises(BadInput):
+            parse_race(bad)
+
+
+def test_races_for_counts_every_pair_once():
+    for q in [3, 8, 13, 15]:
+        phi = sum(1 for a in range(1, q) if math.gcd(a, q) == 1)
+        items = races_for([q])
+        assert len(items) == math.comb(phi, 2) + 1
+        assert len({it.slug for it in items}) == len(items)
+        assert all(it.question.classes[0] < it.question.classes[1]
+                   for it in items if it.question.kind == "two-way")
+    # a reversed extra race is the same computation as the listed one
+    items = races_for([5], extra=[two_way(5, 4, 1), two_way(7, 3, 2)])
+    assert len(items) == math.comb(4, 2) + 1 + 1
+
+
+def test_primitive_spectra_shared_across_multiples():
+    """chi mod q* serves every multiple of q*: moduli 5 and 10 need only the characters mod 5."""
+    store = SpectrumStore()
+    r5 = spectrum_requests(races_for([5]), 6, store)
+    r510 = spectrum_requests(races_for([5, 10]), 6, store)
+    assert set(r5) == set(r510) == {(5, 2), (5, 3), (5, 4)}
+    assert all(r510[k].races > r5[k].races for k in r5)
+    r15 = spectrum_requests(races_for([15]), 6, store)
+    assert {c for c, _ in r15} == {3, 5, 15}
+
+
+def test_fast_planner_matches_the_driver():
+    store = SpectrumStore()
+    rng = random.Random(7)
+    checked = 0
+    for q in [4, 7, 12, 13, 24]:
+        cls = [a for a in range(1, q) if math.gcd(a, q) == 1]
+        qs = [residue_race(q)] + [two_way(q, a, b) for a, b in
+                                  rng.sample(list(itertools.combinations(cls, 2)), 1)]
+        for question in qs:
+            for digits in (6, 10):
+                with workprec(100):
+                    groups = spectral_groups(question)
+                    V = arb(0)
+                    for g in groups:
+                        c, n = g.primitive_keys[0]
+                        sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, 100)
+                        V += g.scale * g.scale * (sp.power_sums[0] / (2 if g.is_real else 1)) / 2
+                args = (groups, float(V.mid()), float(mean_of(question)), 10.0 ** -digits)
+                assert fast_plan_xi_max(*args) == races._plan_xi_max(*args)
+                checked += 1
+    assert checked == 20
+
+
+def _row(lo, hi, met=True, kind="two-way"):
+    return Row(7, kind, 1, 2, "delta(7;1,2)", Fraction(lo), Fraction(hi), met, "0", "r.json", "ab")
+
+
+def test_certified_digits_only():
+    assert density_text(Fraction("0.9959279231"), Fraction("0.9959279238"), 8) == "0.995927923"
+    # delta = 1/2 exactly (mean 0): no digit is common, the enclosure is shown rounded outward
+    t = density_text(Fraction("0.4999999995"), Fraction("0.5000000004"), 8)
+    assert t == "[0.49999999, 0.50000001]"
+
+
+def test_scientific_one_minus_delta():
+    r = _row("0.99906319024", "0.9990631928")
+    # 1 - delta in [9.368072e-4, 9.3680976e-4]: the common digits are 9.3680 x 10^-4
+    assert one_minus_text(r, latex=False) == "9.3680e-4"
+    assert one_minus_text(r, latex=True) == r"$9.3680 \times 10^{-4}$"
+    assert one_minus_text(_row("0.9", "0.91"), latex=False) == ""
+    assert sci_parts(Fraction("0.00099"), Fraction("0.0011")) is None  # straddles 10^-3
+    wide = _row("0.9989", "0.99901")  # 1 - delta in [9.9e-4, 1.1e-3]: shown as an interval
+    assert one_minus_text(wide, latex=False) == "[0.990, 1.100]e-3"
+
+
+def test_leader_first_and_ranking():
+    rows = [_row("0.2", "0.21"), _row("0.79", "0.8"), _row("0.4999", "0.5001"),
+            _row("0.4999", "0.5001")]
+    rows[1].derived = True
+    rows[3].derived = True
+    shown = leader_first(rows)
+    assert [(r.lower, r.derived) for r in shown] == [(Fraction("0.79"), True),
+                                                     (Fraction("0.4999"), False)]
+    top = ranking(rows, 2)
+    assert [r.lower for r in top] == [Fraction("0.79"), Fraction("0.4999")]
