@@ -27,6 +27,7 @@ from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 J01 = 2.404825557695773
 MAX_DIGITS = 60
 DEFAULT_DIGITS = 10
+MIN_HEIGHT = 4.0  # lowest isolation height (planning)
 
 REFERENCES = (
     "M. Rubinstein and P. Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
@@ -272,7 +273,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
     groups = spectral_groups(question)
     if not groups:
         raise BadInput(f"{question.label}: every character sum W(chi) vanishes; the race is degenerate")
-    # exact variance (first moments only) for planning
+    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
+    # exact variance for planning (the moments are computed once, at the accuracy used later)
     with workprec(prec):
         groups = spectral_groups(question)
         V = arb(0)
@@ -283,8 +285,7 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
             V += g.scale * g.scale * T1 / 2
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau)
     height_factor = 2.6
-    width = min(1e-6, tau / (1000 * (1 + xi_max)))
-    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
+    width = min(1e-6, tau / (50 * (1 + xi_max)))
     best = None
     timings = {"spectra": 0.0, "density": 0.0}
     last_reason = ""
@@ -297,9 +298,10 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
             groups = spectral_groups(question)
             for g in groups:
                 s = float(g.scale.mid())
-                height = max(8.0, height_factor * s * xi_max / J01)
-                grow = max(1.0, s * xi_max / J01)
-                bits = int(digits * 3.33 + 2 * moments * math.log2(grow * 4) + 40)
+                height = max(MIN_HEIGHT, height_factor * s * xi_max / J01)
+                # R_k is multiplied by about (s xi / j01)^(2k) in the engine
+                grow = max(2.0, 2 * s * xi_max / J01)
+                bits = int(digits * 3.33 + 2 * moments * math.log2(grow) + 40)
                 fraction = 0.25
                 while True:
                     sps = [store.get(c, n, g.parity, height, width, moments, bits, fraction)

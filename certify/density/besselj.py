@@ -21,30 +21,38 @@ from ..arith import arb, workprec
 from ..errors import PrecisionExhausted
 
 
-@lru_cache(maxsize=1)
-def _sigma_table(count: int = 200) -> tuple[Fraction, ...]:
-    # J_0(x) = sum_j a_j z^j with z = x^2, a_j = (-1)^j / (4^j j!^2).
-    a = [Fraction((-1) ** j, 4**j * factorial(j) ** 2) for j in range(count + 1)]
-    # g = log J: g' = J'/J, i.e. J g' = J'  =>  k g_k = k a_k - sum_{i=1}^{k-1} i g_i a_{k-i}
-    g = [Fraction(0)] * (count + 1)
-    for k in range(1, count + 1):
+_SIGMA: list[Fraction] = []
+_J0_COEFFS: list[Fraction] = []
+_LOG_COEFFS: list[Fraction] = [Fraction(0)]
+
+
+def _extend_sigma(count: int) -> None:
+    """Extend the exact table of sigma_k to k = count.
+
+    With J_0(x) = sum_j a_j z^j, z = x^2, a_j = (-1)^j / (4^j j!^2), and
+    g = log J_0 = sum g_k z^k: J g' = J' gives k g_k = k a_k - sum_{i<k} i g_i a_{k-i};
+    then sigma_k = -k g_k.
+    """
+    while len(_J0_COEFFS) <= count:
+        j = len(_J0_COEFFS)
+        _J0_COEFFS.append(Fraction((-1) ** j, 4**j * factorial(j) ** 2))
+    a, g = _J0_COEFFS, _LOG_COEFFS
+    while len(g) <= count:
+        k = len(g)
         s = k * a[k]
         for i in range(1, k):
             s -= i * g[i] * a[k - i]
-        g[k] = s / k
-    # log J = -sum sigma_k z^k / k  =>  sigma_k = -k g_k
-    return tuple(-k * g[k] for k in range(1, count + 1))
+        g.append(s / k)
+        _SIGMA.append(-k * g[k])
 
 
 def rayleigh_sigma(k: int) -> Fraction:
     """sigma_k = sum_n j_{0,n}^(-2k), exactly (k >= 1)."""
     if k < 1:
         raise ValueError("k >= 1")
-    table = _sigma_table(max(200, k))
-    if k > len(table):
-        _sigma_table.cache_clear()
-        table = _sigma_table(k + 50)
-    return table[k - 1]
+    if k > len(_SIGMA):
+        _extend_sigma(k)
+    return _SIGMA[k - 1]
 
 
 J01_LO = Fraction(24048255576, 10**10)

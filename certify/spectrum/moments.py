@@ -64,7 +64,8 @@ def zero_power_sums(conductor: int, label: int, parity: int, count: int,
     relative to the scale of the expected residual, or raises PrecisionExhausted.
     """
     need = abs_accuracy_bits
-    prec = need + 4 * count + 2 * count.bit_length() * count + 64
+    # the alternating binomial sum loses about 2 bits per moment
+    prec = need + 3 * count + 64
     while prec <= max_prec:
         with workprec(prec):
             cs = log_lambda_coefficients(conductor, label, parity, count, prec)
