@@ -26,7 +26,7 @@ from ..errors import BadInput
 __all__ = ["FieldTable", "field_table", "primitive_modulus"]
 
 # Fields beyond this size would need tables of several GiB.
-MAX_FIELD_SIZE = 60_000_000
+MAX_FIELD_SIZE = 10_000_000
 
 
 def _is_prime(n: int) -> bool:
@@ -195,12 +195,34 @@ class FieldTable:
         return np.where(lx < 0, 0, r)
 
     def evaluate(self, coeffs: list[int], x: np.ndarray) -> np.ndarray:
-        """Evaluate a polynomial with coded coefficients (low degree first) at every x."""
+        """Evaluate a polynomial with coded coefficients (low degree first) at every x.
+
+        Each term a_i x^i is one table look-up (logarithms); the terms are summed
+        digit-wise in a small integer array and reduced modulo p once.
+        """
         x = np.asarray(x, dtype=np.int64)
-        acc = np.full(x.shape, coeffs[-1] if coeffs else 0, dtype=np.int64)
-        for c in reversed(coeffs[:-1]):
-            acc = self.add(self.mul(acc, x), c)
-        return acc
+        lx = self.log[x]
+        n = self.Q - 1
+        acc = np.zeros(x.shape + (self.M,), dtype=np.int32)
+        dig = self._digit_table()
+        for i, a in enumerate(coeffs):
+            if a == 0:
+                continue
+            la = int(self.log[a])
+            if i == 0:
+                acc += dig[a]
+                continue
+            term = self.exp[(la + i * lx) % n]
+            term = np.where(lx < 0, 0, term)
+            acc += dig[term]
+        acc %= self.p
+        return acc.astype(np.int64) @ self.powers
+
+    def _digit_table(self) -> np.ndarray:
+        if getattr(self, "_dig", None) is None:
+            codes = np.arange(self.Q, dtype=np.int64)
+            self._dig = np.stack([(codes // int(pw)) % self.p for pw in self.powers], axis=1).astype(np.int8)
+        return self._dig
 
     def subfield(self, k: int) -> np.ndarray:
         """Codes of the subfield with p^k elements (k | M), 0 first."""
@@ -208,6 +230,27 @@ class FieldTable:
             raise ValueError("not a subfield degree")
         step = (self.Q - 1) // (self.p**k - 1)
         return np.concatenate(([0], self.exp[:: step][: self.p**k - 1]))
+
+    def orbit_representatives(self, base_order: int, d: int) -> tuple[np.ndarray, np.ndarray]:
+        """One element per orbit of theta -> theta^base_order on F_Q (Q = base_order^d).
+
+        Returns (codes, orbit sizes): the representative is the element of least
+        exponent in its orbit; the orbit size is the exact degree of theta over
+        F_base.  0 is its own orbit.
+        """
+        n = self.Q - 1
+        L = np.arange(n, dtype=np.int64)  # exponents of all non-zero elements
+        mn = L.copy()
+        size = np.zeros(n, dtype=np.int64)
+        cur = L.copy()
+        for j in range(1, d + 1):
+            cur = (cur * base_order) % n
+            mn = np.minimum(mn, cur)
+            size = np.where((size == 0) & (cur == L), j, size)
+        rep = mn == L
+        codes = np.concatenate(([0], self.exp[rep]))
+        sizes = np.concatenate(([1], size[rep]))
+        return codes, sizes
 
     def exact_degree_mask(self, base_order: int, d: int) -> np.ndarray:
         """Mask of the elements of F_Q (Q = base_order^d) of exact degree d over F_base.
@@ -246,7 +289,6 @@ class FieldTable:
             shape = arr.shape
             flat = arr.reshape(-1, p)
             if p * l * l < 2**63:
-                # every partial sum of p products below l^2 fits in int64
                 res = (flat @ Wm) % l
             else:
                 res = np.zeros_like(flat)
@@ -271,7 +313,9 @@ class FieldTable:
         g = self.add(self.power(x, 3), self.mul(a0, x))
         N = np.bincount(self.neg(g), minlength=Q).astype(np.int64)  # N'(c) = N(-c)
         l = self._ntt_setup()[0]
-        conv = self._transform(self._transform(N, False) * self._transform(self.chi % l, False) % l, True)
+        if getattr(self, "_chi_hat", None) is None:
+            self._chi_hat = self._transform(self.chi % l, False)
+        conv = self._transform(self._transform(N, False) * self._chi_hat % l, True)
         conv = np.where(conv > l // 2, conv - l, conv)
         row = -conv
         self._trace_cache[a0] = row
