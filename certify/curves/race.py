@@ -1,0 +1,346 @@
+"""The trace race of a curve over F_q(t): the sign of the normalised sum of a_v.
+
+For X >= 1 put
+
+    T(X) = sum_{v good, deg v <= X} a_v / q^(deg v / 2)          (cumulative race)
+    A(n) = sum_{v good, deg v  = n} a_v                          (degree-n race)
+
+and write the inverse roots of L(E, u) as gamma_j = q e^(i theta_j).  The explicit
+formula (docs/elliptic_curves.md) gives, as X, n -> infinity,
+
+    (X / q^(X/2)) T(X) = mu_cum(X)  - sum_j Re[ e^(i X theta_j) / (1 - e^(-i theta_j) / sqrt q) ] + o(1),
+    (n / q^n)     A(n) = [n even]   - sum_j cos(n theta_j) + o(1),
+
+with the prime-square term mu_cum(X) = q/(q-1) for X even and sqrt q/(q-1) for X odd.
+Roots with gamma_j / q a root of unity (the rank's roots gamma = q among them) give
+a term periodic in X; the others, under LI, behave like independent uniform phases.
+The natural density of {X : T(X) > 0} is then the average over X mod P of
+P(mu_r + sum_k w_k cos Theta_k > 0), computed by the shared density engine.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from fractions import Fraction
+
+from flint import acb, fmpq, fmpq_mat, fmpz_mat
+
+from ..arith import arb, workprec
+from ..density.bessel import BesselVariable, density_enclosure
+from ..errors import BadInput, PrecisionExhausted
+from ..result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
+from .lpoly import LPolynomial
+from .model import EllipticCurve
+from .traces import degree_data
+
+__all__ = ["RaceVariable", "TraceRaceResult", "race_variable", "relation_search", "trace_race",
+           "observed_race", "MODES"]
+
+MODES = ("cumulative", "degree")
+
+
+@dataclass(frozen=True)
+class RaceVariable:
+    """The limit law: X = mu[r] + sum_k weights[k] cos Theta_k on the progression X = r mod period."""
+
+    mode: str
+    period: int
+    mu: tuple[arb, ...]
+    weights: tuple[arb, ...]
+    angles: tuple[arb, ...]          # theta_k in (0, pi), one per weight (non-torsion roots)
+    multiplicities: tuple[int, ...]
+    torsion: tuple[tuple[int, int], ...]   # (order m, multiplicity) of each torsion representative
+
+
+def _lcm(a: int, b: int) -> int:
+    return a * b // math.gcd(a, b)
+
+
+def race_variable(L: LPolynomial, mode: str, prec: int = 128) -> RaceVariable:
+    """Mean (periodic in X) and weights of the limit law of the normalised trace race."""
+    if mode not in MODES:
+        raise BadInput(f"race mode must be one of {', '.join(MODES)}, not {mode!r}")
+    q = L.q
+    period = 2
+    for r in L.roots:
+        if r.torsion_order:
+            period = _lcm(period, r.torsion_order)
+    with workprec(prec):
+        sq = arb(q).sqrt()
+        mus = []
+        for res in range(period):
+            if mode == "cumulative":
+                m = arb(q) / (q - 1) if res % 2 == 0 else sq / (q - 1)
+            else:
+                m = arb(1) if res % 2 == 0 else arb(0)
+            for r in L.roots:
+                if not r.torsion_order:
+                    continue
+                real = r.angle.is_exact() and (r.angle == 0 or r.angle == arb.pi())
+                zeta = acb(1) if (real and r.angle == 0) else (acb(-1) if real else (acb(0, r.angle)).exp())
+                # exact powers of a root of unity: zeta^res from the angle 2 pi a / m
+                term = zeta**res
+                if mode == "cumulative":
+                    term = term / (1 - zeta.conjugate() / sq)
+                contrib = term.real if real else 2 * term.real
+                m = m - r.multiplicity * contrib
+            mus.append(m)
+        weights, angles, mults = [], [], []
+        for r in L.roots:
+            if r.torsion_order:
+                continue
+            if mode == "cumulative":
+                w = 2 / abs(1 - (acb(0, -r.angle)).exp() / sq)
+            else:
+                w = arb(2)
+            weights.append(r.multiplicity * w)
+            angles.append(r.angle)
+            mults.append(r.multiplicity)
+    tors = tuple((r.torsion_order, r.multiplicity) for r in L.roots if r.torsion_order)
+    return RaceVariable(mode, period, tuple(mus), tuple(weights), tuple(angles), tuple(mults), tors)
+
+
+def relation_search(angles: list[arb], prec: int = 256) -> tuple[list[list[int]], arb | None]:
+    """Search integer relations k_0 + sum_j k_j theta_j / (2 pi) = 0 by LLL.
+
+    Returns (candidates, bound): candidate relation vectors (k_0, k_1, ..) whose
+    residual is tiny, and, when none is found, a certified lower bound on the
+    Euclidean norm of any integer relation: for the lattice with rows
+    (e_j, round(C x_j)) and any basis, the shortest vector is at least the least
+    Gram-Schmidt norm, and an exact relation k gives a vector of norm at most
+    |k| sqrt(1 + n (1/2 + C r)^2) (r bounds the radii of the x_j).
+    """
+    n = len(angles) + 1
+    if len(angles) == 0:
+        return [], None
+    with workprec(prec + 32):
+        xs = [arb(1)] + [a / (2 * arb.pi()) for a in angles]
+        rad = max(float(arb(x.rad()).upper()) for x in xs)
+        C = 2 ** max(8, min(prec // 2, int(-math.log2(rad + 2.0**-prec)) - 8))
+        rows = []
+        for j, x in enumerate(xs):
+            row = [0] * (n + 1)
+            row[j] = 1
+            row[n] = int((x * C).mid().floor().unique_fmpz()) if j else C
+            rows.append(row)
+    B = fmpz_mat(rows).lll()
+    cands = []
+    for i in range(B.nrows()):
+        k = [int(B[i, j]) for j in range(n)]
+        resid = int(B[i, n])
+        if any(k) and abs(resid) <= 2 * n * (sum(abs(v) for v in k) + 1) and max(abs(v) for v in k) < 10**4:
+            with workprec(prec):
+                s = sum((arb(v) * x for v, x in zip(k, xs)), arb(0))
+            if s.contains(0):
+                cands.append(k)
+    if cands:
+        return cands, None
+    # exact Gram-Schmidt norms of the reduced basis
+    Bq = [[fmpq(int(B[i, j])) for j in range(n + 1)] for i in range(B.nrows())]
+    gs: list[list] = []
+    norms = []
+    for v in Bq:
+        w = list(v)
+        for u, un in zip(gs, norms):
+            mu = sum((a * b for a, b in zip(v, u)), fmpq(0)) / un
+            w = [a - mu * b for a, b in zip(w, u)]
+        nn = sum((a * a for a in w), fmpq(0))
+        gs.append(w)
+        norms.append(nn)
+    lam2 = min(norms)
+    with workprec(prec):
+        lam = (arb(lam2.p) / arb(lam2.q)).sqrt()
+        factor = (1 + n * (arb(1) / 2 + C * arb(rad)) ** 2).sqrt()
+        bound = lam / factor
+    return [], arb(bound.lower())
+
+
+def _single_cosine(mu: arb, w: arb) -> Enclosure:
+    """P(mu + w cos Theta > 0) = arccos(-mu/w)/pi (clipped to [0, 1]), enclosed."""
+    c = -mu / w
+    lo_c, hi_c = arb(c.lower()), arb(c.upper())
+
+    def f(x: arb) -> arb:
+        if x >= 1:
+            return arb(0)
+        if x <= -1:
+            return arb(1)
+        if not (x > -1 and x < 1):
+            return arb(0).union(arb(1))
+        return x.acos() / arb.pi()
+
+    # decreasing in c: the value at the upper end is the lower bound
+    lo, hi = f(hi_c), f(lo_c)
+    return Enclosure.from_arb(lo.union(hi))
+
+
+def _width_floor(k: int, target: float) -> float:
+    """The characteristic function decays like xi^(-k/2): few weights need a wider target."""
+    floor = {1: 0.0, 2: 1e-4, 3: 1e-6}.get(k, 0.0)
+    return max(target, floor)
+
+
+@dataclass(frozen=True)
+class TraceRaceResult:
+    """Everything a certificate for a curve's trace race needs."""
+
+    curve: EllipticCurve
+        # the curve's data are in curve.as_dict()
+    lpoly: LPolynomial
+    mode: str
+    variable: RaceVariable
+    density: Enclosure
+    per_residue: tuple[Enclosure, ...]
+    budget: tuple[ErrorTerm, ...]
+    hypotheses: tuple[Hypothesis, ...]
+    parameters: dict
+    relation_bound: arb | None
+    observed: tuple[dict, ...] = field(default=())
+    caution: str = CAUTION
+
+    @property
+    def rank(self) -> int:
+        return self.lpoly.rank
+
+    def mean(self) -> arb:
+        """The mean of the limit law, averaged over X mod period."""
+        s = arb(0)
+        for m in self.variable.mu:
+            s += m
+        return s / self.variable.period
+
+
+def _combine(encs: list[DensityEnclosure | Enclosure]) -> tuple[Enclosure, tuple[ErrorTerm, ...]]:
+    P = len(encs)
+    lo = sum((e.enclosure.lower if isinstance(e, DensityEnclosure) else e.lower for e in encs), Fraction(0)) / P
+    hi = sum((e.enclosure.upper if isinstance(e, DensityEnclosure) else e.upper for e in encs), Fraction(0)) / P
+    terms: dict[str, list] = {}
+    desc: dict[str, str] = {}
+    for e in encs:
+        if isinstance(e, DensityEnclosure):
+            for t in e.budget:
+                terms.setdefault(t.name, []).append(t.bound)
+                desc[t.name] = t.description
+    budget = []
+    for name, bs in terms.items():
+        s = arb(0)
+        for b in bs:
+            s += b
+        budget.append(ErrorTerm(name, arb((s / P).upper()), desc[name] + f" (averaged over {P} residue classes of X)"))
+    return Enclosure(lo, hi), tuple(budget)
+
+
+def observed_race(E: EllipticCurve, L: LPolynomial, var: RaceVariable, x_max: int, prec: int = 128) -> tuple[dict, ...]:
+    """Exact trace sums for X <= x_max, the normalised value and the limit formula's value."""
+    q = E.q
+    out = []
+    cum = Fraction(0)
+    with workprec(prec):
+        sq = arb(q).sqrt()
+        total = arb(0)
+        for X in range(1, x_max + 1):
+            d = degree_data(E, X)
+            a_sum = d.good_place_sum
+            total += arb(a_sum) / sq**X
+            if var.mode == "cumulative":
+                val = total * X / sq**X
+            else:
+                val = arb(a_sum) * X / arb(q) ** X
+            pred = var.mu[X % var.period]
+            for w, th in zip(var.weights, var.angles):
+                if var.mode == "cumulative":
+                    z = (acb(0, X * th)).exp() / (1 - (acb(0, -th)).exp() / sq)
+                    pred = pred - 2 * (w / (2 / abs(1 - (acb(0, -th)).exp() / sq))) * z.real
+                else:
+                    pred = pred - w * (X * th).cos()
+            out.append({"X": X, "good_trace_sum_degree_X": a_sum, "places": d.good_place_count,
+                        "normalised": float(val.mid()), "limit_formula": float(pred.mid())})
+    return tuple(out)
+
+
+def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", target_width: float = 1e-8,
+               prec: int = 128, observe: int = 0) -> TraceRaceResult:
+    """Certified natural density of {X : the normalised trace sum is > 0}.
+
+    Parameters
+    ----------
+    E, L : the curve and its L-polynomial (:func:`certify.curves.lpoly.l_polynomial`).
+    mode : "cumulative" (good places of degree <= X) or "degree" (degree exactly X).
+    target_width : the density engine's target width for each residue class of X.
+    observe : if > 0, also list the exact sums for X <= observe (point counts).
+    """
+    if not (0 < target_width < 1):
+        raise BadInput("the target width must lie in (0, 1)")
+    var = race_variable(L, mode, prec)
+    k = len(var.weights)
+    rel_bound = None
+    hyps = [
+        Hypothesis(
+            "RH for L(E,u)", "every inverse root of L(E, u) has absolute value q",
+            "theorem",
+            (f"all {L.degree} inverse roots enclosed by Arb; ||gamma| - q| <= {L.max_modulus_error:.3g} for each",),
+            "P. Deligne, La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
+        Hypothesis(
+            "Degree and functional equation",
+            f"L(E, u) has degree deg N - 4 = {L.degree} and satisfies L(u) = eps (qu)^N' L(1/(q^2 u))",
+            "theorem",
+            (f"eps = {L.sign:+d} read from point counts of degrees <= {L.degrees_used}; "
+             f"confirmed by the exact point counts of degrees {list(L.degrees_confirmed)}",),
+            "A. Grothendieck, Formule de Lefschetz et rationalité des fonctions L, Sém. Bourbaki 279 (1965); "
+            "M. Raynaud, Caractéristique d'Euler-Poincaré d'un faisceau, Sém. Bourbaki 286 (1965)"),
+        Hypothesis(
+            "Weight bound for Sym^2", "the Sym^2 trace sums over places of degree m are O(q^(3m/2))",
+            "theorem", ("used only for the prime-square term's limit (docs/elliptic_curves.md)",),
+            "P. Deligne, La conjecture de Weil II (1980)"),
+    ]
+    if k == 0:
+        encs = []
+        for m in var.mu:
+            if m > 0:
+                encs.append(Enclosure(Fraction(1), Fraction(1)))
+            elif m < 0:
+                encs.append(Enclosure(Fraction(0), Fraction(0)))
+            else:
+                raise PrecisionExhausted(
+                    "not certified: the limit of the normalised sum is 0 on a progression of X, "
+                    "so its sign is decided by lower-order terms")
+        hyps.append(Hypothesis("LI", "no non-torsion inverse roots: nothing to assume", "verified",
+                               ("every inverse root is q times a root of unity (exact cyclotomic factors)",)))
+        dens, budget = _combine(encs)
+        params = {"engine": "exact (periodic limit)", "period": var.period}
+    else:
+        cands, rel_bound = relation_search(list(var.angles), prec=max(256, 2 * prec))
+        if cands:
+            raise PrecisionExhausted(
+                "not certified: the angles of the inverse roots appear to satisfy the integer relation(s) "
+                + "; ".join(str(c) for c in cands[:3])
+                + " (LI fails; the density on the orbit closure is not computed for curves)")
+        hyps.append(Hypothesis(
+            "LI", f"the numbers 1, theta_1/2pi, ..., theta_{k}/2pi of the {k} non-torsion angles are "
+            "linearly independent over Q",
+            "assumed",
+            (f"LLL on {k} angles found no relation; any integer relation has Euclidean norm >= "
+             f"{float(rel_bound.lower()):.4g} (certified from exact Gram-Schmidt norms)",
+             f"{len(var.torsion)} torsion root representative(s) handled exactly (period {var.period} in X)"),
+        ))
+        width = _width_floor(k, target_width)
+        encs = []
+        cache: dict = {}
+        for m in var.mu:
+            key = (str(m.mid()), str(m.rad()))
+            if key not in cache:
+                if k == 1:
+                    cache[key] = _single_cosine(m, var.weights[0])
+                else:
+                    cache[key] = density_enclosure(BesselVariable(m, var.weights), width)
+            encs.append(cache[key])
+        dens, budget = _combine(encs)
+        params = {"engine": "closed form arccos" if k == 1 else "certify.density.bessel.density_enclosure",
+                  "period": var.period, "target_width_per_class": width, "non_torsion_angles": k}
+        if k > 1:
+            params["engine_parameters"] = [e.parameters for e in encs[:1]]
+    per = tuple(e.enclosure if isinstance(e, DensityEnclosure) else e for e in encs)
+    params.update({"mode": mode, "prec": prec, "q": E.q, "l_degree": L.degree, "rank": L.rank})
+    obs = observed_race(E, L, var, observe, prec) if observe > 0 else ()
+    return TraceRaceResult(E, L, mode, var, dens, per, budget, tuple(hyps), params, rel_bound, obs)
