@@ -156,6 +156,13 @@ def relation_search(angles: list[arb], prec: int = 256) -> tuple[list[list[int]]
     return [], arb(bound.lower())
 
 
+def _places(d: Enclosure) -> int:
+    """Decimal places to print: enough for the width, 12 for an exact value, at most 40."""
+    if d.width == 0:
+        return 12
+    return min(max(d.places(), 6), 40)
+
+
 def _single_cosine(mu: arb, w: arb) -> Enclosure:
     """P(mu + w cos Theta > 0) = arccos(-mu/w)/pi (clipped to [0, 1]), enclosed."""
     c = -mu / w
@@ -209,6 +216,47 @@ class TraceRaceResult:
         for m in self.variable.mu:
             s += m
         return s / self.variable.period
+
+    def statement(self) -> str:
+        if self.mode == "cumulative":
+            return ("natural density of the X >= 1 with sum over good places v of degree <= X of "
+                    "a_v / q^(deg v / 2) > 0")
+        return "natural density of the n >= 1 with sum over good places v of degree exactly n of a_v > 0"
+
+    def to_dict(self) -> dict:
+        """A JSON-ready dictionary (decimal strings rounded outward)."""
+        d = self.density
+        places = _places(d)
+        var = self.variable
+        return {
+            "question": {"kind": f"elliptic-curve trace race ({self.mode})", "statement": self.statement(),
+                         "curve": self.curve.describe()},
+            "density": {
+                "lower": d.lower_str(places), "upper": d.upper_str(places),
+                "width": f"{float(d.width):.3e}", "certified_digits": d.digits()[:40],
+                **({"exact": f"{d.lower.numerator}/{d.lower.denominator}"} if d.width == 0 else {}),
+            },
+            "mean": {"averaged": self.mean().str(15, radius=True),
+                     "by_residue": [m.str(15, radius=True) for m in var.mu], "period": var.period},
+            "weights": [w.str(15, radius=True) for w in var.weights],
+            "per_residue_density": [{"residue": i, "lower": e.lower_str(places), "upper": e.upper_str(places)}
+                                    for i, e in enumerate(self.per_residue)],
+            "curve": self.curve.as_dict(),
+            "l_polynomial": self.lpoly.as_dict(),
+            "analytic_rank": self.lpoly.rank,
+            "hypotheses": [
+                {"name": h.name, "statement": h.statement, "status": h.status,
+                 "evidence": list(h.evidence), "reference": h.reference}
+                for h in self.hypotheses
+            ],
+            "error_budget": [
+                {"name": e.name, "bound": f"{e.bound_float:.3e}", "description": e.description}
+                for e in self.budget
+            ],
+            "parameters": self.parameters,
+            "observed": list(self.observed),
+            "caution": self.caution,
+        }
 
 
 def _combine(encs: list[DensityEnclosure | Enclosure]) -> tuple[Enclosure, tuple[ErrorTerm, ...]]:
