@@ -19,9 +19,9 @@ from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
 from ..races import DEFAULT_DIGITS, RaceResult, certify_race
 from ..result import CAUTION
-from ..spectrum.spectrum import SpectrumStore
+from ..spectrum.spectrum import SpectrumStore, residual_sums
 from .evidence import exact_ends, moment_consequences, refine_ordinate, relation_search
-from .model import Certificate, ball_record
+from .model import Certificate, ball_of, ball_record
 from .numbers import places_for, sci, sci_bound
 
 #: Ordinates used in the integer-relation search, their enclosure width and the lattice scale.
@@ -144,7 +144,13 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
     ordinates = []  # (height, group index, l index, zero ball) for the relation search
     for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
         prec = int(result.parameters.get("working_precision_bits", 128))
-        cons = moment_consequences(list(g.residual), list(g.zeros), prec=max(prec, 128))
+        # evidence from the stored (re-parsed) balls, exactly as verify will recompute it
+        stored_zeros = [ball_of(z) for z in rec["zeros"]]
+        with workprec(prec):
+            residual = residual_sums(list(g.target_sums), stored_zeros)
+        cons = moment_consequences(residual, stored_zeros, prec=max(prec, 128))
+        # a relative margin of 1e-9 below the recomputable value, then rounded down
+        cons["complete_below"] = cons["complete_below"] * (1 - Fraction(1, 10**9))
         for li, lf in enumerate(rec["l_functions"]):
             c, n = lf["conductor"], lf["label"]
             count = sum(1 for z in rec["zeros"] if z["l"] == li)
@@ -196,8 +202,13 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             lf = spectrum["groups"][gi]["l_functions"][li]
             zb = next(zz for zz in result.groups[gi].zeros
                       if ball_record(zz)["mid"] == z["mid"])
-            refined.append((lf, refine_ordinate(lf["conductor"], lf["label"], zb,
-                                                RELATION_WIDTH_BITS)))
+            lo, hi = exact_ends(zb)
+            if hi - lo <= Fraction(1, 2**RELATION_WIDTH_BITS):
+                refined.append((lf, zb))  # already narrow enough: keep the stored enclosure
+            else:
+                refined.append((lf, refine_ordinate(lf["conductor"], lf["label"], zb,
+                                                    RELATION_WIDTH_BITS)))
+        refined = [(lf, ball_of(ball_record(b))) for lf, b in refined]
         rs = relation_search([b for _, b in refined], RELATION_SCALE_BITS)
         K = rs["size"]
         if rs["candidate"] is None:

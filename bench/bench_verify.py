@@ -1,0 +1,65 @@
+"""Benchmark: re-verifying a certificate against computing it (cold).
+
+For each race: the time of the original computation (race engine with an
+empty spectrum store), of building the certificate (evidence: the LLL
+search refines 10 ordinates), of ``verify`` on the written JSON, and the
+ratio.  Also the size of the JSON and the Hardy Z evaluations of each side.
+
+Run: python3 bench/bench_verify.py [--quick]
+"""
+
+from __future__ import annotations
+
+import json
+import sys
+import time
+
+from certify.certificate.build import certificate_from_result
+from certify.certificate.model import Certificate
+from certify.certificate.verify import verify_certificate
+from certify.race.question import residue_race, two_way
+from certify.races import certify_race
+from certify.spectrum.spectrum import SpectrumStore
+
+CASES = [
+    (two_way(4, 3, 1), 12),
+    (two_way(4, 3, 1), 20),
+    (two_way(3, 2, 1), 12),
+    (two_way(5, 2, 1), 12),
+    (residue_race(8), 12),
+    (two_way(7, 3, 1), 10),
+    (two_way(13, 2, 1), 8),
+    (two_way(4, 3, 1), 30),
+]
+
+
+def main(argv):
+    cases = CASES[:3] if "--quick" in argv else CASES
+    print(f"{'race':<16}{'digits':>7}{'compute s':>11}{'evidence s':>11}{'verify s':>10}"
+          f"{'ratio':>8}{'Z calls':>9}{'Z verify':>9}{'zeros':>7}{'JSON kB':>9}  ok")
+    ratios = []
+    for q, d in cases:
+        store = SpectrumStore()
+        t0 = time.perf_counter()
+        result = certify_race(q, d, store=store)
+        t1 = time.perf_counter()
+        cert = certificate_from_result(result, store)
+        t2 = time.perf_counter()
+        text = cert.to_json()
+        back = Certificate.from_dict(json.loads(text))
+        t3 = time.perf_counter()
+        rep = verify_certificate(back)
+        t4 = time.perf_counter()
+        compute, verify = t1 - t0, t4 - t3
+        ratios.append(compute / verify)
+        print(f"{q.label:<16}{d:>7}{compute:>11.2f}{t2 - t1:>11.2f}{verify:>10.2f}"
+              f"{compute / verify:>8.1f}{result.parameters['hardy_z_evaluations']:>9}"
+              f"{rep.z_evaluations:>9}{result.parameters['zeros_used']:>7}"
+              f"{len(text) / 1024:>9.1f}  {rep.ok}")
+    ratios.sort()
+    print(f"median ratio compute/verify: {ratios[len(ratios) // 2]:.1f} "
+          f"(min {ratios[0]:.1f}, max {ratios[-1]:.1f})")
+
+
+if __name__ == "__main__":
+    main(sys.argv[1:])
