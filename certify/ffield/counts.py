@@ -95,7 +95,11 @@ class RaceCounter:
         Integer weights on unit classes (positions in ``G.elements``).
     """
 
-    def __init__(self, G: CharacterGroup, weights: dict[int, int]):
+    def __init__(self, G: CharacterGroup, weights: dict[int, int],
+                 characters: list[Character] | None = None, period: int | None = None):
+        """``characters``: restrict to these (the caller guarantees What_r(chi) = 0 for the
+        others); ``period``: What_r depends on r only modulo this divisor of e (the caller
+        guarantees w(c^r) = w(c^(r mod period)) for every unit c)."""
         if not weights:
             raise BadInput("a race needs at least one class")
         self.G = G
@@ -111,22 +115,25 @@ class RaceCounter:
         self.q = G.F.q
         self.bad_degrees = [P.degree() for P, _ in G.factors]
         # What_r(chi) for r = 0..e-1 as elements of Z[zeta_e]; keep characters used by some r
-        pw = [G.power_map(r) for r in range(e)]
-        wr = [w[pw[r]] for r in range(e)]
+        self.period = period or e
+        if e % self.period:
+            raise ValueError("period must divide the group exponent")
+        pw = [G.power_map(r) for r in range(self.period)]
+        wr = [w[pw[r]] for r in range(self.period)]
         self.chars: list[Character] = []
         self.what: list[list[fmpz_poly]] = []  # what[r][i]
         what_cols = []
-        for chi in G.characters():
+        for chi in (characters if characters is not None else G.characters()):
             ex = chi.position_exponents * (e // chi.order)
             neg = (-ex) % e
             col = []
-            for r in range(e):
+            for r in range(self.period):
                 cnt = np.bincount(neg, weights=wr[r], minlength=e)
                 col.append(R.from_counts(np.rint(cnt).astype(np.int64)))
             if any(not x.is_zero() for x in col):
                 self.chars.append(chi)
                 what_cols.append(col)
-        self.what = [[col[r] for col in what_cols] for r in range(e)]
+        self.what = [[col[r] for col in what_cols] for r in range(self.period)]
         self.streams = [None if chi.is_trivial() else _PowerSums(chi, R) for chi in self.chars]
         self.k = 0
         self.acc: dict[int, fmpz] = {}
@@ -166,7 +173,7 @@ class RaceCounter:
                 mu = mobius(d)
                 if mu == 0:
                     continue
-                r = d % self.e
+                r = d % self.period
                 if r not in cache:
                     cache[r] = self._v(r, psis)
                 if cache[r] == 0:

@@ -1,0 +1,345 @@
+"""Angles of inverse roots as exact algebraic numbers, their integer relations, and
+densities on the closure of the orbit {n (x_0, x_1, ..., x_J) mod 1}.
+
+Exact identity of a root.  Every inverse root alpha of an L-polynomial is a
+root of the reversed norm polynomial, which factors exactly over Z; an
+irreducible factor g has simple roots, isolated by ``fmpz_poly.complex_roots``.
+If alpha's ball meets exactly one of those root balls, alpha *is* that root:
+:class:`ExactRoot` = (g, index).  Equality of two roots is then exact, and
+``alpha = +-sqrt(q)`` holds exactly when g divides y^2 - q.
+
+Relations.  With x_0 = 1/2 (the angle pi) and x_j = theta_j / 2 pi for the
+angles theta_j in (0, pi) of distinct roots, a relation is k in Z^(J+1) with
+k . x in Z, i.e. prod_j (alpha_j / sqrt q)^(k_j) = (-1)^(k_0).  Candidates come
+from LLL on the lattice [I | round(C x)] + [0 | C]; each is confirmed exactly:
+beta = prod_{k_j > 0} alpha_j^(2 k_j) prod_{k_j < 0} conj(alpha_j)^(2|k_j|) is a
+root of an integer polynomial P built by resultants (powers and products of
+the minimal polynomials); beta = q^S (S = sum |k_j|) exactly when P(q^S) = 0
+and P / (y - q^S)^v does not vanish on beta's ball.  Then
+gamma = prod (alpha_j / sqrt q)^(k_j) satisfies gamma^2 = 1 exactly, and a ball
+decides gamma = 1 or -1, hence k_0 mod 2.
+
+Orbit closure.  For the relation lattice K (rows), the closure of
+{n x mod 1 : n in Z} is H = {x : K x in Z^r}.  With the Smith form
+U K V = D, x = V y where y_i in (1/d_i) Z / Z (i <= r) and y_i free (i > r): a
+finite set of cosets of a torus of dimension J + 1 - r.  The natural density
+of {G > 0} along the orbit lies between the Haar measures of {G > 0} and
+{G >= 0} on H (Weyl equidistribution on H and the portmanteau theorem, see
+docs/function_fields.md); :func:`density_on_closure` encloses both by
+interval box subdivision, reporting the undecided volume as an error term.
+"""
+
+from __future__ import annotations
+
+import functools
+import itertools
+import math
+from dataclasses import dataclass
+from fractions import Fraction
+
+from flint import acb, fmpz, fmpz_mat, fmpz_mpoly_ctx, fmpz_poly
+
+from ..arith import arb, workprec
+from ..errors import Inconsistent, PrecisionExhausted
+from .characters import smith_normal_form
+
+__all__ = ["ExactRoot", "identify_root", "find_relations", "confirm_relation",
+           "OrbitClosure", "orbit_closure", "density_on_closure", "TrigFunction"]
+
+
+# ---------------------------------------------------------------- exact roots
+@functools.lru_cache(maxsize=512)
+def _factor_roots(coeffs: tuple[int, ...], prec: int):
+    """Irreducible factors of a Z-polynomial with their isolated roots at ``prec`` bits."""
+    P = fmpz_poly(list(coeffs))
+    _, facs = P.factor()
+    out = []
+    with workprec(prec):
+        for g, _ in facs:
+            if g.degree() < 1:
+                continue
+            out.append((tuple(int(c) for c in g.coeffs()), tuple(r for r, _ in g.complex_roots())))
+    return tuple(out)
+
+
+#: Precision (bits) at which the roots of a factor are numbered once and for all.
+CANONICAL_PREC = 256
+
+
+def _roots_of(g: tuple[int, ...], prec: int):
+    for h, roots in _factor_roots(g, prec):
+        if h == g or h == tuple(-c for c in g):
+            return roots
+    # g is irreducible: its own factorisation is itself
+    return _factor_roots(g, prec)[0][1]
+
+
+@dataclass(frozen=True)
+class ExactRoot:
+    """Root number ``index`` (numbering at CANONICAL_PREC bits) of the irreducible Z-polynomial ``g``."""
+
+    g: tuple[int, ...]
+    index: int
+
+    def ball(self, prec: int) -> acb:
+        ref = _roots_of(self.g, CANONICAL_PREC)[self.index]
+        if prec <= CANONICAL_PREC:
+            return ref
+        hits = [r for r in _roots_of(self.g, prec) if r.overlaps(ref)]
+        if len(hits) != 1:
+            raise PrecisionExhausted("not certified: root numbering is ambiguous")
+        return hits[0]
+
+    def poly(self) -> fmpz_poly:
+        return fmpz_poly(list(self.g))
+
+    def is_plus_minus_sqrt(self, q: int) -> bool:
+        """Exactly: is this root equal to +sqrt(q) or -sqrt(q)?"""
+        return (fmpz_poly([-q, 0, 1]) % self.poly()).is_zero()
+
+
+def identify_root(alpha: acb, norm_rev: fmpz_poly, prec: int = 128) -> ExactRoot:
+    """The exact root of ``norm_rev`` (a Z-polynomial having alpha as a root) equal to alpha.
+
+    alpha is a root of norm_rev, whose roots are isolated in disjoint balls; if
+    alpha's ball meets exactly one of them, alpha is that root.
+    """
+    key = tuple(int(c) for c in norm_rev.coeffs())
+    hits = []
+    for g, roots in _factor_roots(key, CANONICAL_PREC):
+        for i, r in enumerate(roots):
+            if alpha.overlaps(r):
+                hits.append((g, i))
+    if len(hits) == 1:
+        return ExactRoot(*hits[0])
+    if not hits:
+        raise Inconsistent("an inverse root is not a root of its norm polynomial")
+    raise PrecisionExhausted("not certified: could not identify an inverse root exactly "
+                             "(raise the working precision)")
+
+
+# ---------------------------------------------------------------- relations
+def find_relations(x: list[arb], coeff_bound: int = 60, prec: int = 256) -> list[list[int]]:
+    """Integer vectors k (small) with k . x numerically in Z, by LLL.
+
+    ``x`` are balls (x_0 = 1/2 included by the caller).  Returns candidate
+    relations (not yet confirmed): the LLL basis rows whose residual is below
+    2^(-prec/3) relative to the scale and whose entries are <= coeff_bound.
+    """
+    n = len(x)
+    if n == 0:
+        return []
+    C = fmpz(2) ** (prec // 2)
+    rows = []
+    with workprec(prec + 32):
+        for i in range(n):
+            r = [0] * (n + 2)
+            r[i] = 1
+            r[n + 1] = int((x[i] * arb(C)).mid().floor().unique_fmpz())
+            rows.append(r)
+        r = [0] * (n + 2)
+        r[n] = 1
+        r[n + 1] = int(C)
+        rows.append(r)
+    B = fmpz_mat(rows).lll()
+    out = []
+    for i in range(B.nrows()):
+        row = [int(B[i, j]) for j in range(n + 2)]
+        k = row[:n]
+        if not any(k) or max(abs(v) for v in k) > coeff_bound:
+            continue
+        if abs(row[n + 1]) > 4 * (n + 2) * (sum(abs(v) for v in k) + 1):
+            continue
+        # residual check with balls: k . x within 2^(-prec/3) of an integer
+        with workprec(prec):
+            s = sum((arb(v) * xi for v, xi in zip(k, x)), arb(0))
+            frac = s - s.mid().floor() if False else s - arb(round(float(s.mid())))
+            if abs(float(frac.mid())) < 2.0 ** (-prec / 3):
+                out.append(k)
+    return out
+
+
+def _power_poly(g: fmpz_poly, k: int) -> fmpz_poly:
+    """A Z-polynomial whose roots are the k-th powers of the roots of g (resultant)."""
+    if k == 1:
+        return g
+    ctx = fmpz_mpoly_ctx.get(("x", "y"), "lex")
+    X, Y = ctx.gens()
+    G = sum((int(c) * X**i for i, c in enumerate(g.coeffs()) if int(c)), 0 * X)
+    res = G.resultant(Y - X**k, "x")
+    return _to_upoly(res, 1)
+
+
+def _product_poly(p1: fmpz_poly, p2: fmpz_poly) -> fmpz_poly:
+    """A Z-polynomial whose roots are the products of a root of p1 and a root of p2."""
+    ctx = fmpz_mpoly_ctx.get(("x", "y"), "lex")
+    X, Y = ctx.gens()
+    A = sum((int(c) * X**i for i, c in enumerate(p1.coeffs()) if int(c)), 0 * X)
+    d2 = p2.degree()
+    # x^d2 p2(y/x) = sum c_i y^i x^(d2-i)
+    Bp = sum((int(c) * Y**i * X**(d2 - i) for i, c in enumerate(p2.coeffs()) if int(c)), 0 * X)
+    res = A.resultant(Bp, "x")
+    return _to_upoly(res, 1)
+
+
+def _to_upoly(mp, var: int) -> fmpz_poly:
+    d = mp.to_dict()
+    deg = max((k[var] for k in d), default=0)
+    cs = [0] * (deg + 1)
+    for k, v in d.items():
+        cs[k[var]] += int(v)
+    return fmpz_poly(cs)
+
+
+def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
+                     max_degree: int = 4000) -> int | None:
+    """Confirm prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly; return k_0 mod 2, or None.
+
+    ``roots[j]`` are :class:`ExactRoot` for j = 1..J (index 0 of k is the pi coordinate
+    and is ignored here).  None means not confirmed (the relation is not used).
+    """
+    parts = [(r, kj) for r, kj in zip(roots, k[1:]) if kj]
+    if not parts:
+        return k[0] % 2
+    P = None
+    deg = 1
+    for r, kj in parts:
+        deg *= r.poly().degree()
+        if deg > max_degree:
+            return None
+        Pj = _power_poly(r.poly(), 2 * abs(kj))
+        P = Pj if P is None else _product_poly(P, Pj)
+    S = sum(abs(kj) for _, kj in parts)
+    Q = fmpz(q) ** S
+    if int(P(Q)) != 0:  # (fmpz.is_zero is unreliable in python-flint 0.9)
+        return None
+    lin = fmpz_poly([-Q, 1])
+    P1 = P
+    while (P1 % lin).is_zero():
+        P1 = P1 // lin
+    with workprec(prec):
+        beta = acb(1)
+        gamma = acb(1)
+        sq = arb(q).sqrt()
+        for r, kj in parts:
+            a = r.ball(prec)
+            a = a if kj > 0 else a.conjugate()
+            beta *= a ** (2 * abs(kj))
+            gamma *= (a / sq) ** abs(kj)
+        val = _eval_acb(P1, beta)
+        if val.contains(0):
+            return None
+        if (gamma - 1).abs_upper() < 1:
+            return 0
+        if (gamma + 1).abs_upper() < 1:
+            return 1
+    return None
+
+
+def _eval_acb(P: fmpz_poly, z: acb) -> acb:
+    s = acb(0)
+    for c in reversed(P.coeffs()):
+        s = s * z + int(c)
+    return s
+
+
+# ---------------------------------------------------------------- orbit closure
+@dataclass(frozen=True)
+class OrbitClosure:
+    """H = {x = V y : y_i in (1/d_i) Z/Z for i < r, y_i in R/Z otherwise} in T^(J+1)."""
+
+    relations: tuple[tuple[int, ...], ...]
+    V: tuple[tuple[int, ...], ...]
+    d: tuple[int, ...]  # finite orders of the first r coordinates
+    dim: int  # number of free coordinates
+
+    @property
+    def n_components(self) -> int:
+        return math.prod(self.d)
+
+    def describe(self) -> str:
+        return (f"{self.n_components} coset(s) of a {self.dim}-dimensional subtorus "
+                f"of T^{len(self.V)} cut out by {len(self.relations)} relation(s)")
+
+
+def orbit_closure(relations: list[list[int]], n: int) -> OrbitClosure:
+    """The closed subgroup {x in T^n : k . x in Z for every relation k}."""
+    rel = [list(map(int, k)) for k in relations if any(k)]
+    if not rel:
+        I = tuple(tuple(int(i == j) for j in range(n)) for i in range(n))
+        return OrbitClosure((), I, (), n)
+    U, D, V = smith_normal_form(rel)
+    r = sum(1 for i in range(min(len(rel), n)) if D[i][i] != 0)
+    d = tuple(D[i][i] for i in range(r))
+    return OrbitClosure(tuple(map(tuple, rel)), tuple(map(tuple, V)), d, n - r)
+
+
+@dataclass(frozen=True)
+class TrigFunction:
+    """G(x) = const + sum_k Re(B_k exp(2 pi i x_{c_k})), x in T^n (balls)."""
+
+    const: arb
+    terms: tuple[tuple[int, acb], ...]  # (coordinate, B)
+
+    def eval_box(self, x_mid: list[arb]) -> arb:
+        s = self.const
+        for c, B in self.terms:
+            e = (2 * arb.pi() * x_mid[c])
+            s += B.real * e.cos() - B.imag * e.sin()
+        return s
+
+
+def density_on_closure(G: TrigFunction, H: OrbitClosure, target_width: float,
+                       max_boxes: int = 200000, prec: int = 96):
+    """Enclose the Haar measures of {G > 0} and {G >= 0} on H by box subdivision.
+
+    Boxes (in the free coordinates of each coset) are refined level by level;
+    a box counts as positive when the ball of G on it is > 0, is dropped when
+    the ball is < 0, and is otherwise split in 2^dim.  Refinement stops when
+    the undecided volume is below half the target width or the next level
+    would exceed ``max_boxes``.  Returns (lower, upper, undecided, boxes) with
+    exact Fractions; upper = lower + undecided.
+    """
+    n = len(H.V)
+    r = len(H.d)
+    f = H.dim
+    n_comp = H.n_components
+    lower = Fraction(0)
+    boxes = 0
+    pending = []  # (fixed coordinates, lo corner, side)
+    for fin in itertools.product(*[range(di) for di in H.d]):
+        y_fix = tuple(Fraction(a, di) for a, di in zip(fin, H.d))
+        pending.append((y_fix, tuple(Fraction(0) for _ in range(f)), Fraction(1)))
+    weight = Fraction(1, n_comp)
+    tau = Fraction(target_width)
+    with workprec(prec):
+        while pending:
+            nxt = []
+            for y_fix, lo, side in pending:
+                boxes += 1
+                x = []
+                for i in range(n):
+                    row = H.V[i]
+                    c = sum((row[j] * y_fix[j] for j in range(r)), Fraction(0))
+                    c += sum((row[r + j] * (lo[j] + side / 2) for j in range(f)), Fraction(0))
+                    rad = sum(abs(row[r + j]) for j in range(f)) * side / 2
+                    ball = arb(c.numerator) / c.denominator
+                    if rad:
+                        ball += arb(0, arb(rad.numerator) / rad.denominator)
+                    x.append(ball)
+                val = G.eval_box(x)
+                if val > 0:
+                    lower += side**f * weight
+                elif val < 0:
+                    pass
+                else:
+                    nxt.append((y_fix, lo, side))
+            und = sum((s**f * weight for _, _, s in nxt), Fraction(0))
+            if f == 0 or und <= tau / 2 or boxes + len(nxt) * 2**f > max_boxes:
+                return lower, lower + und, und, boxes
+            pending = []
+            for y_fix, lo, side in nxt:
+                half = side / 2
+                for corner in itertools.product((0, 1), repeat=f):
+                    pending.append((y_fix, tuple(l + c * half for l, c in zip(lo, corner)), half))
+    return lower, lower, Fraction(0), boxes
