@@ -83,7 +83,11 @@ class FFRaceQuestion:
 
     @property
     def statement(self) -> str:
-        s = " + ".join(f"({w})*pi(n; m, {c})" for c, w in zip(self.classes, self.weights))
+        if self.classes == ("non-residues", "residues"):
+            s = (f"{self.weights[0]} * (sum of pi(n; m, a) over each non-residue class a) "
+                 f"- {-self.weights[1]} * (sum over each residue class)")
+        else:
+            s = " + ".join(f"({w})*pi(n; m, {c})" for c, w in zip(self.classes, self.weights))
         if self.mode == "cumulative":
             return (f"natural density of the X >= 1 with sum_(n <= X) [{s}] > 0, "
                     f"m = {self.modulus} over F_{self.q}")

@@ -1,0 +1,170 @@
+"""``certify ffrace`` and ``certify fflpoly``: prime races and L-polynomials in F_q[t].
+
+Examples::
+
+    certify ffrace 3 "t^2+1" "t+1" 1                    # two-way, cumulative (degree <= X)
+    certify ffrace 3 "t^2+1" "t+1" 1 --mode degree      # prescribed degree (degree = X)
+    certify ffrace 5 "t^2+t" 1 2 3 --weights 2 -1 -1    # weighted
+    certify ffrace 5 "t^7+t+3" --residues --json out.json
+    certify fflpoly 9 "t^2+t"                            # characters, L-polynomials, Weil check
+
+Polynomials are text in ``t``; for a prime power q the generator of F_q over
+its prime field is written ``z`` (see ``certify.ffield.poly``).
+"""
+
+from __future__ import annotations
+
+import json
+import sys
+
+from ..errors import BadInput
+from ..result import CAUTION
+
+NAME_RACE = "ffrace"
+NAME_LPOLY = "fflpoly"
+MAX_DIGITS = 30
+
+
+def _int(text, what: str) -> int:
+    try:
+        return int(str(text))
+    except (TypeError, ValueError):
+        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+
+
+def screen(res) -> str:
+    """One screen of text for a function-field race result."""
+    d = res.density
+    places = d.places()
+    lines = [
+        f"{res.question.label} = {d.digits() or '(no digit certified)'}",
+        f"  {res.question.statement}",
+        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        + ("" if res.target_met else f"   (target {res.target_width:.0e} NOT met)"),
+        f"  case: {res.case}; {res.closure.describe()}; method: {res.parameters.get('method')}",
+        f"  {len(res.l_data)} L-polynomials, {len(res.points)} distinct roots of modulus sqrt(q) "
+        f"({res.parameters['angles_J']} angles in (0, pi)); {res.timings.get('total', 0):.2f} s",
+    ]
+    if res.relations:
+        lines.append("  relations (confirmed exactly), coordinates (pi, theta_1, ...): "
+                     + "; ".join(str(list(r)) for r in res.relations))
+    lines.append("  error budget:")
+    for e in res.budget:
+        lines.append(f"    {e.name:<40} <= {e.bound_float:.2e}")
+    lines.append("  hypotheses:")
+    for h in res.hypotheses:
+        lines.append(f"    {h.name} [{h.status}]: {h.statement}")
+    if res.leaders:
+        L = res.leaders
+        led = ", ".join(f"{k}: {len(v)}" for k, v in L.degrees_led.items())
+        lines.append(f"  exact counts to degree {L.bound} ({L.mode}): first leader change at "
+                     f"{L.first_change if L.first_change else 'none'}; degrees led: {led}")
+    lines.append(f"  {CAUTION} Here Weil's theorem is proven; LI or the completeness of the "
+                 "listed relations is assumed.")
+    return "\n".join(lines)
+
+
+def _emit_json(obj: dict, path: str) -> None:
+    text = json.dumps(obj, indent=2, default=str)
+    if path == "-":
+        sys.stdout.write(text + "\n")
+    else:
+        try:
+            from ..io import write_atomic
+            write_atomic(path, text + "\n")
+        except ImportError:  # pragma: no cover - older trees without certify.io
+            with open(path, "w", encoding="utf-8") as fh:
+                fh.write(text + "\n")
+
+
+def run_race(args) -> int:
+    from .race import certify_ffrace, parse_race, residue_race
+
+    digits = _int(args.digits, "--digits")
+    if not (1 <= digits <= MAX_DIGITS):
+        raise BadInput(f"--digits must be between 1 and {MAX_DIGITS} (got {digits})")
+    leaders = _int(args.leaders, "--leaders")
+    if not (0 <= leaders <= 2000):
+        raise BadInput(f"--leaders must be between 0 and 2000 (got {leaders})")
+    if args.residues:
+        if args.classes:
+            raise BadInput("give either --residues or classes, not both")
+        if args.weights:
+            raise BadInput("--weights does not apply to --residues")
+        qn, G, wd = residue_race(args.q, args.modulus, args.mode)
+    else:
+        qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
+    res = certify_ffrace(qn, G, wd, target_width=10.0 ** (-digits), leader_bound=leaders)
+    if args.json:
+        _emit_json(res.to_dict(), args.json)
+    if args.json != "-":
+        print(screen(res))
+    return 0 if res.target_met else 5
+
+
+def run_lpoly(args) -> int:
+    from .characters import character_group
+    from .lpoly import l_polynomial, weil_check
+    from .poly import finite_field, parse_field_order, parse_monic, poly_str
+
+    q = parse_field_order(args.q)
+    F = finite_field(q)
+    m = parse_monic(args.modulus, F, "modulus")
+    if q ** m.degree() > 10**6:
+        raise BadInput("fflpoly lists every character: use a modulus with q^deg m <= 10^6")
+    G = character_group(F, m)
+    limit = _int(args.limit, "--limit")
+    out = []
+    lines = [G.describe(), f"  field: {F.describe()}"]
+    for i, chi in enumerate(G.characters()):
+        if chi.is_trivial():
+            continue
+        if len(out) >= limit:
+            lines.append(f"  ... ({G.order - 1 - limit} more characters; raise --limit)")
+            break
+        L = l_polynomial(chi)
+        rep = weil_check(L)
+        roots = L.inverse_roots()
+        out.append({"character": chi.label(), "order": chi.order,
+                    "parity": "even" if chi.is_even else "odd",
+                    "conductor": poly_str(chi.conductor, F), "degree": L.degree,
+                    "coefficients": L.coefficient_strings(),
+                    "inverse_roots": [r.str(12, radius=True) for r in roots],
+                    "weil_check": rep.describe(), "weil_ok": rep.ok})
+        lines.append(f"  {chi.describe()}: L = [{', '.join(L.coefficient_strings())}] "
+                     f"(zeta = exp(2 pi i/{chi.order})); {rep.describe()}")
+    if args.json:
+        _emit_json({"group": G.describe(), "field": F.describe(), "characters": out}, args.json)
+    if args.json != "-":
+        print("\n".join(lines))
+    return 0 if all(o["weil_ok"] for o in out) else 4
+
+
+def register(subparsers) -> None:
+    p = subparsers.add_parser(
+        NAME_RACE, help="density of a prime race in F_q[t] (cumulative or prescribed degree)",
+        description="Certified natural density of a prime race among residue classes modulo a "
+                    "monic m in F_q[t]. Polynomials in t; for prime powers q the generator of "
+                    "F_q is z. Conditional on LI (or on the completeness of the relations found).")
+    p.add_argument("q", help="field order (a prime power)")
+    p.add_argument("modulus", help="monic modulus m, e.g. 't^2+1'")
+    p.add_argument("classes", nargs="*", help="residue classes coprime to m, e.g. 't+1' 1")
+    p.add_argument("--weights", nargs="+", metavar="W", help="integer weights summing to 0 (default 1 -1)")
+    p.add_argument("--residues", action="store_true", help="race non-residues against residues")
+    p.add_argument("--mode", default="cumulative", choices=["cumulative", "degree"],
+                   help="cumulative: primes of degree <= X; degree: primes of degree exactly X")
+    p.add_argument("--digits", "-d", default="10", metavar="D", help="target width 10^-D (default 10)")
+    p.add_argument("--leaders", default="60", metavar="N",
+                   help="report leaders from exact counts up to degree N (0: skip; default 60)")
+    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.set_defaults(func=run_race)
+
+    p2 = subparsers.add_parser(
+        NAME_LPOLY, help="characters mod m in F_q[t] with their L-polynomials and inverse roots",
+        description="List the characters of (F_q[t]/m)^x with exact L-polynomials, certified "
+                    "inverse roots and the check against Weil's theorem.")
+    p2.add_argument("q", help="field order (a prime power)")
+    p2.add_argument("modulus", help="monic modulus m")
+    p2.add_argument("--limit", default="50", help="at most this many characters (default 50)")
+    p2.add_argument("--json", metavar="PATH", help="write JSON (- for stdout)")
+    p2.set_defaults(func=run_lpoly)
