@@ -1,0 +1,66 @@
+"""The ffrace / fflpoly commands through certify.cli.main: outputs, JSON, bad input."""
+
+import json
+from fractions import Fraction
+
+import pytest
+
+from certify.cli import main
+
+
+def test_ffrace_json_and_screen(tmp_path, capsys):
+    out = tmp_path / "r.json"
+    rc = main(["ffrace", "3", "t^2+1", "t+1", "1", "--digits", "9", "--leaders", "20",
+               "--json", str(out)])
+    assert rc == 0
+    text = capsys.readouterr().out
+    assert "enclosure" in text and "hypotheses" in text and "Conditional" in text
+    d = json.loads(out.read_text())
+    lo, hi = Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"])
+    assert 0 < hi - lo <= Fraction(1, 10**9) * 2
+    # independent value: frequency of the exact cumulative sign over X <= 1000 (tolerance 0.02)
+    from certify.ffield.race import empirical_frequency, exact_race_values, parse_race
+    qn, G, wd = parse_race(3, "t^2+1", ["t+1", "1"])
+    emp = empirical_frequency(exact_race_values(G, wd, 1000, qn), "cumulative")
+    assert lo - Fraction(2, 100) <= emp <= hi + Fraction(2, 100)
+    names = [h["name"] for h in d["hypotheses"]]
+    assert "Weil" in names and "relations" in names
+    assert all({"name", "statement", "status", "evidence"} <= set(h) for h in d["hypotheses"])
+    assert all({"name", "bound"} <= set(e) for e in d["error_budget"])
+    assert d["parameters"]["q"] == 3 and d["l_polynomials"]
+    assert d["limit_function"]["relations"]
+
+
+def test_ffrace_json_stdout(capsys):
+    rc = main(["ffrace", "9", "t^2+t", "z", "1", "--digits", "6", "--leaders", "0", "--json", "-"])
+    assert rc == 0
+    d = json.loads(capsys.readouterr().out)
+    assert Fraction(d["density"]["lower"]) <= Fraction(d["density"]["upper"])
+
+
+def test_fflpoly(capsys):
+    rc = main(["fflpoly", "4", "t^2+z", "--limit", "6"])
+    assert rc == 0
+    out = capsys.readouterr().out
+    assert "0 undecided" in out and "F_4 = F_2[z]" in out
+
+
+@pytest.mark.parametrize("argv,needle", [
+    (["ffrace", "6", "t^2+1", "1", "2"], "prime power"),
+    (["ffrace", "1", "t^2+1", "1", "2"], "prime power"),
+    (["ffrace", "3", "2*t^2+1", "1", "2"], "monic"),
+    (["ffrace", "3", "2", "1", "2"], "degree >= 1"),
+    (["ffrace", "3", "t^2+t", "t", "1"], "not coprime"),
+    (["ffrace", "3", "t^2+1", "t^2+2", "1"], "same residue class"),
+    (["ffrace", "3", "t^2+1", "t+", "1"], "cannot parse"),
+    (["ffrace", "3", "t^2+1", "1", "2", "--weights", "1", "1"], "sum to 0"),
+    (["ffrace", "3", "t^2+1", "1", "2", "--mode", "sideways"], "invalid choice"),
+    (["ffrace", "3", "t^2+1", "1"], "at least two"),
+    (["ffrace", "5", "t^2+z", "1", "2"], "prime"),
+    (["fflpoly", "4", "t^2+x"], "unknown name"),
+])
+def test_bad_input_one_line(argv, needle, capsys):
+    rc = main(argv)
+    assert rc != 0
+    err = capsys.readouterr().err.strip()
+    assert "\n" not in err and needle in err and "Traceback" not in err
