@@ -124,11 +124,12 @@ class MemberResult:
     density: Enclosure | None
     mean: float | None
     status: str            # "certified" or "not certified: <why>"
+    confirmed: tuple[int, ...] = ()   # degrees of point counts beyond those used that confirm L
 
     def as_dict(self) -> dict:
         d = {"f": self.f, "conductor_degree": self.conductor_degree, "l_degree": self.l_degree,
              "rank": self.rank, "sign": self.sign, "l_coefficients": list(self.l_coefficients),
-             "status": self.status, "limit_mean": self.mean}
+             "status": self.status, "limit_mean": self.mean, "confirmed_by_degrees": list(self.confirmed)}
         if self.density is not None:
             d["density"] = {"lower": self.density.lower_str(12), "upper": self.density.upper_str(12)}
         return d
@@ -224,11 +225,12 @@ def _member(E: EllipticCurve, f, mode: str, width: float) -> MemberResult:
         R = trace_race(Ef, L, mode, width)
         mean = float(R.mean().mid())
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs,
-                            R.density, mean, "certified")
+                            R.density, mean, "certified", L.degrees_confirmed)
     except CertifyError as exc:
         msg = str(exc)
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs, None, None,
-                            msg if msg.startswith("not certified") else f"not certified: {msg}")
+                            msg if msg.startswith("not certified") else f"not certified: {msg}",
+                            L.degrees_confirmed)
 
 
 def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = None, seed: int = 0,

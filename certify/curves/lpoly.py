@@ -26,6 +26,9 @@ from flint import acb, arb, fmpq, fmpz_poly
 from ..arith import workprec
 from ..errors import Inconsistent, PrecisionExhausted
 from .fieldtable import MAX_FIELD_SIZE
+
+#: Confirmation by further degrees is skipped where q^n exceeds this (recorded in the result).
+CONFIRM_LIMIT = min(MAX_FIELD_SIZE, 2_000_000)
 from .model import EllipticCurve
 from .traces import frobenius_sum
 
@@ -268,7 +271,7 @@ def l_polynomial(E: EllipticCurve, confirm: int = 1, c_source=None) -> LPolynomi
                 raise Inconsistent(f"the Euler product has a non-zero coefficient l_{i} beyond degree {N}")
     confirmed = []
     n = used + 1
-    while len(confirmed) < confirm and q**n <= MAX_FIELD_SIZE:
+    while len(confirmed) < confirm and q**n <= CONFIRM_LIMIT:
         need(n)
         pred = power_sums(coeffs, n)
         if pred[n] != c[n]:

@@ -1,0 +1,61 @@
+"""The curve and twists commands through certify.cli.main."""
+
+import json
+
+import pytest
+
+from certify.cli import main
+
+
+def test_curve_json_to_stdout(capsys):
+    assert main(["curve", "5", "t", "t^2 + 1", "--json", "-"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["density"]["lower"] == "0.666666666666" and out["density"]["upper"] == "0.666666666667"
+    assert out["density"]["exact"] == "2/3"
+    assert {"hypotheses", "error_budget", "parameters"} <= set(out)
+    assert out["l_polynomial"]["coefficients"] == [1, 5, 25]
+    assert any(h["name"] == "LI" for h in out["hypotheses"])
+
+
+def test_curve_screen_and_file(tmp_path, capsys):
+    path = tmp_path / "c.json"
+    assert main(["curve", "5", "t^2 + 1", "t^3 + t + 2", "--mode", "degree", "--json", str(path)]) == 0
+    text = capsys.readouterr().out
+    assert "analytic rank 1" in text and "does not prove" in text
+    d = json.loads(path.read_text())
+    assert d["analytic_rank"] == 1 and float(d["density"]["lower"]) <= float(d["density"]["upper"])
+
+
+def test_twists_outputs(tmp_path, capsys):
+    js, tab, fig = tmp_path / "f.json", tmp_path / "f.md", tmp_path / "f.png"
+    rc = main(["twists", "5", "t", "t^2 + 1", "--degrees", "1,2", "--c", "0.5", "--json", str(js),
+               "--table", str(tab), "--plot", str(fig)])
+    assert rc == 0
+    d = json.loads(js.read_text())
+    assert len(d["families"]) == 2 and len(d["families"][1]["members"]) == 20
+    assert {"hypotheses", "error_budget", "parameters", "density"} <= set(d)
+    assert "| t^2 + 3 |" in tab.read_text()
+    pytest.importorskip("matplotlib")
+    assert fig.read_bytes()[:4] == b"\x89PNG"
+
+
+@pytest.mark.parametrize("argv,needle", [
+    (["curve", "3", "t", "t"], "characteristic 3"),
+    (["curve", "9", "t", "t"], "characteristic 3"),
+    (["curve", "5", "0", "t^2"], "isotrivial"),
+    (["curve", "5", "t^2", "2*t^3"], "isotrivial"),
+    (["curve", "7", "4*t^2", "2*t^3"], "singular"),
+    (["curve", "5", "t^", "1"], "cannot parse"),
+    (["curve", "5", "t", "y + 1"], "unknown name"),
+    (["curve", "6", "t", "t"], "prime power"),
+    (["curve", "5", "t", "t^2+1", "--width", "2"], "--width"),
+    (["curve", "5", "t", "t^2+1", "--width", "nan"], "--width"),
+    (["twists", "5", "t", "t^2+1", "--degrees", "0"], "--degrees"),
+    (["twists", "5", "t", "t^2+1", "--sample", "x"], "--sample"),
+])
+def test_bad_input_is_one_line(argv, needle, capsys):
+    rc = main(argv)
+    err = capsys.readouterr().err
+    assert rc == 2
+    assert needle in err
+    assert len(err.strip().splitlines()) == 1 and "Traceback" not in err
