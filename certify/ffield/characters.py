@@ -38,7 +38,8 @@ from .poly import (
     FiniteField, ResidueRing, factor, poly_from_index, poly_index, poly_str, prime_factors,
 )
 
-__all__ = ["CharacterGroup", "Character", "smith_normal_form", "character_group"]
+__all__ = ["CharacterGroup", "Character", "smith_normal_form", "character_group", "CharacterTable",
+           "character_table", "galois_orbit_representatives"]
 
 
 # ---------------------------------------------------------------- Smith normal form
@@ -452,3 +453,142 @@ class Character:
         F = self.group.F
         return (f"{self.label()} of order {self.order}, "
                 f"{'even' if self.is_even else 'odd'}, conductor {poly_str(self.conductor, F)}")
+
+
+# ---------------------------------------------------------------- all characters at once
+@dataclass(frozen=True, eq=False)
+class CharacterTable:
+    """Order, parity and conductor degree of every character, in mixed-radix label order."""
+
+    group: CharacterGroup
+    labels: np.ndarray  # (phi, r) exponent vectors c
+    orders: np.ndarray
+    even: np.ndarray  # bool
+    conductor_exponents: np.ndarray  # (phi, number of prime factors of m)
+
+    def conductor_degrees(self) -> np.ndarray:
+        degs = np.array([P.degree() for P, _ in self.group.factors], dtype=np.int64)
+        return self.conductor_exponents @ degs
+
+
+def _subgroup_generators(G: CharacterGroup, sample, order: int, seed: int = 1) -> np.ndarray:
+    """Logs of random elements (from ``sample(rng, k)``, returning residue indices) of a
+    subgroup of known order, until they provably generate it: the subgroup they generate
+    has order |G| / (product of the Smith invariants of [rows; diag(d)]).
+    """
+    d = list(G.invariants)
+    r = len(d)
+    if order == 1 or r == 0:
+        return np.zeros((0, r), dtype=np.int64)
+    rng = np.random.default_rng(seed)
+    chosen: list = []
+    while True:
+        chosen.extend(G.logs(sample(rng, r + 4)))
+        rows = [list(map(int, y)) for y in chosen] + [[d[i] if i == j else 0 for j in range(r)]
+                                                     for i in range(r)]
+        _, D, _ = smith_normal_form(rows)
+        index = 1
+        for i in range(r):
+            index *= D[i][i]
+        if G.order // index == order:
+            return np.array(chosen, dtype=np.int64)
+        if len(chosen) > 40 * (r + 4):
+            raise AssertionError("subgroup generators not found")  # pragma: no cover
+
+
+def _all_character_exponents(d: np.ndarray, e: int, a: np.ndarray) -> np.ndarray:
+    """sum_i c_i a_i mod e for every label c in mixed-radix order (c_1 fastest), by outer sums."""
+    ex = np.zeros(1, dtype=np.int64)
+    for di, ai in zip(d, a):
+        ex = (np.add.outer(np.arange(di, dtype=np.int64) * (int(ai) % e), ex) % e).ravel()
+    return ex
+
+
+def character_table(G: CharacterGroup) -> CharacterTable:
+    """Exact order, parity and conductor of all phi(m) characters, vectorised over characters.
+
+    A character c is trivial on a subgroup K iff sum_i c_i y_i e/d_i = 0 mod e for every
+    generator y of K; K_j = {a = 1 mod P^j, a = 1 mod m/P^e} gives the conductor exponent
+    at P as the least j with chi trivial on K_j.
+    """
+    d = np.array(G.invariants, dtype=np.int64)
+    e = G.exponent
+    n = G.order
+    r = len(d)
+    C = np.zeros((n, r), dtype=np.int64)
+    k = np.arange(n, dtype=np.int64)
+    for j, dj in enumerate(d):
+        k, C[:, j] = np.divmod(k, dj)
+    if r:
+        orders = np.lcm.reduce(d[None, :] // np.gcd(C, d[None, :]), axis=1)
+    else:
+        orders = np.ones(n, dtype=np.int64)
+    scale = e // d if r else d
+    yg = G.logs([G._gamma])[0] if r else np.zeros(0, dtype=np.int64)
+    even = _all_character_exponents(d, e, yg * scale) == 0 if r else np.ones(n, dtype=bool)
+    F, ring = G.F, G.ring
+    cond = np.zeros((n, len(G.factors)), dtype=np.int64)
+    for fi, (P, ee) in enumerate(G.factors):
+        cof = F.one_poly()
+        for Q, eq in G.factors:
+            if Q != P:
+                cof *= Q**eq
+        decided = np.zeros(n, dtype=bool)
+        cond[:, fi] = ee
+        for j in range(ee):
+            base = cof * P**j
+            n_h = F.q ** (G.M - base.degree())
+            A = ring.mul_matrix(base)
+
+            def sample(rng, k, A=A, base=base, n_h=n_h):
+                # elements 1 + base*h of K_j for random h (units only)
+                out = []
+                while len(out) < k:
+                    h = rng.integers(0, n_h, size=4 * k, dtype=np.int64)
+                    idx = ring.mul_many(h, base, A)
+                    b0 = idx % F.p
+                    idx = idx - b0 + (b0 + 1) % F.p
+                    out.extend(int(i) for i in idx[G.is_unit[idx]])
+                return np.array(out[:k], dtype=np.int64)
+
+            dP = P.degree()
+            size = (F.q**dP - 1) * F.q ** (dP * (ee - 1)) if j == 0 else F.q ** (dP * (ee - j))
+            gens = _subgroup_generators(G, sample, size)
+            triv = np.ones(n, dtype=bool)
+            for y in gens:
+                triv &= _all_character_exponents(d, e, y * scale) == 0
+            newly = triv & ~decided
+            cond[newly, fi] = j
+            decided |= triv
+    return CharacterTable(G, C, orders, even, cond)
+
+
+def galois_orbit_representatives(G: CharacterGroup, labels: np.ndarray | None = None) -> list[tuple[int, list[int]]]:
+    """[(representative label index, [k coprime to the order])] for the orbits chi -> chi^k.
+
+    The L-polynomial of chi^k is obtained from chi's exact coefficient counts by the
+    permutation j -> k j of the exponents.
+    """
+    from math import gcd
+    d = np.array(G.invariants, dtype=np.int64)
+    n = G.order
+    if labels is None:
+        labels = character_table(G).labels
+    mult = np.ones(len(d), dtype=np.int64)
+    for j in range(1, len(d)):
+        mult[j] = mult[j - 1] * d[j - 1]
+    seen = np.zeros(n, dtype=bool)
+    out = []
+    for i in range(n):
+        if seen[i]:
+            continue
+        c = labels[i]
+        o = 1
+        for ci, di in zip(c, d):
+            o = o * (di // gcd(int(ci), int(di))) // gcd(o, di // gcd(int(ci), int(di)))
+        ks = [k for k in range(1, o + 1) if gcd(k, o) == 1] if o > 1 else [1]
+        kk = np.array(ks, dtype=np.int64)
+        orbit = ((kk[:, None] * c[None, :]) % d[None, :]) @ mult
+        seen[orbit] = True
+        out.append((i, ks))
+    return out

@@ -92,3 +92,20 @@ def test_l_polynomial_product_of_roots():
     top = L.ring.to_acb(L.coeffs[-1], 200)
     assert ((-1) ** L.degree * prod - top).contains(0)
     assert abs(float(abs(prod)) - 5 ** (L.degree / 2)) < 1e-9
+
+
+@pytest.mark.parametrize("q,mt", [(3, "t^2*(t+1)^2"), (4, "(t+z)^3*t"), (5, "t^3*(t+1)"), (2, "t^4*(t^2+t+1)"),
+                                  (9, "t^2+t")])
+def test_vectorised_table_matches_each_character(q, mt):
+    from certify.ffield.characters import character_table, galois_orbit_representatives
+    F = finite_field(q)
+    G = CharacterGroup(F, parse_monic(mt, F))
+    T = character_table(G)
+    for i, chi in enumerate(G.characters()):
+        assert chi.order == T.orders[i]
+        assert chi.is_even == bool(T.even[i])
+        assert chi.conductor_exponents == tuple(int(v) for v in T.conductor_exponents[i])
+    orbits = galois_orbit_representatives(G, T.labels)
+    # orbits partition the characters; an orbit of chi has phi(order chi) members
+    from sympy import totient
+    assert sum(int(totient(int(T.orders[i]))) for i, _ in orbits) == G.order
