@@ -350,7 +350,7 @@ class FieldTable:
         return out
 
 
-@lru_cache(maxsize=8)
+@lru_cache(maxsize=24)
 def field_table(p: int, M: int) -> FieldTable:
     """A cached :class:`FieldTable` for F_{p^M}."""
     return FieldTable(p, M)
