@@ -83,11 +83,9 @@ class Enclosure:
         return decimal_up(self.upper, places)
 
     def places(self) -> int:
-        """Decimal places enough to show the width (at least 4, at most 80)."""
+        """Decimal places enough to show the width: two past its leading digit (4..80)."""
         w = self.width
         p = 4
-        while p < 80 and Fraction(1, 10**p) * 20 > w:
-            break
         while p < 80 and Fraction(1, 10**p) > w / 100:
             p += 1
         return p
