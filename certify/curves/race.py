@@ -39,6 +39,10 @@ __all__ = ["RaceVariable", "TraceRaceResult", "race_variable", "relation_search"
 
 MODES = ("cumulative", "degree")
 
+#: Largest degree of the resultant polynomial built to confirm a relation exactly; beyond it
+#: a relation is kept only after a 150-bit numerical check (recorded in the hypotheses).
+EXACT_RELATION_DEGREE = 40
+
 
 @dataclass(frozen=True)
 class RaceVariable:
@@ -308,7 +312,7 @@ def observed_race(E: EllipticCurve, L: LPolynomial, var: RaceVariable, x_max: in
 
 
 def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", target_width: float = 1e-8,
-               prec: int = 128, observe: int = 0) -> TraceRaceResult:
+               prec: int = 128, observe: int = 0, max_boxes: int = 100_000) -> TraceRaceResult:
     """Certified natural density of {X : the normalised trace sum is > 0}.
 
     Parameters
@@ -317,6 +321,7 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
     mode : "cumulative" (good places of degree <= X) or "degree" (degree exactly X).
     target_width : the density engine's target width for each residue class of X.
     observe : if > 0, also list the exact sums for X <= observe (point counts).
+    max_boxes : box budget per residue class when the angles satisfy integer relations.
     """
     if not (0 < target_width < 1):
         raise BadInput("the target width must lie in (0, 1)")
@@ -360,10 +365,7 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
     else:
         cands, rel_bound = relation_search(list(var.angles), prec=max(256, 2 * prec))
         if cands:
-            raise PrecisionExhausted(
-                "not certified: the angles of the inverse roots appear to satisfy the integer relation(s) "
-                + "; ".join(str(c) for c in cands[:3])
-                + " (LI fails; the density on the orbit closure is not computed for curves)")
+            return _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe)
         hyps.append(Hypothesis(
             "LI", f"the numbers 1, theta_1/2pi, ..., theta_{k}/2pi of the {k} non-torsion angles are "
             "linearly independent over Q",
@@ -392,3 +394,86 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
     params.update({"mode": mode, "prec": prec, "q": E.q, "l_degree": L.degree, "rank": L.rank})
     obs = observed_race(E, L, var, observe, prec) if observe > 0 else ()
     return TraceRaceResult(E, L, mode, var, dens, per, budget, tuple(hyps), params, rel_bound, obs)
+
+
+def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe) -> TraceRaceResult:
+    """The angles satisfy integer relations: the density on the orbit closure, by box subdivision.
+
+    With P the period, X = r + P s and y_j = P theta_j / 2 pi, the orbit {s y} fills the
+    closed subgroup H cut out by the integer relations among 1/P, x_1, .., x_J (found by
+    LLL, each confirmed exactly: prod (gamma_j/q)^(P k_j) = 1 by resultants), and on the
+    class r the limit function is G_r(y) = mu_r + sum_j Re(B_j e^(2 pi i (r x_j + y_j))).
+    The natural density along the class lies between the Haar measures of {G_r > 0} and
+    {G_r >= 0} on H (equidistribution on H, portmanteau); box subdivision encloses both.
+    """
+    from flint import fmpz_poly
+
+    from ..ffield.torus import (TrigFunction, confirm_relation, density_on_closure, find_relations,
+                                identify_root, orbit_closure)
+
+    q = L.q
+    P = var.period
+    J = len(var.angles)
+    nt = [r for r in L.roots if not r.torsion_order]
+    with workprec(max(256, 2 * prec)):
+        xs = [a / (2 * arb.pi()) for a in var.angles]
+        cands = find_relations([arb(1) / P] + xs, coeff_bound=60, prec=256)
+    if not cands:
+        raise PrecisionExhausted("not certified: a relation among the angles was suggested but not reproduced")
+    rev = fmpz_poly(list(reversed(L.coeffs)))
+    exact = [identify_root(r.gamma, rev) for r in nt]
+    rels = []
+    unconfirmed = []
+    for k in cands:
+        if not any(k[1:]):
+            continue  # k_0 alone: P * (1/P) is an integer, no information on the angles
+        kk = [0] + [P * kj for kj in k[1:]]
+        verdict = confirm_relation(exact, kk, q * q, max_degree=EXACT_RELATION_DEGREE)
+        if verdict == 1:
+            raise PrecisionExhausted(f"not certified: the candidate relation {k} among the angles is false")
+        if verdict is None:
+            # the resultant would be too large: keep the relation, verified only numerically
+            with workprec(512):
+                angs = [ex.ball(512).arg() for ex in exact]
+                s_ = sum((arb(kj) * a for kj, a in zip(k[1:], angs)), arb(0)) * P / (2 * arb.pi())
+                if not (abs(s_ - arb(round(float(s_.mid())))) < arb(2) ** -150):
+                    raise PrecisionExhausted(f"not certified: the candidate relation {k} fails at 512 bits")
+            unconfirmed.append(list(k[1:]))
+        rels.append(list(k[1:]))
+    H = orbit_closure(rels, J)
+    encs = []
+    und_total = Fraction(0)
+    boxes_total = 0
+    with workprec(prec):
+        sq = arb(q).sqrt()
+        Bs = []
+        for r in nt:
+            if mode == "cumulative":
+                B = -2 * r.multiplicity / (1 - (acb(0, -r.angle)).exp() / sq)
+            else:
+                B = acb(-2 * r.multiplicity)
+            Bs.append(B)
+        for res in range(P):
+            terms = tuple((j, Bs[j] * (acb(0, res * nt[j].angle)).exp()) for j in range(J))
+            G = TrigFunction(var.mu[res], terms)
+            lo, hi, und, boxes = density_on_closure(G, H, target_width, max_boxes=max_boxes, prec=max(96, prec))
+            encs.append(Enclosure(Fraction(lo), Fraction(hi)))
+            und_total += Fraction(und)
+            boxes_total += boxes
+    dens, _ = _combine(encs)
+    und_avg = und_total / P
+    budget = (ErrorTerm("undecided volume", arb(float(und_avg)) + arb(0, 1e-15) if und_avg else arb(0),
+                        "Haar measure of the boxes of the orbit closure where the sign of the limit "
+                        "function was not decided (averaged over the residue classes of X)"),)
+    hyps.append(Hypothesis(
+        "Relations among the angles", f"the integer relations among 1/{P}, theta_1/2pi, ..., theta_{J}/2pi are "
+        f"generated by the {len(rels)} relation(s) {rels}", "assumed",
+        (f"{len(rels) - len(unconfirmed)} relation(s) confirmed exactly (resultants: prod (gamma_j/q)^(P k_j) = 1)",
+         f"{len(unconfirmed)} relation(s) {unconfirmed} verified numerically to 2^-150 only (resultant too large)",
+         f"orbit closure: {H.describe()}", "LLL found no further short relation")))
+    params = {"engine": "box subdivision on the orbit closure (certify.ffield.torus)", "period": P,
+              "relations": rels, "relations_not_confirmed_exactly": unconfirmed, "orbit_closure": H.describe(), "boxes": boxes_total,
+              "max_boxes_per_class": max_boxes, "non_torsion_angles": J,
+              "mode": mode, "prec": prec, "q": q, "l_degree": L.degree, "rank": L.rank}
+    obs = observed_race(E, L, var, observe, prec) if observe > 0 else ()
+    return TraceRaceResult(E, L, mode, var, dens, tuple(encs), budget, tuple(hyps), params, None, obs)

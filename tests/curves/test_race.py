@@ -119,3 +119,36 @@ def test_relation_search_finds_planted_relation_and_bounds_otherwise():
         d = arb(3).sqrt()
         cands, bound = relation_search([c, d])
         assert not cands and bound > 1000
+
+
+def test_relation_case_against_the_orbit():
+    # the degree-4 twist by f = t^4 + 1 of y^2 = x^3 + t x + 2t^3 + 3 over F_5 has an even
+    # L-polynomial: its angles pair up as theta + theta' = pi, so LI fails.  The box-subdivision
+    # enclosure on the orbit closure is checked against the frequency of {G(X) > 0} along the
+    # orbit itself, X = 1..200000, G the limit function evaluated in floating point (independent
+    # of the torus code).
+    import numpy as np
+
+    E = make_curve(5, "t", "2*t^3 + 3")
+    Ef = twist(E, parse_poly("t^4 + 1", E.field))
+    L = l_polynomial(Ef)
+    assert all(c == 0 for c in L.coeffs[1::2])
+    for mode in ("cumulative", "degree"):
+        R = trace_race(Ef, L, mode, 1e-3, max_boxes=20000)
+        assert R.parameters["relations"]
+        assert R.density.width < 2e-3
+        X = np.arange(1, 200001)
+        P = R.variable.period
+        G = np.array([float(m.mid()) for m in R.variable.mu])[X % P]
+        sq = math.sqrt(5)
+        for r in L.roots:
+            if r.torsion_order:
+                continue
+            th = float(r.angle.mid())
+            if mode == "cumulative":
+                B = -2 * r.multiplicity / (1 - np.exp(-1j * th) / sq)
+            else:
+                B = -2 * r.multiplicity
+            G = G + np.real(B * np.exp(1j * th * X))
+        freq = float(np.mean(G > 0))
+        assert float(R.density.lower) - 2e-3 <= freq <= float(R.density.upper) + 2e-3
