@@ -332,6 +332,24 @@ class CharacterGroup:
             k = k * d + Y[:, j]
         return k
 
+    @functools.lru_cache(maxsize=None)
+    def kernel_indices(self, fi: int, j: int) -> np.ndarray:
+        """Residue indices of K_j = {a unit : a = 1 mod P^j, a = 1 mod m/P^e} for factor fi."""
+        F, ring = self.F, self.ring
+        P, _ = self.factors[fi]
+        cof = F.one_poly()
+        for Q, eq in self.factors:
+            if Q != P:
+                cof *= Q**eq
+        base = cof * P**j
+        h = np.arange(F.q ** (self.M - base.degree()), dtype=np.int64)
+        idx = ring.mul_many(h, base)
+        b0 = idx % F.p
+        idx = idx - b0 + (b0 + 1) % F.p
+        out = idx[self.is_unit[idx]]
+        out.setflags(write=False)
+        return out
+
     def describe(self) -> str:
         inv = " x ".join(f"Z/{d}" for d in self.invariants) or "trivial"
         return f"(F_{self.F.q}[t]/({poly_str(self.m, self.F)}))^x = {inv}, order {self.order}"
@@ -413,23 +431,11 @@ class Character:
     def conductor_exponents(self) -> tuple[int, ...]:
         """For each prime power P^e || m (in group.factors order) the exponent of P in the conductor."""
         G = self.group
-        F, ring = G.F, G.ring
         out = []
-        for P, e in G.factors:
-            cof = G.F.one_poly()
-            for Q, eq in G.factors:
-                if Q != P:
-                    cof *= Q**eq
+        for fi, (P, e) in enumerate(G.factors):
             fexp = e
             for j in range(0, e):
-                base = cof * P**j
-                h = np.arange(F.q ** (G.M - base.degree()), dtype=np.int64)
-                idx = ring.mul_many(h, base)
-                # add 1: the constant term's lowest F_p digit
-                b0 = idx % F.p
-                idx = idx - b0 + (b0 + 1) % F.p
-                idx = idx[G.is_unit[idx]]
-                if np.all(self.table[idx] == 0):
+                if np.all(self.table[G.kernel_indices(fi, j)] == 0):
                     fexp = j
                     break
             out.append(fexp)

@@ -29,6 +29,7 @@ the theorem itself).
 from __future__ import annotations
 
 import functools
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -85,22 +86,33 @@ class LPolynomial:
 
     chi: Character
     ring: CycloRing
-    coeffs: tuple  # fmpz_poly elements of Z[zeta_o]; coeffs[0] = 1, trailing zeros trimmed
-    counts: np.ndarray = field(repr=False)
+    counts: np.ndarray = field(repr=False)  # counts[n, j], rows n = 0..degree (exact)
 
     @property
     def degree(self) -> int:
-        return len(self.coeffs) - 1
+        return self.counts.shape[0] - 1
 
     @property
     def q(self) -> int:
         return self.chi.group.F.q
 
+    @functools.cached_property
+    def coeffs(self) -> tuple:
+        """The coefficients as reduced elements of Z[zeta_o] (fmpz_poly modulo Phi_o)."""
+        return tuple(self.ring.from_counts(row) for row in self.counts)
+
     def coefficient_balls(self, prec: int) -> list[acb]:
-        return [self.ring.to_acb(c, prec) for c in self.coeffs]
+        return [_sparse_ball(row, self.ring.o, prec) for row in self.counts]
 
     def coefficient_strings(self) -> list[str]:
-        """Each coefficient as a polynomial in zeta_o (exact)."""
+        """Each coefficient as a polynomial in zeta_o (exact; reduced when Phi_o is small,
+        otherwise as the unreduced count form sum_j N_j zeta^j)."""
+        if self.ring.phi.degree() > 256:
+            out = []
+            for row in self.counts:
+                nz = np.nonzero(row)[0]
+                out.append(" + ".join(f"{int(row[j])}*zeta^{int(j)}" for j in nz) or "0")
+            return out
         out = []
         for c in self.coeffs:
             cs = [int(x) for x in c.coeffs()]
@@ -213,18 +225,52 @@ def _roots_via_norm(L: LPolynomial, prec: int) -> tuple[acb, ...]:
     raise PrecisionExhausted(f"not certified: could not isolate the inverse roots of {L.label()}")
 
 
+def _sparse_ball(row: np.ndarray, o: int, prec: int) -> acb:
+    """sum_j row[j] zeta_o^j as a ball, over the non-zero counts only.
+
+    zeta^j = zeta^(j mod B) * zeta^(B (j div B)) from two tables of about sqrt(o) powers.
+    """
+    nz = np.nonzero(row)[0]
+    with workprec(prec + 16):
+        if len(nz) == 0:
+            return acb(0)
+        B = max(1, int(math.isqrt(o)) + 1)
+        base = acb(arb(2) / o).exp_pi_i()
+        small = [acb(1)]
+        for _ in range(B - 1):
+            small.append(small[-1] * base)
+        step = small[-1] * base
+        big = [acb(1)]
+        for _ in range(o // B + 1):
+            big.append(big[-1] * step)
+        s = acb(0)
+        for j in nz:
+            j = int(j)
+            s += int(row[j]) * (small[j % B] * big[j // B])
+        return s
+
+
+def _row_is_zero(row: np.ndarray, ring: CycloRing) -> bool:
+    """Exactly: is sum_j row[j] zeta^j = 0 ?  A ball excluding 0 settles most rows cheaply."""
+    if not row.any():
+        return True
+    if not _sparse_ball(row, ring.o, 64).contains(0):
+        return False
+    return ring.from_counts(row).is_zero()
+
+
 def l_polynomial(chi: Character) -> LPolynomial:
     """The L-polynomial of a non-trivial character, from exact character sums."""
     if chi.is_trivial():
         raise ValueError("L(u, chi_0) is not a polynomial; the trivial character is handled apart")
     counts = _coefficient_counts(chi)
     ring = cyclo_ring(chi.order)
-    coeffs = [ring.from_counts(counts[n]) for n in range(counts.shape[0])]
-    if coeffs[0] != ring.one:
+    if counts[0, 0] != 1 or counts[0, 1:].any():
         raise Inconsistent("L(0, chi) is not 1")
-    while len(coeffs) > 1 and coeffs[-1].is_zero():
-        coeffs.pop()
-    return LPolynomial(chi, ring, tuple(coeffs), counts)
+    top = counts.shape[0]
+    while top > 1 and _row_is_zero(counts[top - 1], ring):
+        top -= 1
+    return LPolynomial(chi, ring, counts[:top].copy())
 
 
 def expected_shape(chi: Character) -> tuple[int, int]:
