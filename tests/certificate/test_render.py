@@ -102,3 +102,18 @@ def test_templates_found_in_checkout_and_package():
     # the package's template folder is the top-level one (a link) or an identical copy
     for f in top.glob("*.j2"):
         assert (pkg / f.name).read_text() == f.read_text()
+
+
+def test_golden_files_pin_the_layout():
+    """Rendering a stored certificate reproduces the pinned Markdown and LaTeX fragment.
+
+    To update after a deliberate template change:
+    ``certify render tests/certificate/data/delta_4_3_1.json --formats md,fragment``.
+    """
+    from certify.certificate.model import read_certificate
+
+    data = Path(__file__).parent / "data"
+    cert = read_certificate(str(data / "delta_4_3_1.json"))
+    assert render_markdown(cert, "delta_4_3_1.json") == (data / "delta_4_3_1.md").read_text()
+    assert render_latex_fragment(cert, "delta_4_3_1.json") == \
+        (data / "delta_4_3_1-fragment.tex").read_text()
