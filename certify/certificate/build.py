@@ -14,7 +14,7 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import arb, arb_to_fraction, certified_digits, decimal_down, decimal_up, workprec
+from ..arith import certified_digits, decimal_down, decimal_up, workprec
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
 from ..races import DEFAULT_DIGITS, RaceResult, certify_race

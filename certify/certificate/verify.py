@@ -22,7 +22,7 @@ import time
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from ..arith import acb, arb, certified_digits, workprec
+from ..arith import arb, certified_digits, workprec
 from ..density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from ..errors import BadInput, CertifyError, Inconsistent
 from ..race.question import (RaceQuestion, mean_of, residue_race, spectral_groups, two_way,
@@ -33,7 +33,6 @@ from ..spectrum.spectrum import residual_checks, residual_sums
 from ..spectrum.zeros import HardyZ
 from .evidence import exact_ends, moment_consequences, relation_search
 from .model import Certificate, ball_of
-from .numbers import sci
 
 REQUIRED_HYPOTHESES = ("GRH", "LI")
 

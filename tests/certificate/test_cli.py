@@ -87,3 +87,10 @@ def test_demo_scenario(tmp_path):
     assert s["ok"] and all(ok for _, ok, _, _ in s["verify"])
     report = Path(s["paths"]["report"]).read_text()
     assert "refuted" in report and "GRH" in report
+
+
+def test_check_writes_a_verifiable_certificate(tmp_path, capsys):
+    assert main(["check", "8", "--residues", "--claim", "0.9999...", "--certificate", str(tmp_path)]) == 0
+    files = sorted(p.name for p in tmp_path.iterdir())
+    assert files == ["delta_8_N_R.json", "delta_8_N_R.md"]
+    assert main(["verify", str(tmp_path / "delta_8_N_R.json")]) == 0

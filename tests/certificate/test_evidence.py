@@ -1,7 +1,5 @@
 """Evidence for the hypotheses: moment consequences and the integer-relation search."""
 
-from fractions import Fraction
-
 from certify.arith import arb, workprec
 from certify.certificate.evidence import (exact_ends, moment_consequences, refine_ordinate,
                                           relation_search)

@@ -9,7 +9,7 @@ import jsonschema
 import pytest
 from hypothesis import given, strategies as st
 
-from certify.arith import arb, ball_from_strings
+from certify.arith import ball_from_strings
 from certify.certificate.evidence import exact_ends
 from certify.certificate.model import (SCHEMA_VERSION, Certificate, read_certificate,
                                        write_certificate)

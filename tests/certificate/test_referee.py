@@ -4,7 +4,7 @@ from fractions import Fraction
 
 import pytest
 
-from certify.certificate.referee import (CONSISTENT, REFUTED, UNDECIDED, Claim, parse_claim_line,
+from certify.certificate.referee import (CONSISTENT, REFUTED, UNDECIDED, parse_claim_line,
                                          parse_race, parse_value, read_claims, referee)
 from certify.errors import BadInput
 from certify.race.question import two_way
