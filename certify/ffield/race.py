@@ -278,6 +278,9 @@ def race_spectrum(G: CharacterGroup, wd: dict[int, int], prec: int = 128,
     e = G.exponent
     R = cyclo_ring(e)
     chars, c2 = race_weights(G, wd, candidates)
+    if len(chars) * G.size > 4 * 10**8:
+        raise BadInput(f"this race involves {len(chars)} characters modulo a table of {G.size} "
+                       "residues, beyond this tool's budget; use a smaller modulus or --residues")
     ldata = []
     acc: dict[ExactRoot, list] = {}
     with workprec(prec):
