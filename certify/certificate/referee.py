@@ -229,7 +229,7 @@ def _next_digits(d: int, lo: Fraction, hi: Fraction, claim: Claim) -> int:
     dist = min((abs(b - mid) for b in inside), default=Fraction(0))
     want = d + 3
     if dist > 0:
-        want = max(d + 2, math.ceil(-math.log10(float(dist))) + 2)
+        want = max(d + 2, math.ceil(-math.log10(float(dist))) + 1)
     return want
 
 
