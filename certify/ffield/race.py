@@ -596,8 +596,7 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
             halves = []
             for eps in (1, -1):
                 with workprec(prec):
-                    var = BesselVariable(mu0 + eps * mupi, tuple(arb(abs(B).upper()) if False else abs(B)
-                                                                for _, B in Gf.terms[1:]))
+                    var = BesselVariable(mu0 + eps * mupi, tuple(abs(B) for _, B in Gf.terms[1:]))
                 halves.append(density_enclosure(var, target_width))
             lo = (halves[0].enclosure.lower + halves[1].enclosure.lower) / 2
             hi = (halves[0].enclosure.upper + halves[1].enclosure.upper) / 2

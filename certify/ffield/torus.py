@@ -153,8 +153,8 @@ def find_relations(x: list[arb], coeff_bound: int = 60, prec: int = 256) -> list
         # residual check with balls: k . x within 2^(-prec/3) of an integer
         with workprec(prec):
             s = sum((arb(v) * xi for v, xi in zip(k, x)), arb(0))
-            frac = s - s.mid().floor() if False else s - arb(round(float(s.mid())))
-            if abs(float(frac.mid())) < 2.0 ** (-prec / 3):
+            frac = s - arb(round(float(s.mid())))
+            if abs(frac) < arb(2) ** (-(prec // 3)):
                 out.append(k)
     return out
 
