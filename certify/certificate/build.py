@@ -100,6 +100,20 @@ def answer_record(result: RaceResult) -> dict:
     }
 
 
+def _owner_by_sign_change(z, keys) -> int:
+    """Index of the L-function in ``keys`` whose Z-function changes sign across ``z``."""
+    from ..spectrum.zeros import HardyZ
+    from .verify import _sign_change
+
+    lo, hi = exact_ends(z)
+    for i, (c, n) in enumerate(keys):
+        s_lo, s_hi = _sign_change(HardyZ(c, n), lo, hi, c)
+        if s_lo and s_hi and s_lo != s_hi:
+            return i
+    raise PrecisionExhausted(f"not certified: the zero near {float((lo + hi) / 2):.12g} cannot "
+                             "be attributed to an L-function by a sign change")
+
+
 def _spectrum_record(result: RaceResult, store: SpectrumStore) -> dict:
     groups = []
     for g in result.groups:
@@ -111,10 +125,10 @@ def _spectrum_record(result: RaceResult, store: SpectrumStore) -> dict:
                 owner[id(z)] = i
         zeros = []
         for z in g.zeros:
-            if id(z) not in owner:
-                raise PrecisionExhausted("not certified: a zero of the result is not in the "
-                                         "spectrum store (cannot attribute it)")
-            zeros.append({"l": owner[id(z)], **ball_record(z)})
+            li = owner.get(id(z))
+            if li is None:  # the store was refined after this round: attribute by a sign change
+                li = _owner_by_sign_change(z, keys)
+            zeros.append({"l": li, **ball_record(z)})
         sp0 = store.spectra[keys[0]]
         ls = []
         for i, key in enumerate(keys):

@@ -109,3 +109,14 @@ def test_scientific_notation_rounds_outward(v, sig):
     assert down <= v <= up
     # within one unit of the last significant digit
     assert up - down <= abs(v) * Fraction(10) ** (1 - sig) * 2
+
+
+def test_zero_attribution_without_the_store(cert_4_3_1):
+    """A zero whose ball is no longer in the store is attributed by a sign change of Z."""
+    from certify.certificate.build import _owner_by_sign_change
+
+    result, _ = cert_4_3_1
+    z = result.groups[0].zeros[3]
+    assert _owner_by_sign_change(z, [(4, 3)]) == 0
+    with pytest.raises(Exception, match="cannot be attributed"):
+        _owner_by_sign_change(z, [(5, 2)])
