@@ -66,3 +66,17 @@ def interval_str(lo: Fraction, hi: Fraction) -> str:
     while p < 80 and Fraction(1, 10**p) > w / 10:
         p += 1
     return f"[{decimal_down(Fraction(lo), p)}, {decimal_up(Fraction(hi), p)}]"
+
+
+def exact_decimal(v: Fraction) -> str:
+    """The exact, finite decimal expansion of a dyadic rational (ValueError otherwise)."""
+    v = Fraction(v)
+    den, k = v.denominator, 0
+    while den % 2 == 0:
+        den //= 2
+        k += 1
+    if den != 1:
+        raise ValueError("not a dyadic rational")
+    digits = str(abs(v.numerator) * 5**k).rjust(k + 1, "0")
+    body = f"{digits[:-k]}.{digits[-k:]}" if k else digits
+    return ("-" if v < 0 else "") + body

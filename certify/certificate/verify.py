@@ -290,6 +290,32 @@ def _overlap(a: arb, b: arb) -> bool:
     return al <= bh and bl <= ah
 
 
+def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros) -> None:
+    """Re-run the argument-principle count claimed for one L-function."""
+    from .zerocount import count_height, count_zeros
+
+    e = next((e for e in ev_grh if e["kind"] == "zero-count" and e.get("l_function") == key), None)
+    name = f"GRH evidence for L(s, chi_{{{key}}}): argument-principle count"
+    if e is None:
+        report.add(name, False, "missing")
+        return
+    d = e["data"]
+    if not d.get("established"):
+        report.add(name + " (not established; nothing claimed)", "verified" not in d)
+        return
+    ends = sorted(exact_ends(ball_of(z)) for z in zeros)
+    T = count_height(ends) if len(ends) >= 2 else None
+    found = sum(1 for lo, hi in ends if T is not None and hi < T)
+    if T is None or Fraction(d["height"]) != T:
+        report.add(name, False, "the counting height is not the one the stored zeros give")
+        return
+    N, _ = count_zeros(int(lf["conductor"]), int(lf["label"]),
+                       primitive_character(int(lf["conductor"]), int(lf["label"])).parity, T)
+    report.add(name, d["count"] == N and d["sign_changes"] == found
+               and bool(d["verified"]) == (N == found),
+               f"stored count {d['count']} / {d['sign_changes']} sign changes, recomputed {N} / {found}")
+
+
 def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec: int) -> None:
     present = {h["name"]: h for h in cert.hypotheses}
     for name in REQUIRED_HYPOTHESES:
@@ -317,6 +343,8 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                        e is not None and e["data"]["zeros"] == count
                        and e["data"]["isolation_height"] == sg["isolation_height"],
                        "missing, or the zero count / height differ from the stored spectrum")
+            _verify_zero_count(report, ev_grh, key, lf,
+                               [z for z in sg["zeros"] if z["l"] == li_idx])
             cv = central_value(lf["conductor"], lf["label"])
             e = next((e for e in ev_li if e["kind"] == "central-value"
                       and e.get("l_function") == key), None)

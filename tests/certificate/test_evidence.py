@@ -50,3 +50,41 @@ def test_moment_completeness_catches_a_dropped_zero():
     assert part["complete_below"] <= exact_ends(zl.zeros[5])[1]
     # low zeros are proven simple; the count cannot exceed the list
     assert 0 < full["simple"] <= len(zl.zeros)
+
+
+def test_argument_count_matches_sign_changes_and_the_counting_function():
+    import math
+    from fractions import Fraction
+
+    from certify.certificate.zerocount import count_height, count_zeros
+    from certify.source.dirichlet import primitive_character
+
+    for c, n in [(4, 3), (5, 2), (5, 4), (8, 5)]:
+        zl = find_zeros(c, n, 45.0, 1e-10)
+        ends = [exact_ends(z) for z in zl.zeros]
+        parity = primitive_character(c, n).parity
+        T = count_height(ends)
+        N, _ = count_zeros(c, n, parity, T)
+        assert N == len(ends) - 1  # every zero below T was found as a sign change
+        # independent: N(T, chi) = (T / 2 pi) log(q T / (2 pi e)) + O(log qT)
+        # (Riemann-von Mangoldt for Dirichlet L-functions; the window is generous)
+        main = float(T) / (2 * math.pi) * math.log(c * float(T) / (2 * math.pi * math.e))
+        assert abs(N - main) < 3 + math.log(c * float(T))
+        # a lower height between two zeros counts exactly the zeros below it
+        T5 = (ends[4][1] + ends[5][0]) / 2
+        assert count_zeros(c, n, parity, T5)[0] == 5
+        assert isinstance(T5, Fraction)
+
+
+def test_zero_count_evidence_flags_a_missing_zero():
+    from certify.certificate.build import _zero_count_evidence
+    from certify.certificate.model import ball_record
+
+    zl = find_zeros(4, 3, 30.0, 1e-10)
+    recs = [{"l": 0, **ball_record(z)} for z in zl.zeros]
+    lf = {"conductor": 4, "label": 3, "parity": 1}
+    ok = _zero_count_evidence(lf, recs)
+    assert ok["data"]["verified"] and ok["data"]["count"] == len(recs) - 1
+    bad = _zero_count_evidence(lf, recs[:3] + recs[4:])
+    assert bad["data"]["established"] and not bad["data"]["verified"]
+    assert "NOT verified" in bad["text"]

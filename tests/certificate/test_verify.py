@@ -25,7 +25,7 @@ def test_verify_passes_on_written_certificates(cert_4_3_1, more_certs):
         names = " ".join(c.name for c in rep.checks)
         for what in ("zeros re-certified", "moments recomputed", "residual sums",
                      "stored enclosure contains", "error bound", "final sum", "hypothesis GRH",
-                     "hypothesis LI", "integer-relation search"):
+                     "hypothesis LI", "integer-relation search", "argument-principle count"):
             assert what in names
 
 
