@@ -23,11 +23,11 @@ from certify.ffield.race import certify_ffrace, parse_race, residue_race
 
 ALL_CHARS = [
     (2, "t^19+t^5+t^2+t+1"),  # irreducible: cyclic of prime order 2^19 - 1
-    (2, "t^20"),              # a 2-group of rank 10
+    (2, "t^20"),              # a 2-group of rank 10 (q^M = 2^20, just above 10^6)
     (3, "t^12"),
     (9, "t^6+z"),
     (31, "t^4+3"),
-    (101, "t^3+t+2"),
+    (101, "t^3+t+2"),         # q^M = 1030301, just above 10^6
     (997, "t^2+t+3"),
 ]
 
@@ -36,7 +36,11 @@ L_ALL = [(3, "t^2*(t+1)^2"), (5, "t^4+2"), (4, "(t+z)^3*t^2"), (7, "t^4+t+3"), (
 DENSITIES = [
     ("relation: q=3, t^2+1, t+1 vs 1", lambda: parse_race(3, "t^2+1", ["t+1", "1"], None, "cumulative")),
     ("relation, real roots: q=9, t^2+t, z vs 1", lambda: parse_race(9, "t^2+t", ["z", "1"], None, "cumulative")),
-    ("relation, rational angle: q=3, t^3+2t+1, residues", lambda: residue_race(3, "t^3+2*t+1", "degree")),
+    ("relation, rational angle: q=3, t^3+2t+1, residues, cumulative",
+     lambda: residue_race(3, "t^3+2*t+1", "cumulative")),
+    # G vanishes at points of this finite closure: the enclosure stays wide (fail closed)
+    ("relation, rational angle: q=3, t^3+2t+1, residues, degree",
+     lambda: residue_race(3, "t^3+2*t+1", "degree")),
     ("LI: q=5, t^7+t+3, residues, cumulative", lambda: residue_race(5, "t^7+t+3", "cumulative")),
     ("LI: q=5, t^7+t+3, residues, degree", lambda: residue_race(5, "t^7+t+3", "degree")),
 ]
