@@ -577,6 +577,13 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
             f"not certified: {len(unconfirmed)} candidate relation(s) among the angles could not be "
             f"confirmed or refuted exactly (first: {unconfirmed[0]})")
     rows = [[2] + [0] * J] + confirmed
+    if confirmed:
+        # a reduced basis (Hermite form) of the relation lattice, for the report
+        from flint import fmpz_mat
+        Hn = fmpz_mat(rows).hnf()
+        rows = [[int(Hn[i, j]) for j in range(J + 1)] for i in range(Hn.nrows())]
+        rows = [r for r in rows if any(r)]
+        confirmed = [r for r in rows if any(r[1:])]
     H = orbit_closure(rows, J + 1)
     t2 = time.time()
     budget = []
