@@ -90,7 +90,7 @@ def run_curve(args) -> int:
         raise BadInput("--observe must be between 0 and 12")
     E = make_curve(args.q, args.A, args.B)
     L = l_polynomial(E, confirm=_int(args.confirm, "--confirm"))
-    R = trace_race(E, L, args.mode, width, observe=observe)
+    R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=_int(args.max_boxes, "--max-boxes"))
     d = R.to_dict()
     d["parameters"]["command"] = "certify " + " ".join(shlex.quote(a) for a in getattr(args, "_argv", []) or [])
     if args.json:
@@ -135,8 +135,9 @@ def run_twists(args) -> int:
     width = _float(args.width, "--width")
     if not (0 < width < 1):
         raise BadInput("--width must lie in (0, 1)")
+    max_boxes = _int(args.max_boxes, "--max-boxes")
     results = [twist_family(args.q, args.A, args.B, d, n=n, sample=sample, seed=seed, mode=args.mode,
-                            target_width=width, c=c) for d in degrees]
+                            target_width=width, c=c, max_boxes=max_boxes) for d in degrees]
     out = {
         "question": {"kind": f"quadratic-twist families, trace race ({args.mode})",
                      "base_curve": results[0].base_curve.describe(), "twist_degrees": degrees},
@@ -171,6 +172,8 @@ def register(sub) -> None:
     p.add_argument("--width", default="1e-8", help="target width of the density enclosure (default 1e-8)")
     p.add_argument("--observe", default="0", help="also list the exact trace sums for X <= this (0..12)")
     p.add_argument("--confirm", default="1", help="extra degrees of point counts that confirm L (default 1)")
+    p.add_argument("--max-boxes", default="100000",
+                   help="box budget per residue class when the angles satisfy relations (default 100000)")
     p.set_defaults(func=run_curve)
 
     p = sub.add_parser("twists", help="densities across the quadratic twists y^2 = x^3 + A f^2 x + B f^3",
@@ -184,4 +187,6 @@ def register(sub) -> None:
     p.add_argument("--width", default="1e-3", help="target width of each member's enclosure (default 1e-3)")
     p.add_argument("--table", metavar="PATH", help="write a Markdown table of every member (- for stdout)")
     p.add_argument("--plot", metavar="PATH", help="write a histogram figure (PNG; needs matplotlib)")
+    p.add_argument("--max-boxes", default="3000",
+                   help="box budget per residue class for members whose angles satisfy relations (default 3000)")
     p.set_defaults(func=run_twists)

@@ -213,7 +213,7 @@ class FamilyResult:
         return out
 
 
-def _member(E: EllipticCurve, f, mode: str, width: float) -> MemberResult:
+def _member(E: EllipticCurve, f, mode: str, width: float, max_boxes: int) -> MemberResult:
     F = E.field
     Ef = twist(E, f)
     try:
@@ -222,7 +222,7 @@ def _member(E: EllipticCurve, f, mode: str, width: float) -> MemberResult:
         return MemberResult(poly_str(f, F), Ef.conductor_degree, Ef.l_degree, -1, 0, (), None, None,
                             f"not certified: {exc}")
     try:
-        R = trace_race(Ef, L, mode, width)
+        R = trace_race(Ef, L, mode, width, max_boxes=max_boxes)
         mean = float(R.mean().mid())
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs,
                             R.density, mean, "certified", L.degrees_confirmed)
@@ -235,7 +235,7 @@ def _member(E: EllipticCurve, f, mode: str, width: float) -> MemberResult:
 
 def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = None, seed: int = 0,
                  mode: str = "cumulative", target_width: float = 1e-6, c: float = 1.0,
-                 bins: int = 20, progress=None) -> FamilyResult:
+                 bins: int = 20, progress=None, max_boxes: int = 3000) -> FamilyResult:
     """Certify the trace-race density of every twist (or a sample) of degree d over F_{q^n}.
 
     Parameters
@@ -247,6 +247,7 @@ def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = Non
     mode : "cumulative" or "degree" (see :mod:`certify.curves.race`).
     target_width : density engine width per member.
     c : the share within c/d of 1/2 is reported.
+    max_boxes : box budget per residue class for members whose angles satisfy relations.
     """
     if n < 1:
         raise BadInput("the extension degree n must be >= 1")
@@ -258,7 +259,7 @@ def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = Non
     fs, pop = twist_members(E, d, sample, seed)
     members = []
     for i, f in enumerate(fs):
-        members.append(_member(E, f, mode, target_width))
+        members.append(_member(E, f, mode, target_width, max_boxes))
         if progress:
             progress(i + 1, len(fs))
     cert = [m for m in members if m.density is not None]
@@ -290,6 +291,7 @@ def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = Non
                                "appeared are listed as not certified",)),
     )
     params = {"q": q, "A": A, "B": B, "n": n, "d": d, "mode": mode, "target_width": target_width,
+              "max_boxes_relation_case": max_boxes,
               "sample": sample, "seed": seed if sample is not None else None, "c": c, "bins": bins,
               "field": E.field.describe()}
     return FamilyResult(E, n, d, mode, tuple(members), pop, sample is not None and sample < pop,
