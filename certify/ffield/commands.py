@@ -35,7 +35,7 @@ def _int(text, what: str) -> int:
 def screen(res) -> str:
     """One screen of text for a function-field race result."""
     d = res.density
-    places = d.places()
+    places = min(d.places(), 30)
     lines = [
         f"{res.question.label} = {d.digits() or '(no digit certified)'}",
         f"  {res.question.statement}",

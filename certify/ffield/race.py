@@ -496,7 +496,7 @@ class FFRaceResult:
 
     def to_dict(self) -> dict:
         d = self.density
-        places = d.places()
+        places = min(d.places(), 30)
         return {
             "question": {"q": self.question.q, "modulus": self.question.modulus,
                          "classes": list(self.question.classes),
