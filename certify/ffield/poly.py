@@ -210,7 +210,7 @@ def _powmod(x, e: int, g):
     return x.pow_mod(e, g) if hasattr(x, "pow_mod") else (x**e) % g
 
 
-@functools.lru_cache(maxsize=64)
+@functools.lru_cache(maxsize=None)
 def finite_field(q) -> FiniteField:
     """The finite field of order q with the conventions of the module docstring."""
     q = parse_field_order(q)
@@ -221,7 +221,22 @@ def finite_field(q) -> FiniteField:
     else:
         mod = _primitive_modulus(p, k)
         ctx = fq_default_ctx(modulus=fmpz_mod_poly_ctx(p)(list(mod)), var=FIELD_GEN)
-    return FiniteField(q, p, k, mod, ctx, fq_default_poly_ctx(ctx))
+    F = FiniteField(q, p, k, mod, ctx, fq_default_poly_ctx(ctx))
+    _keep_forever(F)
+    return F
+
+
+def _keep_forever(obj) -> None:
+    """Never free a field's flint contexts.
+
+    python-flint 0.9 polynomials do not keep their context alive: when an object
+    holding both a FiniteField and polynomials is torn down (its attributes are
+    released in arbitrary order, e.g. at interpreter exit), the context could be
+    freed first and the polynomial's destructor would then crash.  One extra
+    reference per field (at most one per field order, by the cache) avoids it.
+    """
+    import ctypes
+    ctypes.pythonapi.Py_IncRef(ctypes.py_object(obj))
 
 
 # ---------------------------------------------------------------- parsing
