@@ -57,6 +57,8 @@ def bench_family(figure: str | None, quick: bool):
     print(f"  members {s['members']} (population {s['population']}), certified {s['certified']}, "
           f"time {dt:.1f} s ({dt / max(1, s['members']):.3f} s per member)   [target < 600 s for >= 500]")
     print(f"  deg L of members: {sorted(set(m.l_degree for m in R.members))}; ranks {s['rank_counts']}")
+    print(f"  members whose angles satisfy relations (orbit-closure engine): {s['relation_case']}; "
+          f"enclosures wider than 0.01: {s['wide_enclosures_over_0.01']}")
     if s["mean"]:
         print(f"  mean density [{s['mean']['lower']}, {s['mean']['upper']}], spread {s['spread']:.4f}")
         w = s["share_within_c_over_d_of_half"]

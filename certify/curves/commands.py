@@ -111,7 +111,9 @@ def family_screen(results, c: float) -> str:
             f"d = {r.twist_degree}: {s['certified']}/{s['members']} members certified "
             f"({'sample of ' + str(s['members']) + ' from ' if r.sampled else 'whole family of '}{s['population']}); "
             f"mean {mean}; spread {s['spread'] if s['spread'] is None else round(s['spread'], 4)}; "
-            f"share within {c:g}/d of 1/2 {w}; ranks {s['rank_counts']}; {s['seconds']:.1f} s")
+            f"share within {c:g}/d of 1/2 {w}; ranks {s['rank_counts']}; "
+            f"{s['relation_case']} with relations among the angles ({s['wide_enclosures_over_0.01']} enclosures "
+            f"wider than 0.01); {s['seconds']:.1f} s")
     lines.append("  hypotheses: RH for every L(E_f, u) [theorem]; LI for each member [assumed, LLL evidence]")
     lines.append(f"  {CAUTION}")
     return "\n".join(lines)

@@ -224,8 +224,12 @@ def _member(E: EllipticCurve, f, mode: str, width: float, max_boxes: int) -> Mem
     try:
         R = trace_race(Ef, L, mode, width, max_boxes=max_boxes)
         mean = float(R.mean().mid())
+        status = "certified"
+        if "relations" in R.parameters:
+            status = (f"certified on the orbit closure (relations {R.parameters['relations']}); "
+                      f"width {float(R.density.width):.2g} with {R.parameters['max_boxes_per_class']} boxes per class")
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs,
-                            R.density, mean, "certified", L.degrees_confirmed)
+                            R.density, mean, status, L.degrees_confirmed)
     except CertifyError as exc:
         msg = str(exc)
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs, None, None,

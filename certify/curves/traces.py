@@ -81,6 +81,7 @@ class DegreeData:
     traces: np.ndarray
     good: np.ndarray
     trace_inf: int
+    inf_good: bool = True
 
     @property
     def c_n(self) -> int:
@@ -93,12 +94,13 @@ class DegreeData:
 
     @property
     def good_place_sum(self) -> int:
-        """sum of a_v over the good finite places of degree exactly n."""
-        return int(self.traces[self.good & self.exact].sum())
+        """sum of a_v over the good places of degree exactly n (infinity, of degree 1, included)."""
+        s = int(self.traces[self.good & self.exact].sum())
+        return s + (self.trace_inf if (self.n == 1 and self.inf_good) else 0)
 
     @property
     def good_place_count(self) -> int:
-        return int((self.good & self.exact).sum())
+        return int((self.good & self.exact).sum()) + (1 if (self.n == 1 and self.inf_good) else 0)
 
 
 _DEGREE_CACHE: dict = {}
@@ -121,7 +123,8 @@ def degree_data(E: EllipticCurve, n: int) -> DegreeData:
     emb = embedding(F, M)
     ai = np.array([emb[F.code(E.a_inf)]]), np.array([emb[F.code(E.b_inf)]])
     t_inf = int(T.traces(*ai)[0])
-    data = DegreeData(n, T, theta, orbit, tr, disc != 0, t_inf)
+    inf_good = not any(b.place == "infinity" for b in E.bad_places)
+    data = DegreeData(n, T, theta, orbit, tr, disc != 0, t_inf, inf_good)
     if len(_DEGREE_CACHE) > 64:
         _DEGREE_CACHE.clear()
     _DEGREE_CACHE[key] = (E, data)
