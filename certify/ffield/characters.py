@@ -452,6 +452,51 @@ class Character:
     def is_primitive(self) -> bool:
         return self.conductor == self.group.m
 
+    def lift(self, a):
+        """A unit mod m congruent to a mod the conductor f and to 1 mod the part of m prime to f."""
+        G = self.group
+        F = G.F
+        f = self.conductor
+        m0 = F.one_poly()
+        for (P, e), fe in zip(G.factors, self.conductor_exponents):
+            if fe == 0:
+                m0 *= P**e
+        a = a % f if f.degree() > 0 else F.one_poly()
+        if m0.degree() == 0:
+            return a
+        finv = f.inverse_mod(m0)
+        s = ((F.one_poly() - a) * finv) % m0
+        return (a + f * s) % G.m
+
+    def primitive_reduction(self) -> "Character":
+        """The primitive character chi* mod the conductor f with chi*(a) = chi(lift(a)).
+
+        Its exponents are read off the basis elements of (F_q[t]/f)^x; the map is checked
+        on random units (``Inconsistent`` otherwise).
+        """
+        from ..errors import Inconsistent
+        G = self.group
+        f = self.conductor
+        if f.degree() == 0:
+            raise BadInput("the trivial character has no primitive reduction of positive degree")
+        H = character_group(G.F, f)
+        c = []
+        o = self.order
+        for i, d in enumerate(H.invariants):
+            x = self.exponent_at(self.lift(H.basis_element(i)))
+            if (x * d) % o:
+                raise Inconsistent("primitive reduction: a basis value has the wrong order")
+            c.append((x * d) // o % d)
+        star = H.character(c)
+        rng = np.random.default_rng(3)
+        units = np.nonzero(H.is_unit)[0]
+        for i in rng.choice(units, size=min(20, len(units)), replace=False):
+            a = poly_from_index(int(i), G.F)
+            e1 = star.exponent_at(a) * (o // star.order) if star.order else 0
+            if (e1 - self.exponent_at(self.lift(a))) % o:
+                raise Inconsistent("primitive reduction disagrees with chi")
+        return star
+
     def label(self) -> str:
         return "chi[" + ",".join(map(str, self.c)) + "]"
 

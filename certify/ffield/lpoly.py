@@ -41,7 +41,8 @@ from .characters import Character
 from .cyclo import CycloRing, cyclo_ring
 from .poly import poly_str
 
-__all__ = ["LPolynomial", "l_polynomial", "weil_check", "WeilReport"]
+__all__ = ["LPolynomial", "l_polynomial", "weil_check", "WeilReport", "induced_identity_check",
+           "expected_shape"]
 
 
 def _coefficient_counts(chi: Character) -> np.ndarray:
@@ -271,6 +272,47 @@ def l_polynomial(chi: Character) -> LPolynomial:
     while top > 1 and _row_is_zero(counts[top - 1], ring):
         top -= 1
     return LPolynomial(chi, ring, counts[:top].copy())
+
+
+def induced_identity_check(chi: Character) -> bool:
+    """Exactly: L(u, chi) = L(u, chi*) prod_{P | m, P not | f} (1 - chi*(P) u^(deg P)).
+
+    chi* is the primitive reduction (conductor f); the identity is checked as
+    polynomials in u with coefficients in Z[zeta_o], o the order of chi.
+    """
+    from flint import fmpz_poly as _fp
+    G = chi.group
+    star = chi.primitive_reduction()
+    o = chi.order
+    ring = cyclo_ring(o)
+    if star.group.M == 1 or star.is_trivial():
+        prod = [ring.one]
+    else:
+        Ls = l_polynomial(star)
+        step = o // star.order
+        prod = []
+        for c in Ls.coeffs:
+            cs = c.coeffs()
+            lifted = [0] * ((len(cs) - 1) * step + 1) if cs else [0]
+            for j, v in enumerate(cs):
+                lifted[j * step] = int(v)
+            prod.append(ring.reduce(_fp(lifted)))
+    for (P, _), fe in zip(G.factors, chi.conductor_exponents):
+        if fe:
+            continue
+        x = star.exponent_at(P) * (o // star.order)
+        d = P.degree()
+        fac = {0: ring.one, d: -ring.zeta_power(x)}
+        new = [ring.zero] * (len(prod) + d)
+        for i, c in enumerate(prod):
+            for k, v in fac.items():
+                new[i + k] = new[i + k] + ring.reduce(c * v)
+        prod = [ring.reduce(c) for c in new]
+    L = l_polynomial(chi)
+    mine = [ring.reduce(c) for c in L.coeffs]
+    while len(prod) > 1 and prod[-1].is_zero():
+        prod.pop()
+    return mine == prod
 
 
 def expected_shape(chi: Character) -> tuple[int, int]:

@@ -109,3 +109,19 @@ def test_vectorised_table_matches_each_character(q, mt):
     # orbits partition the characters; an orbit of chi has phi(order chi) members
     from sympy import totient
     assert sum(int(totient(int(T.orders[i]))) for i, _ in orbits) == G.order
+
+
+@pytest.mark.parametrize("q,mt", [(3, "t^2*(t+1)^2"), (9, "t^2+t"), (2, "t^3*(t^2+t+1)"),
+                                  (4, "(t+z)^3*t"), (5, "t^3*(t+1)"), (7, "t^2")])
+def test_primitive_reduction_and_induced_identity(q, mt):
+    # L(u, chi) = L(u, chi*) prod_{P | m, P not | f} (1 - chi*(P) u^deg P), exactly in Z[zeta_o]
+    from certify.ffield.lpoly import induced_identity_check
+    F = finite_field(q)
+    G = CharacterGroup(F, parse_monic(mt, F))
+    for chi in G.characters():
+        if chi.is_trivial():
+            continue
+        star = chi.primitive_reduction()
+        assert star.is_primitive and star.order == chi.order
+        assert star.group.m == chi.conductor
+        assert induced_identity_check(chi)
