@@ -24,6 +24,9 @@ Parity: chi is *even* if it is trivial on F_q^x (the constants), odd otherwise.
 Conductor: the least divisor f of m such that chi is trivial on the units
 congruent to 1 modulo f, found place by place (the exponent at P is the least
 j with chi trivial on {a = 1 mod P^j, a = 1 mod m/P^e}).
+Primitive reduction: :meth:`Character.primitive_reduction` gives chi* mod f with
+chi*(a) = chi(a~), a~ = a mod f and a~ = 1 mod the part of m prime to f.
+:func:`character_table` does order, parity and conductor of every character at once.
 """
 
 from __future__ import annotations
