@@ -201,6 +201,8 @@ class FamilyResult:
         cert = self.certified
         out = {
             "twist_degree": self.twist_degree, "members": len(self.members), "certified": len(cert),
+            "relation_case": sum(1 for m in cert if m.status.startswith("certified on the orbit")),
+            "wide_enclosures_over_0.01": sum(1 for m in cert if m.density.width > Fraction(1, 100)),
             "population": self.population, "sampled": self.sampled, "seed": self.seed,
             "mean": None if self.mean is None else {"lower": self.mean.lower_str(10), "upper": self.mean.upper_str(10)},
             "spread": self.spread, "c": self.c,
