@@ -594,7 +594,7 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
               "relation_search": {"method": "LLL on [I | round(C x)] with x_0 = 1/2",
                                   "precision_bits": rel_prec, "coefficient_bound": coeff_bound},
               "working_precision_bits": prec}
-    case = "relations" if confirmed else "LI"
+    case = "relations" if confirmed else ("LI" if J else "no angles")
     method = None
     enclosure = None
     if case == "LI" and J >= 2:
@@ -634,7 +634,9 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
     ev = [f"LLL at {rel_prec} bits found no relation with coefficients <= {coeff_bound} "
           f"other than those listed" + (" (none)" if not confirmed else ""),
           "the search is evidence only: a relation with larger coefficients is not excluded"]
-    if case == "LI":
+    if case == "no angles":
+        pass  # the limit function depends on the parity of X only: nothing to assume
+    elif case == "LI":
         hyps.append(Hypothesis(
             "LI", f"The numbers pi, theta_1, ..., theta_{J} (arguments in (0, pi) of the distinct "
             "inverse roots of modulus sqrt(q), one per conjugate pair) are linearly independent "

@@ -135,3 +135,14 @@ def test_leaders_from_exact_counts():
     assert sum(len(v) for v in L.degrees_led.values()) + L.leaders.count("tie") == 40
     if first is not None:
         assert L.first_change <= first
+
+
+def test_degenerate_race_fails_closed():
+    # q = 9, m = t^2 + t: these two classes see no root of modulus 3 and c_2 = 0, so the
+    # limit function vanishes identically; nothing can be certified and the output says so
+    qn, G, wd = parse_race(9, "t^2+t", ["z*t + (2*z+1)", "(2*z+2)*t + (z+2)"], None, "cumulative")
+    res = certify_ffrace(qn, G, wd, target_width=1e-6, leader_bound=0)
+    assert res.case == "no angles"
+    assert res.density.lower == 0 and res.density.upper == 1
+    assert not res.target_met
+    assert [h.name for h in res.hypotheses] == ["Weil"]
