@@ -93,9 +93,17 @@ def mobius(n: int) -> int:
 
 
 def parse_field_order(q) -> int:
-    """Return q as an int if it is a prime power >= 2, else raise BadInput."""
+    """Return q as an int if it is a prime power >= 2 (``9``, ``3^2`` or ``3**2``), else raise BadInput."""
+    text = str(q).strip().replace("**", "^")
     try:
-        qi = int(str(q).strip())
+        if "^" in text:
+            base, _, ex = text.partition("^")
+            b, e = int(base), int(ex)
+            if not (1 <= e <= 64):
+                raise ValueError
+            qi = b**e
+        else:
+            qi = int(text)
     except (TypeError, ValueError):
         raise BadInput(f"q must be a prime power, got {q!r}") from None
     if qi < 2:

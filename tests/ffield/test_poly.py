@@ -77,7 +77,7 @@ def test_z_only_for_prime_powers():
     parse_poly("t + z", finite_field(25))
 
 
-@pytest.mark.parametrize("q", ["6", "1", "0", "-4", "abc", "12"])
+@pytest.mark.parametrize("q", ["6", "1", "0", "-4", "abc", "12", "6^2", "2^"])
 def test_bad_field_order(q):
     with pytest.raises(BadInput):
         parse_field_order(q)
@@ -87,3 +87,7 @@ def test_bad_field_order(q):
 def test_modulus_must_be_monic_positive_degree(text):
     with pytest.raises(BadInput):
         parse_monic(text, finite_field(3))
+
+
+def test_field_order_power_notation():
+    assert parse_field_order("3^2") == 9 and parse_field_order("2**3") == 8
