@@ -19,19 +19,18 @@ chi(0) T_E.  The model is minimal there because f is coprime to Delta.
 
 from __future__ import annotations
 
-import math
 import random
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from fractions import Fraction
 
 import numpy as np
 
 from ..errors import BadInput, CertifyError, Inconsistent
-from ..ffield.poly import FiniteField, finite_field, poly_from_index, poly_str
+from ..ffield.poly import finite_field, poly_from_index, poly_str
 from ..result import CAUTION, Enclosure, Hypothesis
 from .fieldtable import field_table
-from .lpoly import LPolynomial, l_polynomial
+from .lpoly import l_polynomial
 from .model import EllipticCurve, curve_from_polys, make_curve
 from .race import trace_race
 from .traces import degree_data, embedding, poly_codes_in

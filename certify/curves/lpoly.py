@@ -21,9 +21,9 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
-from flint import acb, arb, fmpq, fmpz_poly
+from flint import fmpz_poly
 
-from ..arith import workprec
+from ..arith import acb, arb, fmpq, workprec
 from ..errors import Inconsistent, PrecisionExhausted
 from .fieldtable import MAX_FIELD_SIZE
 

@@ -24,9 +24,9 @@ import math
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from flint import acb, fmpq, fmpq_mat, fmpz_mat
+from flint import fmpz_mat
 
-from ..arith import arb, workprec
+from ..arith import acb, arb, fmpq, workprec
 from ..density.bessel import BesselVariable, density_enclosure
 from ..errors import BadInput, PrecisionExhausted
 from ..result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
@@ -287,7 +287,6 @@ def observed_race(E: EllipticCurve, L: LPolynomial, var: RaceVariable, x_max: in
     """Exact trace sums for X <= x_max, the normalised value and the limit formula's value."""
     q = E.q
     out = []
-    cum = Fraction(0)
     with workprec(prec):
         sq = arb(q).sqrt()
         total = arb(0)

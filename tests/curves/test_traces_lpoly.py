@@ -6,7 +6,7 @@ from flint import fmpz_mod_poly_ctx, fmpz_poly, fq_default_ctx
 from certify.curves.lpoly import exact_multiplicity, l_polynomial, newton_coefficients, power_sums
 from certify.curves.model import make_curve
 from certify.curves.traces import degree_data, frobenius_sum, hasse_check
-from certify.ffield.poly import factor, finite_field, monic_irreducibles
+from certify.ffield.poly import finite_field, monic_irreducibles
 
 CURVES = [
     (5, "t", "t^2 + 1"),
