@@ -148,7 +148,9 @@ class EllipticCurve:
         return self.text(num * lc.inverse()), self.text(den * lc.inverse())
 
     def describe(self) -> str:
-        return f"y^2 = x^3 + ({self.text(self.A)})*x + ({self.text(self.B)}) over {self.field.describe()}(t)"
+        fd = self.field.describe()
+        where = f"F_{self.q}(t)" + ("" if self.field.k == 1 else f", {fd}")
+        return f"y^2 = x^3 + ({self.text(self.A)})*x + ({self.text(self.B)}) over {where}"
 
     def as_dict(self) -> dict:
         jn, jd = self.j_invariant()
