@@ -58,6 +58,12 @@ class Enclosure:
 
     @classmethod
     def from_arb(cls, x: arb) -> "Enclosure":
+        # An unbounded or astronomically wide ball cannot be an answer, and its exact
+        # conversion would exhaust memory: refuse it (fail closed).
+        if not x.is_finite() or x.rad() > 2**64 or abs(x.mid()) > 2**64:
+            from .errors import PrecisionExhausted
+
+            raise PrecisionExhausted(f"not certified: the enclosure {x.str(5)} is unbounded")
         return cls(lower_fraction(x), upper_fraction(x))
 
     @property
