@@ -35,6 +35,51 @@ _DECODED: "collections.OrderedDict[str, object]" = collections.OrderedDict()
 _DECODED_MAX = 2000
 
 
+RACE_MEMORY = int(os.environ.get("CERTIFY_RACE_MEMORY_MB", "3072")) << 20
+
+
+class _MemoryCap:
+    """Scoped cap on this process's address space: what it uses now plus ``extra`` bytes.
+
+    A race that runs away (for instance by turning a non-finite ball into an
+    exact rational) then raises MemoryError in its own task, reported as not
+    certified, instead of exhausting the machine.  Restored on exit.
+    """
+
+    def __init__(self, extra: int):
+        self.extra = extra
+        self.old = None
+
+    def __enter__(self):
+        try:
+            import resource
+
+            with open("/proc/self/statm") as fh:
+                vsize = int(fh.read().split()[0]) * os.sysconf("SC_PAGE_SIZE")
+            self.old = resource.getrlimit(resource.RLIMIT_AS)
+            soft, hard = self.old
+            cap = vsize + self.extra
+            if hard != resource.RLIM_INFINITY:
+                cap = min(cap, hard)
+            if soft == resource.RLIM_INFINITY or soft > cap:
+                resource.setrlimit(resource.RLIMIT_AS, (cap, hard))
+            else:
+                self.old = None
+        except (ImportError, OSError, ValueError):
+            self.old = None
+        return self
+
+    def __exit__(self, *exc):
+        if self.old is not None:
+            import resource
+
+            try:
+                resource.setrlimit(resource.RLIMIT_AS, self.old)
+            except (ValueError, OSError):
+                pass
+        return False
+
+
 def _spectrum_of(blob: bytes, digest: str):
     sp = _DECODED.get(digest)
     if sp is None:
@@ -99,10 +144,8 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
     """
     from ..races import certify_race
     from .cache import CachedStore
-    from .plan import install_fast_planner
 
     with _LOCK:
-        install_fast_planner()
         base = {}
         digests = {}
         for key, (blob, digest) in spectra.items():
@@ -114,10 +157,21 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             store = CachedStore(backend=None, spectra=base)
             t0 = time.perf_counter()
             try:
-                r = certify_race(question, digits, store=store, command_line=command_line)
+                with _MemoryCap(RACE_MEMORY):
+                    r = certify_race(question, digits, store=store, command_line=command_line)
             except CertifyError as exc:
                 out.append({"slug": slug, "ok": False, "error": str(exc),
                             "error_kind": type(exc).__name__,
+                            "seconds": time.perf_counter() - t0})
+                continue
+            except MemoryError:
+                out.append({"slug": slug, "ok": False, "error_kind": "MemoryError",
+                            "error": "not certified: the race engine ran out of memory",
+                            "seconds": time.perf_counter() - t0})
+                continue
+            except Exception as exc:  # one race's failure must not end the batch
+                out.append({"slug": slug, "ok": False, "error_kind": type(exc).__name__,
+                            "error": f"not certified: engine error {type(exc).__name__}: {exc}",
                             "seconds": time.perf_counter() - t0})
                 continue
             d = r.to_dict()
@@ -168,18 +222,63 @@ class InlineExecutor:
         pass
 
 
+def _limit_memory(limit: int) -> None:
+    """Worker initializer: cap the address space, so a runaway race raises MemoryError
+    in its own worker (reported as not certified) instead of calling the system's
+    out-of-memory killer on the machine."""
+    try:
+        import resource
+
+        soft, hard = resource.getrlimit(resource.RLIMIT_AS)
+        if hard == resource.RLIM_INFINITY or hard > limit:
+            resource.setrlimit(resource.RLIMIT_AS, (limit, hard))
+    except (ImportError, ValueError, OSError):
+        pass
+
+
+def worker_memory_limit(workers: int) -> int:
+    """Address-space cap per worker: a share of physical memory, at least 3 GiB."""
+    try:
+        phys = os.sysconf("SC_PAGE_SIZE") * os.sysconf("SC_PHYS_PAGES")
+    except (ValueError, OSError, AttributeError):
+        phys = 8 << 30
+    return max(3 << 30, phys // (workers + 1))
+
+
 class ProcessExecutor:
-    """Local worker processes (spawned, so no state is shared by fork)."""
+    """Local worker processes (spawned, so no state is shared by fork).
+
+    Each worker's address space is capped (:func:`worker_memory_limit`).  If a
+    worker dies anyway, the pool is restarted and the tasks in flight are
+    resubmitted (:func:`run_all`).
+    """
 
     name = "local processes"
 
     def __init__(self, workers: int):
         import concurrent.futures as cf
-        import multiprocessing as mp
 
         self.workers = workers
         self._cf = cf
-        self.pool = cf.ProcessPoolExecutor(max_workers=workers, mp_context=mp.get_context("spawn"))
+        self.memory_limit = worker_memory_limit(workers)
+        self._start()
+
+    def _start(self):
+        import multiprocessing as mp
+
+        self.pool = self._cf.ProcessPoolExecutor(max_workers=self.workers,
+                                                 mp_context=mp.get_context("spawn"),
+                                                 initializer=_limit_memory,
+                                                 initargs=(self.memory_limit,))
+
+    def is_broken(self, exc) -> bool:
+        from concurrent.futures.process import BrokenProcessPool
+
+        return isinstance(exc, BrokenProcessPool)
+
+    def restart(self):
+        self.pool.shutdown(wait=False, cancel_futures=True)
+        self._start()
 
     def submit(self, fn, *args):
         return self.pool.submit(fn, *args)
@@ -248,26 +347,55 @@ def make_executor(workers: int | None = None, scheduler: str | None = None):
     return ProcessExecutor(workers)
 
 
-def run_all(executor, fn, arglists, window: int | None = None):
-    """Yield (index, result) as tasks finish; at most ``window`` tasks in flight.
+def run_all(executor, fn, arglists: list, window: int | None = None, retries: int = 1):
+    """Yield (index, result or exception) as tasks finish; at most ``window`` in flight.
 
     The window keeps memory small (spectra travel with tasks) and lets a
-    killed run lose only the tasks in flight.
+    killed run lose only the tasks in flight.  A task that raises yields its
+    exception.  If the local pool breaks (a worker killed from outside), it
+    is restarted and the tasks in flight are submitted again, ``retries``
+    times at most.
     """
     window = window or max(2, 2 * executor.workers)
-    it = iter(enumerate(arglists))
+    nxt = 0
     pending = {}
-    for i, args in it:
-        pending[executor.submit(fn, *args)] = i
-        if len(pending) >= window:
-            break
+    attempts = [0] * len(arglists)
+
+    def submit(j):
+        pending[executor.submit(fn, *arglists[j])] = j
+
+    while nxt < len(arglists) and len(pending) < window:
+        submit(nxt)
+        nxt += 1
     while pending:
         for fut in executor.wait_one(list(pending)):
             i = pending.pop(fut)
-            yield i, executor.result(fut)
-            nxt = next(it, None)
-            if nxt is not None:
-                pending[executor.submit(fn, *nxt[1])] = nxt[0]
+            try:
+                res = executor.result(fut)
+            except Exception as exc:
+                broken = getattr(executor, "is_broken", lambda e: False)(exc)
+                if not broken:
+                    yield i, exc
+                    res = None
+                else:
+                    lost = [i] + list(pending.values())
+                    pending.clear()
+                    executor.restart()
+                    for j in lost:
+                        attempts[j] += 1
+                        if attempts[j] > retries:
+                            yield j, exc
+                        else:
+                            submit(j)
+                    break
+            else:
+                yield i, res
+            if nxt < len(arglists):
+                submit(nxt)
+                nxt += 1
+        while nxt < len(arglists) and len(pending) < window:
+            submit(nxt)
+            nxt += 1
 
 
 # --- progress ------------------------------------------------------------------

@@ -17,9 +17,7 @@ and stored again: the plan only saves work, it certifies nothing.
 
 from __future__ import annotations
 
-import functools
 import hashlib
-import inspect
 import itertools
 import math
 from dataclasses import dataclass
@@ -178,22 +176,26 @@ class Request:
                 + 0.02 * self.moments * self.bits)
 
 
-def _driver_constants():
+def _driver_plan():
     from .. import races
 
-    return races.J01, races._plan_xi_max
+    return races.J01, getattr(races, "MIN_HEIGHT", 8.0), races.plan_frequency_range
 
 
 def first_round_requests(question: RaceQuestion, digits: int, store) -> list[tuple]:
     """The (conductor, label, parity, height, width, moments, bits) the driver asks first.
 
-    Mirrors the first round of :func:`certify.races.certify_race`; ``store``
-    supplies the first power sums (cheap), used for the exact variance.
+    Mirrors the first round of :func:`certify.races.certify_race` (its
+    constants and its public ``plan_frequency_range``); ``store`` supplies the
+    first power sums (cheap), used for the exact variance.  If the driver's
+    plan drifts from this mirror nothing goes wrong: races then extend the
+    spectra they need (counted as ``extended_by_races`` in the batch summary).
     """
-    J01, plan_xi_max = _driver_constants()
+    J01, min_height, plan_frequency_range = _driver_plan()
     tau = 10.0 ** (-digits)
     prec = max(80, int(digits * 3.33) + 48)
     mu = mean_of(question)
+    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
     with workprec(prec):
         groups = spectral_groups(question)
         V = arb(0)
@@ -202,17 +204,16 @@ def first_round_requests(question: RaceQuestion, digits: int, store) -> list[tup
             sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
             T1 = sp.power_sums[0] / (2 if g.is_real else 1)
             V += g.scale * g.scale * T1 / 2
-        xi_max = plan_xi_max(groups, float(V.mid()), float(mu), tau)
-        width = min(1e-6, tau / (1000 * (1 + xi_max)))
-        moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
-        out = []
-        for g in groups:
-            s = float(g.scale.mid())
-            height = max(8.0, 2.6 * s * xi_max / J01)
-            grow = max(1.0, s * xi_max / J01)
-            bits = int(digits * 3.33 + 2 * moments * math.log2(grow * 4) + 40)
-            for (c, n) in g.primitive_keys:
-                out.append((c, n, g.parity, height, width, moments, bits))
+    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu), tau)
+    width = min(1e-6, tau / (50 * (1 + xi_max)))
+    out = []
+    for g in groups:
+        s = float(g.scale.mid())
+        height = max(min_height, 2.6 * s * xi_max / J01)
+        grow = max(2.0, 2 * s * xi_max / J01)
+        bits = int(digits * 3.33 + 2 * moments * math.log2(grow) + 40)
+        for (c, n) in g.primitive_keys:
+            out.append((c, n, g.parity, height, width, moments, bits))
     return out
 
 
@@ -227,87 +228,3 @@ def spectrum_requests(items: list[RaceItem], digits: int, store=None) -> dict:
             r = reqs.setdefault((c, n), Request(c, n, par))
             r.widen(h, w, k, b)
     return reqs
-
-
-# --- a faster planner for the driver ---------------------------------------
-#
-# The driver's frequency planner (certify.races._plan_xi_max) rebuilds model
-# ordinates and loops over them in Python for every race: about 1 s per race
-# mod 29, more than the density sums themselves.  In a batch the same model is
-# used thousands of times, so batch workers swap in a vectorised equivalent.
-# It computes the same quantity (up to floating-point summation order) and only
-# chooses parameters; every bound is still certified by the density engine.
-# It is installed only if the driver's planner is the version it was written
-# against (source digest below); otherwise the driver's own planner runs.
-
-_PLANNER_SOURCE_DIGESTS = {
-    "6ec9ee039fc99d7e59778cdc98dbac22",  # certify.races at commit 53b6f6e
-}
-
-
-def _source_digest(fn) -> str:
-    return hashlib.sha256(inspect.getsource(fn).encode()).hexdigest()[:32]
-
-
-@functools.lru_cache(maxsize=None)
-def _model_radii(conductor: int):
-    import numpy as np
-
-    from .. import races
-
-    gam = np.array(races._model_ordinates(conductor, 2000.0), dtype=float)
-    return 1.0 / np.hypot(0.5, gam)
-
-
-def fast_plan_xi_max(groups, V: float, mu: float, tau: float) -> float:
-    """Vectorised twin of the driver's ``_plan_xi_max`` (same model, same stopping rule)."""
-    import numpy as np
-
-    t = math.sqrt(2 * V * math.log(16 / tau))
-    L = 2 * (abs(mu) + t)
-    eps = 2 * math.pi / L
-    xi = eps
-    parts = []
-    for g in groups:
-        s = float(g.scale.mid())
-        for (qs, _) in g.primitive_keys:
-            parts.append(s * _model_radii(qs))
-    r = np.sort(np.concatenate(parts))[::-1] if parts else np.zeros(0)
-    # f = 2/(pi r xi) < 1  <=>  r > 2/(pi xi): a prefix of the sorted weights
-    logs = np.cumsum(np.log(2.0 / (math.pi * r))) if len(r) else np.zeros(0)
-    neg = -r
-    while xi < 1e4:
-        J = int(np.searchsorted(neg, -2.0 / (math.pi * xi), side="left"))
-        # weights with pi r xi > 2 exactly as the driver's test f < 1 selects them
-        while J < len(r) and 2 / (math.pi * r[J] * xi) < 1:
-            J += 1
-        while J > 0 and not (2 / (math.pi * r[J - 1] * xi) < 1):
-            J -= 1
-        if J:
-            logp = 0.5 * (float(logs[J - 1]) - J * math.log(xi))
-            if 2 / (math.pi * J) * math.exp(logp) < tau / 8:
-                return xi
-        xi *= 1.15
-    return xi
-
-
-def planner_status() -> str:
-    from .. import races
-
-    fn = races._plan_xi_max
-    if fn is fast_plan_xi_max:
-        return "vectorised planner active"
-    return "driver planner " + _source_digest(fn)
-
-
-def install_fast_planner() -> bool:
-    """Use :func:`fast_plan_xi_max` in this process if the driver's planner is the known one."""
-    from .. import races
-
-    fn = races._plan_xi_max
-    if fn is fast_plan_xi_max:
-        return True
-    if _source_digest(fn) not in _PLANNER_SOURCE_DIGESTS:
-        return False
-    races._plan_xi_max = fast_plan_xi_max
-    return True

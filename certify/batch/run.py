@@ -26,13 +26,13 @@ import time
 from collections import defaultdict
 
 from .. import __version__
-from ..errors import BadInput
+from ..errors import BadInput, CertifyError, PrecisionExhausted
 from ..io import write_atomic
 from ..race.question import spectral_groups
 from ..source.dirichlet import reduced_residues
 from .cache import SOFTWARE_VERSION, CachedStore, SpectrumCache
 from .execute import Progress, make_executor, race_task, run_all, spectrum_task
-from .plan import RaceItem, install_fast_planner, planner_status, races_for, spectrum_requests
+from .plan import RaceItem, races_for, spectrum_requests
 
 CHUNK = 6
 
@@ -110,7 +110,6 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
         cache_path = os.path.join(out, "spectra-scratch.sqlite")
     cache = SpectrumCache(cache_path)
     cache.connection()
-    install_fast_planner()
     items = races_for(moduli, kinds, extra)
     if not items:
         raise BadInput("the batch has no race (no modulus with two reduced classes?)")
@@ -124,7 +123,6 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
         "moduli": moduli, "digits": digits, "races": len(items),
         "races_reused": len(done), "races_run": len(pending),
         "software": SOFTWARE_VERSION, "cache": cache.path,
-        "planner": planner_status(),
         "spectra": {"needed": 0, "from_cache": 0, "computed": 0, "extended_by_races": 0},
         "timings_seconds": {}, "failures": [], "per_modulus": {}, "per_conductor": {},
         "command_line": command_line,
@@ -166,6 +164,12 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                       "bits": r.bits}, start) for r, start in todo]
             for i, res in run_all(executor, spectrum_task, args):
                 r = todo[i][0]
+                if isinstance(res, BaseException):
+                    if isinstance(res, CertifyError):
+                        raise res
+                    raise PrecisionExhausted(
+                        f"not certified: the spectrum of chi_{{{r.conductor},{r.label}}} could "
+                        f"not be computed ({type(res).__name__}: {res})")
                 sp_seconds = sum(res["timings"].values())
                 from .serial import decode
 
@@ -200,6 +204,11 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                 args.append(([(it.slug, it.question) for it in ch], digits, shipped, command_line))
             prog = Progress("races", len(pending), enabled=progress)
             for i, results in run_all(executor, race_task, args):
+                if isinstance(results, BaseException):
+                    results = [{"slug": it.slug, "ok": False,
+                                "error": f"not certified: the worker failed "
+                                         f"({type(results).__name__}: {results})"}
+                               for it in chunks[i]]
                 for res in results:
                     it = next(x for x in chunks[i] if x.slug == res["slug"])
                     if not res["ok"]:
