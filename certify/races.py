@@ -236,6 +236,65 @@ def _hypotheses(question, group_reports) -> tuple:
     )
 
 
+@dataclass
+class RacePlan:
+    """The parameters of one round of :func:`certify_race` (planning, floating point).
+
+    Nothing here is trusted by a bound: the plan only decides how far to compute
+    (isolation heights, zero widths, moments and their accuracy, precision); the
+    engine then bounds every error rigorously for whatever was computed.
+    """
+
+    digits: int
+    tau: float
+    prec: int
+    mean: Fraction
+    variance: arb
+    xi_max: float
+    moments: int
+    width: float
+    height_factor: float = 2.6
+
+    def request(self, group) -> tuple[float, float, int, int]:
+        """(height, zero width, moments, moment accuracy bits) for a spectral group."""
+        s = float(group.scale.mid())
+        height = max(MIN_HEIGHT, self.height_factor * s * self.xi_max / J01)
+        # R_k is multiplied by about (s xi / j01)^(2k) in the engine
+        grow = max(2.0, 2 * s * self.xi_max / J01)
+        bits = int(self.digits * 3.33 + 2 * self.moments * math.log2(grow) + 40)
+        return height, self.width, self.moments, bits
+
+    def spectrum_requests(self, groups) -> list[tuple]:
+        """(conductor, label, parity, height, width, moments, bits) for every L-function needed."""
+        out = []
+        for g in groups:
+            h, w, k, b = self.request(g)
+            out.extend((c, n, g.parity, h, w, k, b) for (c, n) in g.primitive_keys)
+        return out
+
+
+def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> RacePlan:
+    """The first-round plan of a race: exact variance (first moments), frequency range, sizes."""
+    tau = 10.0 ** (-digits)
+    prec = max(80, int(digits * 3.33) + 48)
+    mu_q = mean_of(question)
+    groups = spectral_groups(question)
+    if not groups:
+        raise BadInput(f"{question.label}: every character sum W(chi) vanishes; the race is degenerate")
+    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
+    with workprec(prec):
+        groups = spectral_groups(question)
+        V = arb(0)
+        for g in groups:
+            c, n = g.primitive_keys[0]
+            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
+            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
+            V += g.scale * g.scale * T1 / 2
+    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau)
+    width = min(1e-6, tau / (50 * (1 + xi_max)))
+    return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
+
+
 def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
                  store: SpectrumStore | None = None, max_rounds: int = 5,
                  command_line: str = "") -> RaceResult:
@@ -267,25 +326,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         raise BadInput(f"digits must be between 1 and {MAX_DIGITS} (got {digits})")
     t_start = time.time()
     store = store or SpectrumStore()
-    tau = 10.0 ** (-digits)
-    prec = max(80, int(digits * 3.33) + 48)
-    mu_q = mean_of(question)
-    groups = spectral_groups(question)
-    if not groups:
-        raise BadInput(f"{question.label}: every character sum W(chi) vanishes; the race is degenerate")
-    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
-    # exact variance for planning (the moments are computed once, at the accuracy used later)
-    with workprec(prec):
-        groups = spectral_groups(question)
-        V = arb(0)
-        for g in groups:
-            c, n = g.primitive_keys[0]
-            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
-            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
-            V += g.scale * g.scale * T1 / 2
-    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau)
-    height_factor = 2.6
-    width = min(1e-6, tau / (50 * (1 + xi_max)))
+    plan = plan_race(question, digits, store)
+    tau, prec, mu_q, V = plan.tau, plan.prec, plan.mean, plan.variance
     best = None
     timings = {"spectra": 0.0, "density": 0.0}
     last_reason = ""
@@ -297,11 +339,7 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         with workprec(prec):
             groups = spectral_groups(question)
             for g in groups:
-                s = float(g.scale.mid())
-                height = max(MIN_HEIGHT, height_factor * s * xi_max / J01)
-                # R_k is multiplied by about (s xi / j01)^(2k) in the engine
-                grow = max(2.0, 2 * s * xi_max / J01)
-                bits = int(digits * 3.33 + 2 * moments * math.log2(grow) + 40)
+                height, width, moments, bits = plan.request(g)
                 fraction = 0.25
                 while True:
                     sps = [store.get(c, n, g.parity, height, width, moments, bits, fraction)
@@ -342,12 +380,13 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
             dens = density_enclosure(variable, tau, prec=prec)
         except PrecisionExhausted as exc:
             last_reason = str(exc)
-            xi_max *= 1.5
+            plan.xi_max *= 1.5
             continue
         finally:
             timings["density"] += time.time() - t1
         if best is None or dens.enclosure.width < best[0].enclosure.width:
-            best = (dens, reports, dict(dens.parameters), (height_factor, width, moments, prec))
+            best = (dens, reports, dict(dens.parameters),
+                    (plan.height_factor, plan.width, plan.moments, prec))
         if dens.enclosure.width <= Fraction(tau):
             break
         # refine the plan where the budget says
@@ -355,14 +394,15 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         worst = max(b, key=b.get)
         last_reason = f"largest error term: {worst} ({b[worst]:.2e})"
         if worst == "residual zeros" or dens.parameters.get("fallback_frequencies", 0):
-            xi_max = max(xi_max, dens.parameters["xi_max"])
-            height_factor *= 1.5
-            moments = min(80, moments + 6)
+            plan.xi_max = max(plan.xi_max, dens.parameters["xi_max"])
+            plan.height_factor *= 1.5
+            plan.moments = min(80, plan.moments + 6)
         if worst == "rounding and zero enclosures" or b["rounding and zero enclosures"] > tau / 8:
-            width = width * 1e-4
-            prec += 32
+            plan.width *= 1e-4
+            plan.prec += 32
+            prec = plan.prec
         if worst == "frequency truncation":
-            height_factor *= 1.3
+            plan.height_factor *= 1.3
     if best is None:
         raise PrecisionExhausted(f"not certified: {question.label}: {last_reason}")
     dens, reports, params, (hf, w, K, p) = best
