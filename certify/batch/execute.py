@@ -306,7 +306,7 @@ class DaskExecutor:
 
     def __init__(self, address: str, timeout: float = 30.0):
         try:
-            from dask.distributed import Client, wait
+            from dask.distributed import Client
         except ImportError:
             from ..errors import BadInput
 
@@ -318,7 +318,6 @@ class DaskExecutor:
             self.client = Client(address, timeout=timeout, set_as_default=False)
         except (OSError, TimeoutError) as exc:
             raise BadInput(f"cannot reach the dask scheduler at {address}: {exc}") from None
-        self._wait = wait
         info = self.client.scheduler_info()
         self.workers = max(1, sum(int(w.get("nthreads", 1)) for w in info.get("workers", {}).values()))
         self.address = address
@@ -331,8 +330,14 @@ class DaskExecutor:
         return fut.result()
 
     def wait_one(self, pending):
-        res = self._wait(pending, return_when="FIRST_COMPLETED")
-        return list(res.done)
+        # poll: distributed.wait() needs a default client, and this one is not made default
+        delay = 0.005
+        while True:
+            done = [f for f in pending if f.done()]
+            if done:
+                return done
+            time.sleep(delay)
+            delay = min(0.1, delay * 1.5)
 
     def close(self):
         self.client.close()
