@@ -116,3 +116,25 @@ def test_bad_input_is_one_line(argv, tmp_path, capsys):
     assert main(argv) == 2
     err = capsys.readouterr().err
     assert err.startswith("certify: error:") and err.count("\n") == 1
+
+
+def test_latex_tables_compile(table, tmp_path):
+    """table.tex and ranking.tex compile with pdflatex (CI installs it; skipped elsewhere)."""
+    import shutil
+    import subprocess
+
+    if shutil.which("pdflatex") is None:
+        if os.environ.get("CI"):
+            pytest.fail("pdflatex is missing in CI")
+        pytest.skip("pdflatex not installed")
+    _, out, _ = table
+    doc = tmp_path / "doc.tex"
+    doc.write_text("\\documentclass{article}\n\\usepackage{booktabs,longtable}\n"
+                   "\\begin{document}\n"
+                   f"\\input{{{os.path.join(out, 'table.tex')}}}\n"
+                   f"\\input{{{os.path.join(out, 'ranking.tex')}}}\n"
+                   "\\end{document}\n")
+    res = subprocess.run(["pdflatex", "-interaction=nonstopmode", "-halt-on-error", "doc.tex"],
+                         cwd=tmp_path, capture_output=True, text=True, timeout=120)
+    assert res.returncode == 0, res.stdout[-2000:]
+    assert (tmp_path / "doc.pdf").stat().st_size > 1000
