@@ -245,19 +245,18 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
     ordinates.sort(key=lambda t: t[0])
     chosen = ordinates[:relation_size]
     if len(chosen) >= 2:
-        refined = []
+        refined = []  # (L-function record, stored ordinate record, its re-parsed ball)
         for _, gi, li, z in chosen:
             lf = spectrum["groups"][gi]["l_functions"][li]
-            zb = next(zz for zz in result.groups[gi].zeros
-                      if ball_record(zz)["mid"] == z["mid"])
+            zb = ball_of(z)
             lo, hi = exact_ends(zb)
             if hi - lo <= Fraction(1, 2**RELATION_WIDTH_BITS):
-                refined.append((lf, zb))  # already narrow enough: keep the stored enclosure
+                rec = {"mid": z["mid"], "rad": z["rad"]}  # already narrow: the stored zero itself
             else:
-                refined.append((lf, refine_ordinate(lf["conductor"], lf["label"], zb,
-                                                    RELATION_WIDTH_BITS)))
-        refined = [(lf, ball_of(ball_record(b))) for lf, b in refined]
-        rs = relation_search([b for _, b in refined], RELATION_SCALE_BITS)
+                rec = ball_record(refine_ordinate(lf["conductor"], lf["label"], zb,
+                                                  RELATION_WIDTH_BITS))
+            refined.append((lf, rec, ball_of(rec)))
+        rs = relation_search([b for _, _, b in refined], RELATION_SCALE_BITS)
         K = rs["size"]
         if rs["candidate"] is None:
             text = (f"integer-relation search (LLL) among the first {K} ordinates: none found; "
@@ -275,8 +274,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             "text": text,
             "data": {
                 "size": K, "scale_bits": rs["scale_bits"],
-                "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **ball_record(b)}
-                              for lf, b in refined],
+                "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **rec}
+                              for lf, rec, _ in refined],
                 "norm_lower_bound": decimal_down(rs["norm_lower_bound"], 6),
                 "coefficient_bound": rs["coefficient_bound"],
                 "linear_form_lower_bound": (None if rs["linear_form_lower_bound"] is None

@@ -4,17 +4,17 @@ For a primitive character chi mod q of parity kappa, the completed function
 Lambda(s) = (q/pi)^((s+kappa)/2) Gamma((s+kappa)/2) L(s, chi) is entire, its zeros
 are the non-trivial zeros of L, and Lambda(1 - conj s, chi) = conj(Lambda(s, chi)/eps)
 with |eps| = 1.  Reflecting the left half of the rectangle
-[-3/2, 5/2] x [0, T] onto the right half gives (docs/certificates.md)
+[-1, 2] x [0, T] onto the right half gives (docs/certificates.md)
 
     N(T) = #{rho : 0 < gamma < T} = (1/pi) Delta_C arg Lambda(s),
-    C : 1/2 -> 5/2 -> 5/2 + iT -> 1/2 + iT,
+    C : 1/2 -> 2 -> 2 + iT -> 1/2 + iT,
 
 when Lambda has no zero on C.  Along C:
 
 * the factors (q/pi)^(...) and Gamma(...) have continuous logarithms
   ((s + kappa)/2 stays in Re > 0), so their argument change is the change of
   Im((s+kappa)/2 log(q/pi)) + Im log Gamma((s+kappa)/2) between the ends;
-* on the edge Re s = 5/2, |L - 1| <= zeta(5/2) - 1 < 0.35, so Re L > 0 and
+* on the edge Re s = 2, |L - 1| <= zeta(2) - 1 < 0.65, so Re L > 0 and
   the argument change is the difference of principal arguments;
 * on the two horizontal edges the change is summed over pieces whose image
   (an Arb box of L over the piece) excludes 0: a convex set missing 0 lies in an
@@ -35,7 +35,7 @@ from flint import dirichlet_char
 from ..arith import acb, arb, workprec
 from ..errors import PrecisionExhausted
 
-RIGHT_EDGE = Fraction(5, 2)
+RIGHT_EDGE = Fraction(2)
 
 
 def _q(x: Fraction) -> arb:
@@ -51,8 +51,8 @@ class _NearOne:
     (Cauchy's estimate |c_k| <= M / R^k).
     """
 
-    R = Fraction(1, 4)
-    K = 24
+    R = Fraction(1, 2)
+    K = 40
 
     def __init__(self, chi):
         from flint import acb_series
@@ -60,7 +60,7 @@ class _NearOne:
         from ..arith import series_cap
 
         R = _q(self.R)
-        m = 32
+        m = 16
         chord = 2 * R * (arb.pi() / m).sin()
         M = arb(0)
         for j in range(m):
@@ -77,7 +77,7 @@ class _NearOne:
         r = abs(h).upper()
         ratio = arb(r) / _q(self.R)
         if not (ratio < arb(1) / 2):
-            return None
+            return None  # also when h is far from 0: the caller evaluates L directly
         v = acb(0)
         for c in reversed(self.c):
             v = v * h + c
@@ -86,8 +86,12 @@ class _NearOne:
 
 
 def _l_box(chi, near_one, z: acb) -> acb:
-    """L(s, chi) over the box z, through the series at 1 when z meets s = 1."""
-    if z.real.contains(1) and z.imag.contains(0):
+    """L(s, chi) over the box z; through the series at 1 when z is close to s = 1.
+
+    (Near s = 1 Arb's formula, a sum of Hurwitz zeta values with poles that
+    cancel, gives wide boxes; the Taylor series does not.)
+    """
+    if near_one is not None:
         v = near_one.box(z - 1)
         if v is not None:
             return v
@@ -152,7 +156,7 @@ def count_zeros(conductor: int, label: int, parity: int, height: Fraction, prec:
     with workprec(prec):
         T = _q(height)
         a = Fraction(1, 2)
-        # bottom edge 1/2 -> 5/2 and top edge 5/2 + iT -> 1/2 + iT
+        # bottom edge 1/2 -> 2 and top edge 2 + iT -> 1/2 + iT
         d_bottom = _horizontal_arg_change(chi, Fraction(0), a, RIGHT_EDGE, max_pieces)
         pieces = _horizontal_arg_change.pieces
         d_top = _horizontal_arg_change(chi, height, RIGHT_EDGE, a, max_pieces)
@@ -160,8 +164,8 @@ def count_zeros(conductor: int, label: int, parity: int, height: Fraction, prec:
         # right edge: Re L > 0 there, principal arguments
         l0 = chi.l(acb(_q(RIGHT_EDGE), 0))
         l1 = chi.l(acb(_q(RIGHT_EDGE), T))
-        if not (l0.real > 0 and l1.real > 0):  # guaranteed by |L - 1| < 0.35; checked anyway
-            raise PrecisionExhausted("not certified: Re L(5/2 + it) > 0 failed")
+        if not (l0.real > 0 and l1.real > 0):  # guaranteed by |L - 1| < 0.65; checked anyway
+            raise PrecisionExhausted("not certified: Re L(2 + it) > 0 failed")
         d_right = l1.arg() - l0.arg()
         # gamma and exponential factors between s = 1/2 and s = 1/2 + iT
         k = arb(parity)
