@@ -47,6 +47,8 @@ def _latex_escape(text) -> str:
     s = re.sub(r"\bgamma\\_i\b", r"$\\gamma_i$", s)
     s = re.sub(r"\bk\\_i\b", r"$k_i$", s)
     s = s.replace("<=", r"$\le$").replace(">=", r"$\ge$").replace("!=", r"$\ne$")
+    # the default (OT1) text encoding has no <, >, |: set them in math mode
+    s = re.sub(r"(?<!\$\\[lg]e)(?<![\\$])([<>|])", r"$\1$", s)
     s = s.replace("+/-", r"$\pm$")
     s = re.sub(r"\bdelta\b", r"$\\delta$", s)
     s = re.sub(r"(?<![\\$])\bpi\(", r"$\\pi$(", s)
