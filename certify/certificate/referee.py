@@ -188,8 +188,11 @@ def parse_claim_line(line: str, source: str = "") -> Claim | None:
     return Claim(race, value_text.strip(), lo, hi, meaning, places, source, note.strip())
 
 
-def read_claims(path: str) -> tuple[list[Claim], list[str]]:
-    """All claims of a file, and the one-line errors ``FILE:LINE: ...`` of its bad lines."""
+def read_claims(path: str, display: str | None = None) -> tuple[list[Claim], list[str]]:
+    """All claims of a file, and the one-line errors ``FILE:LINE: ...`` of its bad lines.
+
+    ``display`` is the file name used in messages and sources (default ``path``).
+    """
     try:
         with open(path, encoding="utf-8") as fh:
             lines = fh.read().splitlines()
@@ -197,17 +200,18 @@ def read_claims(path: str) -> tuple[list[Claim], list[str]]:
         raise BadInput(f"{path}: cannot read ({exc.strerror or exc})") from None
     except UnicodeDecodeError:
         raise BadInput(f"{path}: not a UTF-8 text file") from None
+    name = display or path
     claims, errors = [], []
     for no, line in enumerate(lines, start=1):
         try:
-            c = parse_claim_line(line, f"{path}:{no}")
+            c = parse_claim_line(line, f"{name}:{no}")
         except BadInput as exc:
-            errors.append(f"{path}:{no}: {exc}")
+            errors.append(f"{name}:{no}: {exc}")
             continue
         if c is not None:
             claims.append(c)
     if not claims and not errors:
-        errors.append(f"{path}:1: no claims in the file (expected lines RACE = VALUE)")
+        errors.append(f"{name}:1: no claims in the file (expected lines RACE = VALUE)")
     return claims, errors
 
 

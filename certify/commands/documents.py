@@ -128,7 +128,8 @@ def run_verify(args) -> int:
                     "checks": [{"name": c.name, "ok": c.ok, "detail": c.detail} for c in rep.checks]})
         if not args.json:
             verdict = "VERIFIED" if rep.ok else "MISMATCH"
-            ratio = f"; {rep.speedup:.1f}x faster than the original computation" if rep.speedup else ""
+            ratio = (f" (the original computation took {rep.original_seconds:.2f} s)"
+                     if rep.original_seconds else "")
             print(f"{path}: {verdict} -- {rep.label}: {sum(c.ok for c in rep.checks)}/"
                   f"{len(rep.checks)} checks passed in {rep.seconds:.2f} s{ratio}")
             for c in rep.checks:
@@ -166,7 +167,8 @@ def run_check(args) -> int:
 
 
 def check_claims_file(path: str, out_dir: str, start_digits: int, max_digits: int,
-                      certificates: bool, title: str | None = None, quiet: bool = False):
+                      certificates: bool, title: str | None = None, quiet: bool = False,
+                      display: str | None = None):
     """Check every claim of ``path``; write the report (and certificates) into ``out_dir``.
 
     Returns (verdicts, {"report": path, "json": path, "certificates": [...]}).
@@ -178,7 +180,7 @@ def check_claims_file(path: str, out_dir: str, start_digits: int, max_digits: in
     from ..render.report import claims_report_dict, claims_report_markdown
     from ..spectrum.spectrum import SpectrumStore
 
-    claims, errors = read_claims(path)
+    claims, errors = read_claims(path, display)
     if errors:
         raise BadInput("\n".join(errors))
     store = SpectrumStore()
@@ -195,9 +197,10 @@ def check_claims_file(path: str, out_dir: str, start_digits: int, max_digits: in
             cert_paths[i] = os.path.basename(p["json"])
     stem = os.path.splitext(os.path.basename(path))[0]
     report = os.path.join(out_dir, f"{stem}-report.md")
-    write_atomic(report, claims_report_markdown(title or stem, path, verdicts, max_digits, cert_paths))
+    write_atomic(report, claims_report_markdown(title or stem, display or path, verdicts, max_digits,
+                                                cert_paths))
     rj = os.path.join(out_dir, f"{stem}-report.json")
-    write_atomic(rj, json.dumps(claims_report_dict(path, verdicts, cert_paths), indent=1) + "\n")
+    write_atomic(rj, json.dumps(claims_report_dict(display or path, verdicts, cert_paths), indent=1) + "\n")
     return verdicts, {"report": report, "json": rj,
                       "certificates": [os.path.join(out_dir, p) for p in cert_paths.values()]}
 
