@@ -51,7 +51,7 @@ class _NearOne:
     (Cauchy's estimate |c_k| <= M / R^k).
     """
 
-    R = Fraction(1, 2)
+    R = Fraction(1)
     K = 40
 
     def __init__(self, chi):
@@ -60,7 +60,7 @@ class _NearOne:
         from ..arith import series_cap
 
         R = _q(self.R)
-        m = 16
+        m = 24
         chord = 2 * R * (arb.pi() / m).sin()
         M = arb(0)
         for j in range(m):
