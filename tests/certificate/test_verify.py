@@ -99,3 +99,23 @@ def test_fails_with_a_relation_search_ordinate_changed(data):
     o = ev["data"]["ordinates"][1]
     o["mid"] = _bump_digit(o["mid"], 20)
     assert not _verify(data).ok
+
+
+@pytest.mark.slow
+def test_verify_passes_on_every_race_to_modulus_12():
+    """Every two-way and residue race for q <= 12: the certificate verifies (6 digits)."""
+    import math
+
+    from certify.certificate.build import certify_with_certificate
+    from certify.race.question import residue_race, two_way
+    from certify.spectrum.spectrum import SpectrumStore
+
+    store = SpectrumStore()
+    for q in range(3, 13):
+        classes = [a for a in range(1, q) if math.gcd(a, q) == 1]
+        races = [two_way(q, a, b) for a in classes for b in classes if a < b]
+        races.append(residue_race(q))
+        for race in races:
+            cert = certify_with_certificate(race, 6, store=store)[1]
+            rep = verify_certificate(Certificate.from_dict(cert.to_dict()))
+            assert rep.ok, (race.label, [(c.name, c.detail) for c in rep.failures])
