@@ -121,18 +121,22 @@ def arb_to_fraction(x: arb) -> Fraction:
     return _exact_to_fraction(x.mid())
 
 
+def _radius_fraction(x: arb) -> Fraction:
+    return _exact_to_fraction(arb(x.rad()))
+
+
 def lower_fraction(x: arb) -> Fraction:
-    """The exact lower endpoint of ``x``."""
+    """The exact lower endpoint mid - rad of ``x`` (independent of the working precision)."""
     if not x.is_finite():
         raise ValueError("ball is not finite")
-    return _exact_to_fraction(x.lower())
+    return _exact_to_fraction(x.mid()) - _radius_fraction(x)
 
 
 def upper_fraction(x: arb) -> Fraction:
-    """The exact upper endpoint of ``x``."""
+    """The exact upper endpoint mid + rad of ``x`` (independent of the working precision)."""
     if not x.is_finite():
         raise ValueError("ball is not finite")
-    return _exact_to_fraction(x.upper())
+    return _exact_to_fraction(x.mid()) + _radius_fraction(x)
 
 
 def _fraction_decimal(v: Fraction, digits: int, up: bool) -> str:

@@ -51,6 +51,7 @@ class GroupReport:
     residual: tuple  # R_k
     central_values: tuple  # acb L(1/2, chi*) per primitive key
     notes: tuple
+    zero_owners: tuple = ()  # for each zero, the index in primitive_keys of its L-function
 
 
 @dataclass(frozen=True)
@@ -344,8 +345,9 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
                 while True:
                     sps = [store.get(c, n, g.parity, height, width, moments, bits, fraction)
                            for (c, n) in g.primitive_keys]
-                    zs = sorted((z for sp in sps for z in sp.zeros.zeros),
-                                key=lambda z: float(z.mid()))
+                    owned = sorted(((z, i) for i, sp in enumerate(sps) for z in sp.zeros.zeros),
+                                   key=lambda zi: float(zi[0].mid()))
+                    zs = [z for z, _ in owned]
                     T = min(sp.height for sp in sps)
                     for sp in sps:
                         # T_k = S_k/2 for a real character needs no zero at s = 1/2
@@ -368,7 +370,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
                         fraction /= 4
                 reports.append(GroupReport(g.label, g.primitive_keys, g.scale, T, tuple(zs),
                                            tuple(target_sums), tuple(R),
-                                           tuple(sp.central for sp in sps), tuple(notes)))
+                                           tuple(sp.central for sp in sps), tuple(notes),
+                                           tuple(i for _, i in owned)))
                 for z in zs:
                     weights.append(g.scale / (arb(1) / 4 + z * z).sqrt())
                 residuals.append(ResidualGroup(g.scale, tuple(R), g.label))

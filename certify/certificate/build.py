@@ -118,16 +118,11 @@ def _spectrum_record(result: RaceResult, store: SpectrumStore) -> dict:
     groups = []
     for g in result.groups:
         keys = list(g.primitive_keys)
-        # attribute each zero to its L-function by identity with the store's lists
-        owner = {}
-        for i, key in enumerate(keys):
-            for z in store.spectra[key].zeros.zeros:
-                owner[id(z)] = i
+        # each zero's L-function, as the driver recorded it (older results: by a sign change)
+        owners = list(g.zero_owners) if len(g.zero_owners) == len(g.zeros) else None
         zeros = []
-        for z in g.zeros:
-            li = owner.get(id(z))
-            if li is None:  # the store was refined after this round: attribute by a sign change
-                li = _owner_by_sign_change(z, keys)
+        for j, z in enumerate(g.zeros):
+            li = owners[j] if owners is not None else _owner_by_sign_change(z, keys)
             zeros.append({"l": li, **ball_record(z)})
         sp0 = store.spectra[keys[0]]
         ls = []
