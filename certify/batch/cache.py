@@ -419,6 +419,13 @@ class CachedStore(SpectrumStore):
         if spectrum_satisfies(sp, height, width, moments, moment_bits, fraction):
             self.hits += 1
             return truncated(sp, height)
+        if sp is not None:
+            # extend to a spectrum that covers the old one in every respect (never a
+            # coarser width), so the stored extension replaces it instead of sitting
+            # beside it and the next race asking either finds one entry holding both
+            width = min(width, sp.zeros.width)
+            moments = max(moments, len(sp.power_sums))
+            moment_bits = max(moment_bits, sp.power_sum_bits)
         full = super().get(conductor, label, parity, height, width, moments, moment_bits,
                            *extra, **kw)
         self.computed.append(key)

@@ -219,8 +219,9 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                     for ns in res["new_spectra"]:
                         from .serial import decode
 
-                        cache.save_blob(decode(ns["blob"], ns["digest"]), ns["blob"], ns["digest"])
-                        summary["spectra"]["extended_by_races"] += 1
+                        if cache.save_blob(decode(ns["blob"], ns["digest"]), ns["blob"],
+                                           ns["digest"]) is not None:
+                            summary["spectra"]["extended_by_races"] += 1
                     write_atomic(result_path(out, it), json.dumps(res["result"], indent=1) + "\n")
                     done[it.slug] = res["result"]
                     pq = per_q[it.modulus]
