@@ -137,10 +137,13 @@ def spectrum_task(req: dict, start: tuple | None = None) -> dict:
 def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -> list[dict]:
     """Certify each (slug, question) of ``items`` from the shipped ``spectra``.
 
-    ``spectra`` maps "conductor.label" to (blob, digest).  Each race gets its
-    own view of them, so one race extending a spectrum cannot change another's
-    enclosure.  Spectra a race had to extend come back encoded in
-    ``new_spectra`` for the coordinator to store.
+    ``spectra`` maps "conductor.label" to (blob, digest).  Each race sees them
+    truncated to the heights it asks for.  A spectrum a race had to extend (a
+    refinement round going past the plan) is kept for the following races of
+    the task, so it is extended once per task, not once per race; the
+    extensions come back encoded in the last entry's ``new_spectra`` for the
+    coordinator to store.  The order of races in a task is fixed by the plan,
+    so the enclosures do not depend on the executor.
     """
     from ..races import certify_race
     from .cache import CachedStore
@@ -153,6 +156,7 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             base[(c, n)] = _spectrum_of(blob, digest)
             digests[key] = digest
         out = []
+        extended = {}
         for slug, question in items:
             store = CachedStore(backend=None, spectra=base)
             t0 = time.perf_counter()
@@ -161,25 +165,25 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
                     r = certify_race(question, digits, store=store, command_line=command_line)
             except CertifyError as exc:
                 out.append({"slug": slug, "ok": False, "error": str(exc),
-                            "error_kind": type(exc).__name__,
+                            "error_kind": type(exc).__name__, "new_spectra": [],
                             "seconds": time.perf_counter() - t0})
                 continue
             except MemoryError:
                 out.append({"slug": slug, "ok": False, "error_kind": "MemoryError",
+                            "new_spectra": [],
                             "error": "not certified: the race engine ran out of memory",
                             "seconds": time.perf_counter() - t0})
                 continue
             except Exception as exc:  # one race's failure must not end the batch
                 out.append({"slug": slug, "ok": False, "error_kind": type(exc).__name__,
+                            "new_spectra": [],
                             "error": f"not certified: engine error {type(exc).__name__}: {exc}",
                             "seconds": time.perf_counter() - t0})
                 continue
             d = r.to_dict()
             used = sorted({f"{c}.{n}" for g in r.groups for (c, n) in g.primitive_keys})
-            new = []
             for key in dict.fromkeys(store.computed):
-                blob, digest = encode(store.spectra[key])
-                new.append({"key": list(key), "blob": blob, "digest": digest})
+                base[key] = extended[key] = store.spectra[key]
             d["batch"] = {
                 "slug": slug,
                 "spectra": {k: digests.get(k, "computed in this task") for k in used},
@@ -187,7 +191,11 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             }
             out.append({"slug": slug, "ok": True, "result": d, "target_met": r.target_met,
                         "timings": dict(r.timings), "seconds": time.perf_counter() - t0,
-                        "z_calls": store.z_calls, "new_spectra": new})
+                        "z_calls": store.z_calls, "new_spectra": []})
+        if out:
+            for key, sp in extended.items():
+                blob, digest = encode(sp)
+                out[-1]["new_spectra"].append({"key": list(key), "blob": blob, "digest": digest})
         return out
 
 

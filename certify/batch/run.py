@@ -211,17 +211,17 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                                for it in chunks[i]]
                 for res in results:
                     it = next(x for x in chunks[i] if x.slug == res["slug"])
-                    if not res["ok"]:
-                        summary["failures"].append({"race": it.question.label, "slug": it.slug,
-                                                    "error": res["error"]})
-                        prog.advance(1)
-                        continue
-                    for ns in res["new_spectra"]:
+                    for ns in res.get("new_spectra", []):
                         from .serial import decode
 
                         if cache.save_blob(decode(ns["blob"], ns["digest"]), ns["blob"],
                                            ns["digest"]) is not None:
                             summary["spectra"]["extended_by_races"] += 1
+                    if not res["ok"]:
+                        summary["failures"].append({"race": it.question.label, "slug": it.slug,
+                                                    "error": res["error"]})
+                        prog.advance(1)
+                        continue
                     write_atomic(result_path(out, it), json.dumps(res["result"], indent=1) + "\n")
                     done[it.slug] = res["result"]
                     pq = per_q[it.modulus]
