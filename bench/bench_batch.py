@@ -85,9 +85,12 @@ def main() -> int:
         dens = sum(d["density_s"] for d in pm)
         rsp = sum(d["race_spectra_s"] for d in pm)
         tot = sum(d["total_s"] for d in pm)
+        zr = sum(d["z_calls_in_races"] for d in pm)
         print(f"{name} races (CPU seconds summed over workers): density sums {dens:.1f} s, "
-              f"spectra views and residual checks {rsp:.1f} s, rest (planning, results) "
-              f"{tot - dens - rsp:.1f} s, total {tot:.1f} s")
+              f"spectra in races {rsp:.1f} s (views, residual checks, and zeros/moments past "
+              f"the plan: {zr} Hardy Z evaluations, {s['spectra']['extended_by_races']} "
+              f"extensions stored), rest (planning, results) {tot - dens - rsp:.1f} s, "
+              f"total {tot:.1f} s")
     print("\ncost per modulus (warm races; cold spectra of the characters of conductor q):")
     print(f"{'q':>3} {'phi':>4} {'races':>6} {'race s':>8} {'ms/race':>8} {'s/phi^2':>8} "
           f"{'spectra s':>9} {'chars':>5} {'s/char':>7} {'zeros':>6}")
