@@ -21,7 +21,6 @@ import hashlib
 import itertools
 import math
 from dataclasses import dataclass
-from fractions import Fraction
 
 from ..arith import arb, workprec
 from ..errors import BadInput

@@ -33,6 +33,7 @@ from ..source.dirichlet import reduced_residues
 from .cache import SOFTWARE_VERSION, CachedStore, SpectrumCache
 from .execute import Progress, make_executor, race_task, run_all, spectrum_task
 from .plan import RaceItem, races_for, spectrum_requests
+from .serial import decode
 
 CHUNK = 6
 
@@ -171,8 +172,6 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                         f"not certified: the spectrum of chi_{{{r.conductor},{r.label}}} could "
                         f"not be computed ({type(res).__name__}: {res})")
                 sp_seconds = sum(res["timings"].values())
-                from .serial import decode
-
                 sp = decode(res["blob"], res["digest"])
                 cache.save_blob(sp, res["blob"], res["digest"], sp_seconds)
                 got = cache.load_blob(r.key, r.height, r.width, r.moments, r.bits)
@@ -212,8 +211,6 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                 for res in results:
                     it = next(x for x in chunks[i] if x.slug == res["slug"])
                     for ns in res.get("new_spectra", []):
-                        from .serial import decode
-
                         if cache.save_blob(decode(ns["blob"], ns["digest"]), ns["blob"],
                                            ns["digest"]) is not None:
                             summary["spectra"]["extended_by_races"] += 1
