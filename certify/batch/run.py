@@ -20,7 +20,6 @@ is missing.
 from __future__ import annotations
 
 import json
-import math
 import os
 import time
 from collections import defaultdict
@@ -253,17 +252,3 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
     summary["missing"] = sum(1 for _, d in ordered if d is None)
     write_atomic(os.path.join(out, "batch.json"), json.dumps(summary, indent=1) + "\n")
     return summary
-
-
-def cost_table(summary: dict) -> list[dict]:
-    """Per modulus: races, phi(q), time in races, and the spectra of the conductors dividing q."""
-    rows = []
-    pc = summary.get("per_conductor", {})
-    for qs, d in summary.get("per_modulus", {}).items():
-        q = int(qs)
-        own = pc.get(str(q), {})
-        rows.append({**d, "own_spectra_s": round(own.get("zeros_s", 0) + own.get("moments_s", 0)
-                                                 + own.get("central_s", 0), 3),
-                     "per_race_ms": round(1000 * d["total_s"] / d["races"], 1) if d["races"] else 0.0,
-                     "phi_log": math.log(max(d["phi"], 2))})
-    return rows
