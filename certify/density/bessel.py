@@ -124,6 +124,15 @@ def _residual_log_factor(group: ResidualGroup, xi: arb, need: float, j01_lo: arb
     return total, arb(tail.upper())
 
 
+def _clamp_unit(x: arb) -> arb:
+    """The intersection of the ball x with [0, 1] (as a ball); x must meet [0, 1]."""
+    lo = x.lower() if x.lower() > 0 else arb(0)
+    hi = x.upper() if x.upper() < 1 else arb(1)
+    if not (lo <= hi):
+        raise PrecisionExhausted("not certified: a residual factor left [0, 1]")
+    return arb(lo).union(arb(hi))
+
+
 def density_enclosure(var: BesselVariable, target_width: float, prec: int | None = None,
                       max_terms: int = 200000) -> DensityEnclosure:
     """An enclosure of P(X > 0) for X = mu + sum_j w_j cos Theta_j (+ residual groups).
@@ -224,10 +233,13 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
                     log_res += ell
                     tail_sum += tl
                 k_used = max(k_used, len(var.residuals[0].power_sums) if var.residuals else 0)
-                factor = log_res.exp()
+                # e^l with l = -sum (sigma_k/k) x^(2k) R_k <= 0 (every R_k >= 0), so e^l lies in
+                # [0, 1]; intersecting keeps a wide ball of l from inflating the enclosure
+                factor = _clamp_unit(log_res.exp())
                 phi = P * factor
-                # the tail moves log_res by at most tail_sum: |e^{l+t} - e^l| <= e^l (e^{|t|} - 1)
-                ray = abs(coef) * absP * arb(factor.upper()) * tail_sum.exp().__sub__(1)
+                # the true factor is e^(l - t) with 0 <= t <= tail_sum, and
+                # |e^(l-t) - e^l| = e^l (1 - e^-t) <= e^l (1 - e^-tail_sum) <= e^l
+                ray = abs(coef) * absP * arb(factor.upper()) * (1 - (-tail_sum).exp())
                 ray = arb(ray.upper())
             except ResidualTooLarge:
                 # fall back on |prod_res J_0| <= 1: Phi_0 in P * [-1, 1]
