@@ -45,14 +45,36 @@ def _two_cosines(mu, w1, w2):
     return val
 
 
-def test_two_cosines_against_quadrature():
-    mu, w1, w2 = mpmath.mpf("0.7"), mpmath.mpf("1.3"), mpmath.mpf("0.9")
-    ref = _two_cosines(mu, w1, w2)
+@pytest.mark.parametrize("mu,w1,w2", [("0.7", "1.3", "0.9"), ("-0.2", "0.5", "2.1")])
+def test_two_cosines_against_quadrature(mu, w1, w2):
+    ref = _two_cosines(mpmath.mpf(mu), mpmath.mpf(w1), mpmath.mpf(w2))
     with workprec(80):
-        var = BesselVariable(arb("0.7"), (arb("1.3"), arb("0.9")))
-        d = density_enclosure(var, 1e-4)
+        var = BesselVariable(arb(mu), (arb(w1), arb(w2)))
+        d = density_enclosure(var, 1e-12)
     assert d.enclosure.contains(Fraction(str(ref)))
-    assert d.enclosure.width <= Fraction(1, 10**4)
+    assert d.enclosure.width <= Fraction(1, 10**12)
+
+
+def test_three_cosines_fourier_path_against_two_cosine_limit():
+    """Three weights use the Fourier series; a tiny third weight must reproduce the two-weight value."""
+    ref = _two_cosines(mpmath.mpf("0.7"), mpmath.mpf("1.3"), mpmath.mpf("0.9"))
+    with workprec(80):
+        d = density_enclosure(BesselVariable(arb("0.7"), (arb("1.3"), arb("0.9"), arb("1e-9"))), 1e-3)
+    # |P(X3 > 0) - P(X2 > 0)| <= P(|X2| < 1e-9), far below the tolerance used here
+    assert abs(d.enclosure.mid - Fraction(str(ref))) < Fraction(1, 10**3)
+    assert d.enclosure.width <= Fraction(1, 10**3)
+
+
+def test_one_cosine_closed_form():
+    with workprec(80):
+        d = density_enclosure(BesselVariable(arb("0.3"), (arb("1.1"),)), 1e-15)
+    mpmath.mp.dps = 40
+    ref = mpmath.acos(mpmath.mpf("-0.3") / mpmath.mpf("1.1")) / mpmath.pi
+    ref_lo, ref_hi = Fraction(str(ref)) - Fraction(1, 10**35), Fraction(str(ref)) + Fraction(1, 10**35)
+    mpmath.mp.dps = 15
+    # the arb inputs 0.3 and 1.1 are 80-bit approximations: compare to within 1e-20
+    assert d.enclosure.lower - Fraction(1, 10**20) <= ref_lo and ref_hi <= d.enclosure.upper + Fraction(1, 10**20)
+    assert d.enclosure.width <= Fraction(1, 10**15)
 
 
 def test_residual_group_agrees_with_direct_weights():
