@@ -187,8 +187,11 @@ def _single_cosine(mu: arb, w: arb) -> Enclosure:
 
 
 def _width_floor(k: int, target: float) -> float:
-    """The characteristic function decays like xi^(-k/2): few weights need a wider target."""
-    floor = {1: 0.0, 2: 1e-4, 3: 1e-6}.get(k, 0.0)
+    """The characteristic function decays like xi^(-k/2): three weights need a wider target.
+
+    One and two weights are handled by closed form / rigorous quadrature in the engine.
+    """
+    floor = {3: 1e-6}.get(k, 0.0)
     return max(target, floor)
 
 
