@@ -282,6 +282,26 @@ class SpectrumCache:
         blob, digest = encode(sp)
         return self.save_blob(sp, blob, digest, seconds)
 
+    def save_merged(self, sp: PrimitiveSpectrum, blob: bytes | None = None,
+                    digest: str | None = None) -> int | None:
+        """Store ``sp``, merged with the stored entry it does not cover when possible.
+
+        Keeps one entry per character where the data allow (see :func:`merged`).
+        """
+        if blob is None:
+            blob, digest = encode(sp)
+        for e in self.entries(sp.key):
+            if e.id in self.damaged:
+                continue
+            other = self.load_entry(e.id)
+            if other is None:
+                continue
+            m = merged(sp, other)
+            if m is not None and m is not sp:
+                sp = m
+                blob, digest = encode(sp)
+        return self.save_blob(sp, blob, digest)
+
     def save_blob(self, sp: PrimitiveSpectrum, blob: bytes, digest: str,
                   seconds: float = 0.0) -> int | None:
         conn = self.connection()
@@ -362,6 +382,36 @@ class SpectrumCache:
         if n:
             conn.execute("VACUUM")
         return n
+
+
+def merged(a: PrimitiveSpectrum, b: PrimitiveSpectrum) -> PrimitiveSpectrum | None:
+    """One spectrum holding the best of two of the same character, or None if neither part dominates.
+
+    Zeros and power sums are independent certified data, so the zeros of one
+    (taller and at least as fine, on a grid at least as fine) may go with the
+    power sums of the other (more of them, at least as accurate).  Two races
+    that extended the same stored spectrum in different directions (one
+    taller, one with more moments) are thus stored as one entry that serves
+    both.
+    """
+    if a.key != b.key:
+        return None
+    za, zb = a.zeros, b.zeros
+
+    def covers(x, y):
+        return x.height >= y.height and x.width <= y.width and x.grid_fraction <= y.grid_fraction
+
+    zeros = za if covers(za, zb) else zb if covers(zb, za) else None
+    if len(a.power_sums) >= len(b.power_sums) and a.power_sum_bits >= b.power_sum_bits:
+        sums = a
+    elif len(b.power_sums) >= len(a.power_sums) and b.power_sum_bits >= a.power_sum_bits:
+        sums = b
+    else:
+        sums = None
+    if zeros is None or sums is None:
+        return None
+    return PrimitiveSpectrum(a.conductor, a.label, a.parity, zeros, sums.power_sums,
+                             sums.power_sum_bits, a.central)
 
 
 def truncated(sp: PrimitiveSpectrum, height: float) -> PrimitiveSpectrum:

@@ -9,10 +9,10 @@ characters mod q with W(chi) != 0; chi mod q* serves every multiple of q*.
 The plan asks, for each primitive character, the largest height, the finest
 zero width and the most (and most accurate) power sums that any race of the
 batch will request in the driver's first round, so each spectrum is computed
-once, before the races run (:func:`spectrum_requests`).  The requests mirror
-the driver's own plan (:func:`certify.races.certify_race`); if the driver asks
-for more (a refinement round), the spectrum is extended where it is needed
-and stored again: the plan only saves work, it certifies nothing.
+once, before the races run (:func:`spectrum_requests`).  The requests are the
+driver's own first-round plan (:func:`certify.races.plan_race`); if the driver
+asks for more (a refinement round), the spectrum is extended where it is
+needed and stored again: the plan only saves work, it certifies nothing.
 """
 
 from __future__ import annotations
@@ -22,9 +22,9 @@ import itertools
 import math
 from dataclasses import dataclass
 
-from ..arith import arb, workprec
+from ..arith import workprec
 from ..errors import BadInput
-from ..race.question import RaceQuestion, mean_of, residue_race, spectral_groups, two_way, weighted
+from ..race.question import RaceQuestion, residue_race, spectral_groups, two_way, weighted
 from ..source.dirichlet import check_modulus, reduced_residues
 
 
@@ -175,45 +175,21 @@ class Request:
                 + 0.02 * self.moments * self.bits)
 
 
-def _driver_plan():
-    from .. import races
-
-    return races.J01, getattr(races, "MIN_HEIGHT", 8.0), races.plan_frequency_range
-
-
 def first_round_requests(question: RaceQuestion, digits: int, store) -> list[tuple]:
     """The (conductor, label, parity, height, width, moments, bits) the driver asks first.
 
-    Mirrors the first round of :func:`certify.races.certify_race` (its
-    constants and its public ``plan_frequency_range``); ``store`` supplies the
-    first power sums (cheap), used for the exact variance.  If the driver's
-    plan drifts from this mirror nothing goes wrong: races then extend the
-    spectra they need (counted as ``extended_by_races`` in the batch summary).
+    Taken from the driver's own public plan (:func:`certify.races.plan_race`),
+    so the batch computes exactly what the races will ask in their first round;
+    ``store`` supplies the first power sums (cheap), used for the exact variance.
+    If a race needs more (a refinement round), it extends the spectra itself
+    (counted as ``extended_by_races`` in the batch summary).
     """
-    J01, min_height, plan_frequency_range = _driver_plan()
-    tau = 10.0 ** (-digits)
-    prec = max(80, int(digits * 3.33) + 48)
-    mu = mean_of(question)
-    moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
-    with workprec(prec):
+    from ..races import plan_race
+
+    plan = plan_race(question, digits, store)
+    with workprec(plan.prec):
         groups = spectral_groups(question)
-        V = arb(0)
-        for g in groups:
-            c, n = g.primitive_keys[0]
-            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
-            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
-            V += g.scale * g.scale * T1 / 2
-    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu), tau)
-    width = min(1e-6, tau / (50 * (1 + xi_max)))
-    out = []
-    for g in groups:
-        s = float(g.scale.mid())
-        height = max(min_height, 2.6 * s * xi_max / J01)
-        grow = max(2.0, 2 * s * xi_max / J01)
-        bits = int(digits * 3.33 + 2 * moments * math.log2(grow) + 40)
-        for (c, n) in g.primitive_keys:
-            out.append((c, n, g.parity, height, width, moments, bits))
-    return out
+    return [tuple(r) for r in plan.spectrum_requests(groups)]
 
 
 def spectrum_requests(items: list[RaceItem], digits: int, store=None) -> dict:

@@ -210,8 +210,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                 for res in results:
                     it = next(x for x in chunks[i] if x.slug == res["slug"])
                     for ns in res.get("new_spectra", []):
-                        if cache.save_blob(decode(ns["blob"], ns["digest"]), ns["blob"],
-                                           ns["digest"]) is not None:
+                        if cache.save_merged(decode(ns["blob"], ns["digest"]), ns["blob"],
+                                             ns["digest"]) is not None:
                             summary["spectra"]["extended_by_races"] += 1
                     if not res["ok"]:
                         summary["failures"].append({"race": it.question.label, "slug": it.slug,

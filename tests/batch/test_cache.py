@@ -188,3 +188,24 @@ def test_cached_store_reuses_a_taller_spectrum(tmp_path):
     assert r.density.digits().startswith("0.9959")
     assert max(g.height for g in r.groups) < 120.0
     cache.close()
+
+
+def test_extensions_in_two_directions_are_merged(tmp_path):
+    """A taller spectrum and one with more moments become one entry serving both."""
+    from certify.batch.cache import merged
+
+    tall = SpectrumStore().get(5, 2, 1, 30.0, 1e-12, 6, 120)
+    rich = SpectrumStore().get(5, 2, 1, 10.0, 1e-12, 12, 200)
+    m = merged(tall, rich)
+    assert m.height == tall.height and m.zeros is tall.zeros
+    assert m.power_sums is rich.power_sums and m.power_sum_bits == 200
+    assert merged(tall, SpectrumStore().get(5, 3, 1, 10.0, 1e-12, 12, 200)) is None
+    finer = SpectrumStore().get(5, 2, 1, 10.0, 1e-14, 6, 120)
+    assert merged(tall, finer) is None  # neither zero list covers the other
+    cache = SpectrumCache(str(tmp_path / "c.sqlite"))
+    cache.save_merged(tall)
+    cache.save_merged(rich)
+    rows = cache.entries()
+    assert len(rows) == 1 and rows[0].height == 30.0 and rows[0].moments == 12
+    assert rows[0].moment_bits == 200
+    cache.close()

@@ -25,5 +25,7 @@ def test_every_race_up_to_30_meets_the_target(tmp_path):
             b = json.load(open(os.path.join(d.replace(os.sep + "cold" + os.sep,
                                                       os.sep + "warm" + os.sep), f)))["density"]
             assert Fraction(a["upper"]) - Fraction(a["lower"]) <= Fraction(1, 10**8)
-            # the same cached spectra give the same enclosures
-            assert (a["lower"], a["upper"]) == (b["lower"], b["upper"])
+            # two certified enclosures of one number must intersect (they coincide unless
+            # the race had to extend a spectrum in the cold run)
+            assert Fraction(a["lower"]) <= Fraction(b["upper"])
+            assert Fraction(b["lower"]) <= Fraction(a["upper"])
