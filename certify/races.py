@@ -397,7 +397,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         worst = max(b, key=b.get)
         last_reason = f"largest error term: {worst} ({b[worst]:.2e})"
         if worst == "residual zeros" or dens.parameters.get("fallback_frequencies", 0):
-            plan.xi_max = max(plan.xi_max, dens.parameters["xi_max"])
+            # grow towards the frequency range the engine needed, at most doubling per round
+            plan.xi_max = max(plan.xi_max, min(dens.parameters["xi_max"], 2 * plan.xi_max))
             plan.height_factor *= 1.5
             plan.moments = min(80, plan.moments + 6)
         if worst == "rounding and zero enclosures" or b["rounding and zero enclosures"] > tau / 8:
