@@ -12,16 +12,16 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
 
 from . import __version__
-from .arith import acb, arb, flint_version, workprec
-from .density.bessel import BesselVariable, ResidualGroup, density_enclosure, truncation_bound
+from .arith import arb, flint_version, workprec
+from .density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.question import RaceQuestion, mean_of, spectral_groups
-from .result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
+from .result import CAUTION, Enclosure, Hypothesis
 from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 
 J01 = 2.404825557695773
@@ -207,12 +207,6 @@ _plan_xi_max = plan_frequency_range  # former private name
 
 def _hypotheses(question, group_reports) -> tuple:
     ls = sorted({k for g in group_reports for k in g.primitive_keys})
-    heights = {}
-    for g in group_reports:
-        for k in g.primitive_keys:
-            heights[k] = g.height
-    ev_grh = [f"L(s, chi_{{{c},{n}}}): {sum(1 for g in group_reports if (c, n) in g.primitive_keys for z in g.zeros if True) and ''}"
-              for (c, n) in ls]
     ev_grh = []
     for g in group_reports:
         ev_grh.append(

@@ -24,7 +24,8 @@ from dataclasses import dataclass
 
 from ..arith import workprec
 from ..errors import BadInput
-from ..race.question import RaceQuestion, residue_race, spectral_groups, two_way, weighted
+from ..race.question import (RaceQuestion, parse_weight_items, residue_race, spectral_groups,
+                             two_way, weighted)
 from ..source.dirichlet import check_modulus, reduced_residues
 
 
@@ -96,17 +97,7 @@ def parse_race(text: str) -> RaceQuestion:
         return residue_race(q)
     parts = [p for p in rest.split(",") if p]
     if parts and all("=" in p for p in parts):
-        w = {}
-        for p in parts:
-            a, v = p.split("=", 1)
-            try:
-                a = int(a)
-            except ValueError:
-                raise BadInput(f"race {text!r}: class {a!r} is not an integer") from None
-            if a in w:
-                raise BadInput(f"race {text!r}: class {a} given twice")
-            w[a] = v
-        return weighted(q, w)
+        return weighted(q, parse_weight_items(parts, "=", f"race {text!r}"))
     if len(parts) == 2 and not any("=" in p for p in parts):
         try:
             a, b = int(parts[0]), int(parts[1])

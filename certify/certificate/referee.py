@@ -29,7 +29,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 
 from ..errors import BadInput, PrecisionExhausted
-from ..race.question import RaceQuestion, residue_race, two_way, weighted
+from ..race.question import RaceQuestion, parse_weight_items, residue_race, two_way, weighted
 from ..races import MAX_DIGITS, RaceResult, certify_race
 from ..spectrum.spectrum import SpectrumStore
 from .numbers import interval_str, sci
@@ -157,18 +157,7 @@ def parse_race(text: str) -> RaceQuestion:
         return residue_race(int(m.group(1)))
     m = re.fullmatch(r"weighted\((\d+);(.+)\)", t)
     if m:
-        weights = {}
-        for item in m.group(2).split(","):
-            if ":" not in item:
-                raise BadInput(f"weight {item!r} is not CLASS:WEIGHT")
-            a, w = item.split(":", 1)
-            try:
-                a = int(a)
-            except ValueError:
-                raise BadInput(f"class {a!r} is not an integer") from None
-            if a in weights:
-                raise BadInput(f"class {a} is given twice")
-            weights[a] = w
+        weights = parse_weight_items(m.group(2).split(","), ":")
         return weighted(int(m.group(1)), weights)
     raise BadInput(f"race {text.strip()!r} is not delta(q;a,b), delta(q;N,R) or "
                    "weighted(q; a:w, b:w, ...)")

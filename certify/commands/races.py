@@ -7,7 +7,7 @@ import shlex
 import sys
 
 from ..errors import BadInput
-from ..race.question import residue_race, two_way, weighted
+from ..race.question import parse_weight_items, residue_race, two_way, weighted
 from ..races import DEFAULT_DIGITS, MAX_DIGITS, certify_race
 
 
@@ -97,16 +97,7 @@ def run_residues(args) -> int:
 
 def parse_weights(items: list[str]) -> dict:
     """Parse CLASS:WEIGHT items (weights rational: 1, -2, 3/4)."""
-    out = {}
-    for item in items:
-        if ":" not in item:
-            raise BadInput(f"weight {item!r} is not of the form CLASS:WEIGHT (e.g. 3:1 or 1:-1/2)")
-        a, w = item.split(":", 1)
-        a = _int(a.strip(), "class")
-        if a in out:
-            raise BadInput(f"class {a} is given twice")
-        out[a] = w.strip()
-    return out
+    return parse_weight_items(items, ":")
 
 
 def run_weighted(args) -> int:

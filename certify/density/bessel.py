@@ -318,7 +318,7 @@ def _few_weights_density(var: BesselVariable, tau: float, prec: int) -> DensityE
 
         def integrand(t, analytic):
             c = -(acb(mu) + acb(w2) * t.cos()) / acb(w1)
-            re, im = c.real, c.imag
+            re = c.real
             if analytic:
                 if re.upper() < -1:
                     return acb(1)

@@ -16,7 +16,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from fractions import Fraction
 
-from flint import fmpq_poly, fmpz_poly
+from flint import fmpz_poly
 
 from ..arith import acb, arb
 from ..errors import BadInput
@@ -189,4 +189,29 @@ def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
             seen.add(conj.label)
             out.append(SpectralGroup((chi, conj), ((q_star, n_star), (q_star, pow(n_star, -1, q_star))),
                                      chi.parity, False, scale))
+    return out
+
+
+def parse_weight_items(items, sep: str = ":", context: str = "") -> dict:
+    """Parse items such as ``3:1`` or ``1:-1/2`` (CLASS, separator, rational weight).
+
+    Returns {class: weight text}; the weights are checked by :func:`weighted`.
+    Raises BadInput (one line, prefixed by ``context``) on a malformed item or a
+    class given twice.
+    """
+    pre = f"{context}: " if context else ""
+    out: dict = {}
+    for item in items:
+        item = str(item).strip()
+        if sep not in item:
+            raise BadInput(f"{pre}weight {item!r} is not of the form CLASS{sep}WEIGHT "
+                           f"(e.g. 3{sep}1 or 1{sep}-1/2)")
+        a, w = item.split(sep, 1)
+        try:
+            a = int(a.strip())
+        except ValueError:
+            raise BadInput(f"{pre}class {a.strip()!r} is not an integer") from None
+        if a in out:
+            raise BadInput(f"{pre}class {a} is given twice")
+        out[a] = w.strip()
     return out

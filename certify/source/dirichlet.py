@@ -19,7 +19,7 @@ from functools import lru_cache
 
 from flint import dirichlet_char, dirichlet_group
 
-from ..arith import acb, arb
+from ..arith import acb
 from ..errors import BadInput
 
 MAX_MODULUS = 10**6

@@ -18,7 +18,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from ..arith import acb, arb, workprec
+from ..arith import acb, arb
 from ..errors import Inconsistent
 from .moments import central_value, zero_power_sums
 from .zeros import ZeroList, find_zeros
