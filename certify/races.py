@@ -125,15 +125,8 @@ class RaceResult:
             },
             "mean": str(self.mean),
             "variance": self.variance.str(20, radius=True),
-            "hypotheses": [
-                {"name": h.name, "statement": h.statement, "status": h.status,
-                 "evidence": list(h.evidence), "reference": h.reference}
-                for h in self.hypotheses
-            ],
-            "error_budget": [
-                {"name": e.name, "bound": f"{e.bound_float:.3e}", "description": e.description}
-                for e in self.budget
-            ],
+            "hypotheses": [h.as_dict() for h in self.hypotheses],
+            "error_budget": [e.as_dict() for e in self.budget],
             "parameters": self.parameters,
             "spectrum": [
                 {"group": g.label, "primitive_characters": [f"{c}.{n}" for c, n in g.primitive_keys],

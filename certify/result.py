@@ -35,6 +35,11 @@ class Hypothesis:
     reference: str = ""
     data: dict = field(default_factory=dict, compare=False, hash=False)
 
+    def as_dict(self) -> dict:
+        """JSON form used by every result's ``to_dict``/``as_dict``."""
+        return {"name": self.name, "statement": self.statement, "status": self.status,
+                "evidence": list(self.evidence), "reference": self.reference}
+
 
 @dataclass(frozen=True)
 class ErrorTerm:
@@ -47,6 +52,10 @@ class ErrorTerm:
     @property
     def bound_float(self) -> float:
         return float(self.bound.upper())
+
+    def as_dict(self) -> dict:
+        """JSON form: the bound as a decimal string (an upper bound, 3 significant digits)."""
+        return {"name": self.name, "bound": f"{self.bound_float:.3e}", "description": self.description}
 
 
 @dataclass(frozen=True)

@@ -173,11 +173,7 @@ class FamilyResult:
             "density": {"lower": lo, "upper": hi, "of": "the mean density over the certified members"},
             "summary": self.summary(),
             "members": [m.as_dict() for m in self.members],
-            "hypotheses": [
-                {"name": h.name, "statement": h.statement, "status": h.status,
-                 "evidence": list(h.evidence), "reference": h.reference}
-                for h in self.hypotheses
-            ],
+            "hypotheses": [h.as_dict() for h in self.hypotheses],
             "error_budget": [
                 {"name": "member enclosures", "bound": f"{max((float(m.density.width) for m in self.certified), default=0.0):.3e}",
                  "description": "largest width of a member's density enclosure (each from the density engine)"}

@@ -251,15 +251,8 @@ class TraceRaceResult:
             "curve": self.curve.as_dict(),
             "l_polynomial": self.lpoly.as_dict(),
             "analytic_rank": self.lpoly.rank,
-            "hypotheses": [
-                {"name": h.name, "statement": h.statement, "status": h.status,
-                 "evidence": list(h.evidence), "reference": h.reference}
-                for h in self.hypotheses
-            ],
-            "error_budget": [
-                {"name": e.name, "bound": f"{e.bound_float:.3e}", "description": e.description}
-                for e in self.budget
-            ],
+            "hypotheses": [h.as_dict() for h in self.hypotheses],
+            "error_budget": [e.as_dict() for e in self.budget],
             "parameters": self.parameters,
             "observed": list(self.observed),
             "caution": self.caution,

@@ -43,11 +43,11 @@ from flint import acb, fmpz_poly
 
 from ..arith import arb, workprec
 from ..errors import BadInput, Inconsistent, PrecisionExhausted
-from ..result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
+from ..result import CAUTION, Enclosure, ErrorTerm, Hypothesis
 from .characters import Character, CharacterGroup, character_group
 from .counts import RaceCounter
 from .cyclo import cyclo_ring
-from .lpoly import LPolynomial, WeilReport, l_polynomial, weil_check
+from .lpoly import WeilReport, l_polynomial, weil_check
 from .poly import (
     MAX_TABLE, finite_field, parse_field_order, parse_monic, parse_poly, poly_index, poly_str,
 )
@@ -411,16 +411,19 @@ def leader_report(G: CharacterGroup, classes: list[str], groups: list[dict], bou
             led[who[0]].append(n + 1)
         else:
             leaders.append("tie")
-    first = None
+    return LeaderReport(bound, mode, tuple(leaders), _first_change(leaders), led)
+
+
+def _first_change(leaders) -> int | None:
+    """The first degree (1-based) whose leader differs from the previous non-tied leader."""
     prev = None
     for n, ld in enumerate(leaders, start=1):
         if ld == "tie":
             continue
         if prev is not None and ld != prev:
-            first = n
-            break
+            return n
         prev = ld
-    return LeaderReport(bound, mode, tuple(leaders), first, led)
+    return None
 
 
 def race_counter(G: CharacterGroup, wd: dict[int, int], question: FFRaceQuestion) -> RaceCounter:
@@ -456,15 +459,7 @@ def residue_leader_report(G: CharacterGroup, wd: dict[int, int], bound: int, mod
             leaders.append(names[1]); led[names[1]].append(n)
         else:
             leaders.append("tie")
-    first, prev = None, None
-    for n, ld in enumerate(leaders, start=1):
-        if ld == "tie":
-            continue
-        if prev is not None and ld != prev:
-            first = n
-            break
-        prev = ld
-    return LeaderReport(bound, mode, tuple(leaders), first, led)
+    return LeaderReport(bound, mode, tuple(leaders), _first_change(leaders), led)
 
 
 # ---------------------------------------------------------------- certification
@@ -506,11 +501,8 @@ class FFRaceResult:
             "density": {"lower": d.lower_str(places), "upper": d.upper_str(places),
                         "width": f"{float(d.width):.3e}", "certified_digits": d.digits(),
                         "target_width": f"{self.target_width:.0e}", "target_met": self.target_met},
-            "hypotheses": [{"name": h.name, "statement": h.statement, "status": h.status,
-                            "evidence": list(h.evidence), "reference": h.reference}
-                           for h in self.hypotheses],
-            "error_budget": [{"name": e.name, "bound": f"{e.bound_float:.3e}",
-                              "description": e.description} for e in self.budget],
+            "hypotheses": [h.as_dict() for h in self.hypotheses],
+            "error_budget": [e.as_dict() for e in self.budget],
             "parameters": self.parameters,
             "limit_function": {
                 "mu_0": self.mu0.str(20, radius=True), "mu_pi": self.mupi.str(20, radius=True),
