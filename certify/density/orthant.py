@@ -37,6 +37,10 @@ from .bessel import ResidualGroup, ResidualTooLarge, _arb_q, _clamp_unit, _resid
 from .besselj import check_j01, tail_constant
 
 
+#: zeros with x w <= EXPAND * j_{0,1} at a frequency vector go into the Rayleigh expansion
+EXPAND = 0.3
+
+
 @dataclass(frozen=True)
 class VectorGroup:
     """Zeros sharing one direction vector v in C^d.
@@ -385,12 +389,32 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
     # --- main sum over the kept half lattice
     G = len(var.groups)
     n_points = len(keep)
-    res_groups = [ResidualGroup(arb(1), tuple(g.residual), g.label) if g.residual else None
-                  for g in var.groups]
+    # Each group's isolated zeros, largest weight first.  At a frequency vector the zeros with
+    # x w > EXPAND j_{0,1} (x = 2|<xi, v>|) get J_0 evaluated; the others are folded into the
+    # Rayleigh expansion with the residual zeros: their power sums w^(2k) are added to R_k
+    # (suffix sums below).  The expansion checks its own radius (docs/method.md, 9.6).
+    sorted_w, suffix = [], []
+    for g in var.groups:
+        ws = sorted(g.weights, key=lambda w: -float(w.mid()))
+        sorted_w.append((ws, np.array([float(w.mid()) for w in ws])))
+        K_g = len(g.residual)
+        suf = [[arb(0)] * K_g for _ in range(len(ws) + 1)]
+        if K_g:
+            for j in range(len(ws) - 1, -1, -1):
+                w2 = ws[j] * ws[j]
+                p_ = w2
+                row = []
+                for kk in range(K_g):
+                    row.append(suf[j + 1][kk] + p_)
+                    p_ = p_ * w2
+                suf[j] = row
+        suffix.append(suf)
+    thr = EXPAND * float(j01_lo.lower())
     need_each = tau / 16 / max(n_points, 1)
     sums = {s: arb(0) for s in signs}
     rayleigh = arb(0)
     fallback = 0
+    bessel_calls = 0
     for k in keep:
         xi = [eps[i] * k[i] for i in range(d)]
         theta = sum((xi[i] * var.mu[i] for i in range(d)), arb(0))
@@ -401,26 +425,33 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
             mag = mag / k[i]  # carries the sign of k_i
         trig = (theta - m * pi / 2).cos()
         P = arb(1)
-        xs = []
-        for g in var.groups:
+        res_parts = []
+        for gi, g in enumerate(var.groups):
             z = acb(0)
             for i in nz:
                 z += xi[i] * g.vector[i]
-            x = 2 * abs(z)
-            xs.append(x)
-            for w in g.weights:
+            x = (2 * abs(z)).nonnegative_part()  # |z| is >= 0: a ball straddling 0 is clipped
+            ws, wf = sorted_w[gi]
+            if g.residual:
+                xf = float(x.upper())
+                n_dir = int(np.searchsorted(-wf * xf, -thr, side="left")) if xf > 0 else 0
+            else:
+                n_dir = len(ws)
+            for w in ws[:n_dir]:
                 P *= (x * w).bessel_j(0)
+            bessel_calls += n_dir
+            if g.residual:
+                R = tuple(r + e for r, e in zip(g.residual, suffix[gi][n_dir]))
+                res_parts.append((x, R, g.label))
         absP = arb(abs(P).upper())
         coef_abs = 2 * abs(mag)  # the pair k, -k
         log_res = arb(0)
         tail_sum = arb(0)
         try:
-            for gi, rg in enumerate(res_groups):
-                if rg is None:
-                    continue
+            for x, R, label in res_parts:
                 share_k = need_each / max(float((coef_abs * absP).upper()), 1e-300) / (4 * G)
-                ell, tl = _residual_log_factor(ResidualGroup(xs[gi], rg.power_sums, rg.label),
-                                               arb(1), share_k, j01_lo, Cj)
+                ell, tl = _residual_log_factor(ResidualGroup(x, R, label), arb(1), share_k,
+                                               j01_lo, Cj)
                 log_res += ell
                 tail_sum += tl
             factor = _clamp_unit(log_res.exp())
@@ -474,6 +505,7 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
             "variances": [float(v.mid()) for v in V],
             "covariance": [[float(c.mid()) for c in row] for row in cov],
             "fallback_frequencies": fallback,
+            "bessel_evaluations": bessel_calls,
             "xi_max": Xi,
         }
         out[s] = DensityEnclosure(Enclosure.from_arb(ball), budget, params, ball)
