@@ -64,7 +64,7 @@ def ordering(q, *classes) -> OrderQuestion:
     if len(classes) > MAX_CLASSES:
         raise BadInput(f"at most {MAX_CLASSES} classes are supported (got {len(classes)}); "
                        "the engine's cost grows like N^(r-1)")
-    cs = tuple(check_class(q, a, f"class {a}") for a in classes)
+    cs = tuple(check_class(q, a, "class") for a in classes)
     if len(set(cs)) != len(cs):
         raise BadInput(f"the classes must be distinct modulo {q} (got {', '.join(map(str, classes))})")
     return OrderQuestion(q, cs)
