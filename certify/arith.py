@@ -26,7 +26,7 @@ __all__ = [
     "arb", "acb", "arb_series", "acb_series", "fmpq", "fmpz",
     "workprec", "current_prec", "Verdict", "sign_verdict", "less_verdict",
     "arb_to_fraction", "lower_fraction", "upper_fraction",
-    "decimal_down", "decimal_up", "certified_digits", "ball_strings",
+    "decimal_down", "decimal_up", "certified_digits", "certified_significant", "sci", "ball_strings",
     "ball_from_strings", "flint_version", "hull", "rad_float",
 ]
 
@@ -182,6 +182,73 @@ def certified_digits(lo: Fraction, hi: Fraction, max_digits: int = 60) -> str:
         best = _fraction_decimal(Fraction(a, scale) * (1 if lo >= 0 else -1), d, up=False)
         # a truncation boundary inside the interval would change the digit
     return best
+
+
+def _floor_log10(v: Fraction) -> int:
+    """floor(log10 v) for v > 0, exactly."""
+    e = len(str(v.numerator)) - len(str(v.denominator))
+    while Fraction(10) ** e > v:
+        e -= 1
+    while Fraction(10) ** (e + 1) <= v:
+        e += 1
+    return e
+
+
+def sci(v: Fraction, sig: int = 4, up: bool = True) -> str:
+    """``v`` in scientific notation with ``sig`` significant digits, rounded up or down.
+
+    ``sci(Fraction(1, 3), 3, up=True) == "3.34e-1"``; rounding is toward
+    +infinity when ``up`` and toward -infinity otherwise, also for negatives.
+    """
+    v = Fraction(v)
+    if v == 0:
+        return "0"
+    neg = v < 0
+    a = -v if neg else v
+    e = _floor_log10(a)
+    scale = Fraction(10) ** (sig - 1 - e)
+    n = a * scale
+    # magnitude rounding: away from zero when the signed direction asks for it
+    away = up != neg
+    k = -((-n.numerator) // n.denominator) if away else n.numerator // n.denominator
+    if k >= 10**sig:  # 9.999 -> 10.00: renormalise
+        k //= 10
+        e += 1
+        if away and Fraction(k) * Fraction(10) ** (e - sig + 1) < a:
+            k += 1
+    digits = str(k)
+    body = digits[0] + ("." + digits[1:] if len(digits) > 1 else "")
+    return f"{'-' if neg else ''}{body}e{e}"
+
+
+def certified_significant(lo: Fraction, hi: Fraction, max_digits: int = 80) -> tuple[int, str]:
+    """(k, text): the k leading significant digits common to every number of [lo, hi].
+
+    For 0 < lo <= hi with the same decimal exponent, ``text`` is those digits
+    in scientific notation, truncated (each printed digit is the same for every
+    point of the interval), e.g. ``(10, "2.629967327e-7")``.  Returns (0, "")
+    if the interval contains 0, is not positive, or spans a power of ten.
+    """
+    lo, hi = Fraction(lo), Fraction(hi)
+    if lo > hi:
+        raise ValueError("empty interval")
+    if not lo > 0:
+        return 0, ""
+    e = _floor_log10(lo)
+    if _floor_log10(hi) != e:
+        return 0, ""
+    k = 0
+    lead = ""
+    for d in range(1, max_digits + 1):
+        scale = Fraction(10) ** (d - 1 - e)
+        a = (lo * scale).__floor__()
+        b = (hi * scale).__floor__()
+        if a != b:
+            break
+        k, lead = d, str(a)
+    if not k:
+        return 0, ""
+    return k, f"{lead[0]}{'.' + lead[1:] if k > 1 else ''}e{e}"
 
 
 def ball_strings(x: arb) -> tuple[str, str]:

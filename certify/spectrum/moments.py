@@ -11,8 +11,14 @@ the sum running over all non-trivial zeros with multiplicity.  Under GRH
 rho (1 - rho) = 1/4 + gamma^2, so S_m = sum_gamma (1/4 + gamma^2)^(-m) over
 all ordinates (positive and negative).
 
-The coefficients come from python-flint's power series of L(s, chi) and of
-log Gamma; the alternating sum loses about m * log2(m) bits, so the
+The Riemann zeta function is the character of conductor 1 (label 1, even):
+there Lambda is replaced by the entire function
+xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), whose zeros are exactly the
+non-trivial zeros of zeta, and the same formula holds with c_k the (real)
+coefficients of log xi(1 + x) (docs/method.md, section 2b).
+
+The coefficients come from python-flint's power series of L(s, chi) (for
+zeta: of the deflated series zeta(s) - 1/(s - 1)) and of log Gamma; the alternating sum loses about m * log2(m) bits, so the
 working precision is raised accordingly and the output radii checked.
 """
 
@@ -26,8 +32,41 @@ from ..arith import acb, arb, series_cap, workprec
 from ..errors import PrecisionExhausted
 
 
+def is_zeta(conductor: int) -> bool:
+    """Whether the primitive character of this conductor is trivial (L = zeta)."""
+    return conductor == 1
+
+
+def log_xi_coefficients(count: int, prec: int):
+    """Balls for c_1..c_count of log xi(1 + x), xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s).
+
+    With D(x) = zeta(1 + x) - 1/x (Arb's deflated zeta series),
+    (s - 1) zeta(s) = 1 + x D(x), so
+
+        log xi(1 + x) = log(1 + x D(x)) + log((1 + x)/2) - ((1 + x)/2) log pi
+                        + log Gamma((1 + x)/2).
+    """
+    with workprec(prec), series_cap(count + 1):
+        x = acb_series([acb(1), acb(1)])  # s = 1 + x
+        deflated = acb_series.zeta(x, deflate=1)
+        pole_free = acb_series([acb(1)]) + acb_series([acb(0), acb(1)]) * deflated
+        log_z = pole_free.log()
+        log_g = acb_series([acb(1) / 2, acb(1) / 2]).lgamma()
+        log_pi = arb.pi().log()
+        coeffs = []
+        for k in range(1, count + 1):
+            ck = log_z.coeffs()[k] + log_g.coeffs()[k]
+            ck += acb((-1) ** (k + 1)) / k  # log(1 + x); log(1/2) is the constant term
+            if k == 1:
+                ck -= log_pi / 2
+            coeffs.append(ck)
+        return coeffs
+
+
 def log_lambda_coefficients(conductor: int, label: int, parity: int, count: int, prec: int):
-    """Balls for c_1..c_count of log Lambda(1 + x, chi) (chi primitive)."""
+    """Balls for c_1..c_count of log Lambda(1 + x, chi) (chi primitive; log xi for zeta)."""
+    if is_zeta(conductor):
+        return log_xi_coefficients(count, prec)
     chi = dirichlet_char(conductor, label)
     with workprec(prec), series_cap(count + 1):
         x = acb_series([acb(1), acb(1)])  # s = 1 + x
@@ -79,6 +118,6 @@ def zero_power_sums(conductor: int, label: int, parity: int, count: int,
 
 
 def central_value(conductor: int, label: int, prec: int = 64) -> acb:
-    """An enclosure of L(1/2, chi)."""
+    """An enclosure of L(1/2, chi) (zeta(1/2) for conductor 1)."""
     with workprec(prec):
         return dirichlet_char(conductor, label).l(acb(1) / 2)
