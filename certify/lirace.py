@@ -25,7 +25,7 @@ import time
 from dataclasses import dataclass
 from fractions import Fraction
 
-from .arith import certified_significant, sci
+from .arith import certified_significant, sci_text as sci
 from .errors import BadInput
 from .race.question import prime_vs_li
 from .races import MAX_DIGITS, RaceResult, certify_race

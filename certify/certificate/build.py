@@ -14,7 +14,7 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import certified_digits, certified_significant, decimal_down, decimal_up, sci, workprec
+from ..arith import certified_digits, certified_significant, decimal_down, decimal_up, workprec
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
 from ..races import DEFAULT_DIGITS, PUBLISHED_RH, RaceResult, certify_race

@@ -4,9 +4,44 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from ..arith import arb, sci, upper_fraction
+from ..arith import arb, upper_fraction
 
-__all__ = ["sci", "sci_bound", "places_for", "interval_str", "exact_decimal"]
+
+def _floor_log10(v: Fraction) -> int:
+    """floor(log10 v) for v > 0, exactly."""
+    e = len(str(v.numerator)) - len(str(v.denominator))
+    while Fraction(10) ** e > v:
+        e -= 1
+    while Fraction(10) ** (e + 1) <= v:
+        e += 1
+    return e
+
+
+def sci(v: Fraction, sig: int = 4, up: bool = True) -> str:
+    """``v`` in scientific notation with ``sig`` significant digits, rounded up or down.
+
+    ``sci(Fraction(1, 3), 3, up=True) == "3.34e-1"``; rounding is toward
+    +infinity when ``up`` and toward -infinity otherwise, also for negatives.
+    """
+    v = Fraction(v)
+    if v == 0:
+        return "0"
+    neg = v < 0
+    a = -v if neg else v
+    e = _floor_log10(a)
+    scale = Fraction(10) ** (sig - 1 - e)
+    n = a * scale
+    # magnitude rounding: away from zero when the signed direction asks for it
+    away = up != neg
+    k = -((-n.numerator) // n.denominator) if away else n.numerator // n.denominator
+    if k >= 10**sig:  # 9.999 -> 10.00: renormalise
+        k //= 10
+        e += 1
+        if away and Fraction(k) * Fraction(10) ** (e - sig + 1) < a:
+            k += 1
+    digits = str(k)
+    body = digits[0] + ("." + digits[1:] if len(digits) > 1 else "")
+    return f"{'-' if neg else ''}{body}e{e}"
 
 
 def sci_bound(x: arb, sig: int = 3) -> str:

@@ -8,7 +8,7 @@ import numpy as np
 import pytest
 from scipy.special import j0
 
-from certify.arith import arb, certified_significant, sci, workprec
+from certify.arith import arb, certified_significant, sci_text as sci, workprec
 from certify.density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from certify.errors import BadInput
 from certify.lirace import MAX_SIG_DIGITS, certify_li_race

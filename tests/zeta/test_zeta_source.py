@@ -155,3 +155,23 @@ def test_zero_count_random_heights():
         T = Fraction((mids[i] + mids[i + 1]) / 2).limit_denominator(1000)
         n, _ = count_zeros(1, 1, 0, T)
         assert n == i + 1 == int(mpmath.nzeros(float(T)))
+
+
+def test_zeta_goes_through_the_analytic_l_interface():
+    """One code path: (conductor 1, label 1) and ZetaL() give the same zeros and power sums."""
+    from certify.spectrum.lfunction import positive_ordinate_sums, zero_power_sums_of
+    from certify.spectrum.moments import ZetaL, analytic_l
+    from certify.spectrum.zeros import find_zeros_of
+
+    L = analytic_l(1, 1)
+    assert isinstance(L, ZetaL) and L.self_dual and L.central_order == 0 and L.name == "zeta(s)"
+    a = find_zeros(1, 1, 40.0, 1e-12)
+    b = find_zeros_of(ZetaL(), 40.0, 1e-12)
+    assert len(a.zeros) == len(b.zeros) == 6 and a.z_calls == b.z_calls
+    assert all(x.overlaps(y) for x, y in zip(a.zeros, b.zeros))
+    with workprec(200):
+        S = zero_power_sums_of(ZetaL(), 4, 120)
+        T = zero_power_sums(1, 1, 0, 4, 120)
+        assert all(s.overlaps(t) for s, t in zip(S, T))
+        P = positive_ordinate_sums(ZetaL(), S)
+        assert (2 * P[0] - S[0]).contains(0)
