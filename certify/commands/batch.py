@@ -57,6 +57,10 @@ def run_table(args) -> int:
           f"{summary['races_reused']} already done) in {t['total']:.1f} s; "
           f"spectra: {sp['needed']} needed, {sp['from_cache']} from the cache, "
           f"{sp['computed']} computed")
+    rc_ = sp.get("recheck") or {}
+    if rc_.get("entries") or rc_.get("skipped"):
+        print(f"  cached spectra re-derived before use: {rc_['entries']} in {rc_['seconds']:.2f} s"
+              + (f"; {rc_['skipped']} entries failed and were recomputed" if rc_.get("skipped") else ""))
     for k, v in summary["files"].items():
         print(f"  {k:<12} {os.path.join(args.out, v)}")
     print(f"  results      {os.path.join(args.out, 'results')}/  (one JSON per race)")
