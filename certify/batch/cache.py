@@ -153,9 +153,11 @@ class SpectrumCache:
     connection per process, so it can be handed to worker processes.
     """
 
-    def __init__(self, path: str | None = None, version: str = SOFTWARE_VERSION):
+    def __init__(self, path: str | None = None, version: str = SOFTWARE_VERSION,
+                 read_only: bool = False):
         self.path = os.path.abspath(os.path.expanduser(path or default_cache_path()))
         self.version = version
+        self.read_only = read_only
         self._conn = None
         self._pid = None
         self.loads = 0
@@ -165,14 +167,17 @@ class SpectrumCache:
         self.recheck_seconds = 0.0
 
     def __getstate__(self):
-        return {"path": self.path, "version": self.version}
+        return {"path": self.path, "version": self.version, "read_only": self.read_only}
 
     def __setstate__(self, state):
-        self.__init__(state["path"], state["version"])
+        self.__init__(state["path"], state["version"], state.get("read_only", False))
 
     # -- connection ---------------------------------------------------------
     def connection(self) -> sqlite3.Connection:
         if self._conn is None or self._pid != os.getpid():
+            if self.read_only:
+                self._conn, self._pid = self._connect_read_only(), os.getpid()
+                return self._conn
             folder = os.path.dirname(self.path)
             try:
                 os.makedirs(folder, exist_ok=True)
@@ -183,10 +188,30 @@ class SpectrumCache:
                 conn.execute("PRAGMA synchronous = NORMAL" if mode == "wal" else
                              "PRAGMA synchronous = FULL")
                 self._init_schema(conn)
-            except sqlite3.DatabaseError as exc:
+            except sqlite3.Error as exc:
                 raise BadInput(f"cache {self.path}: not a usable SQLite database ({exc})") from None
             self._conn, self._pid = conn, os.getpid()
         return self._conn
+
+    def _connect_read_only(self) -> sqlite3.Connection:
+        """A connection that writes nothing (a cache on a read-only file or folder)."""
+        from urllib.parse import quote
+
+        if not os.path.isfile(self.path):
+            raise BadInput(f"no cache at {self.path}")
+        last = None
+        for flags in ("mode=ro", "mode=ro&immutable=1"):
+            try:
+                conn = sqlite3.connect(f"file:{quote(self.path)}?{flags}", uri=True,
+                                       timeout=BUSY_TIMEOUT_MS / 1000, isolation_level=None)
+                row = conn.execute("SELECT value FROM meta WHERE key='schema'").fetchone()
+                if row is None or row[0] != str(SCHEMA):
+                    raise BadInput(f"cache {self.path}: schema {row[0] if row else '(none)'} "
+                                   f"is not {SCHEMA}")
+                return conn
+            except sqlite3.DatabaseError as exc:
+                last = exc
+        raise BadInput(f"cache {self.path}: not a readable SQLite database ({last})")
 
     def _init_schema(self, conn):
         conn.execute("BEGIN IMMEDIATE")
@@ -343,6 +368,21 @@ class SpectrumCache:
 
     def save_blob(self, sp: PrimitiveSpectrum, blob: bytes, digest: str,
                   seconds: float = 0.0) -> int | None:
+        """Store one entry; a write that fails (full disk, read-only file) warns and stores nothing.
+
+        The computation goes on without the cache: the entry is simply computed
+        again next time.
+        """
+        try:
+            return self._save_blob(sp, blob, digest, seconds)
+        except sqlite3.Error as exc:
+            warnings.warn(f"cache {self.path}: could not store the spectrum of "
+                          f"chi_{{{sp.conductor},{sp.label}}} ({exc}); going on without caching it",
+                          CacheWarning, stacklevel=2)
+            return None
+
+    def _save_blob(self, sp: PrimitiveSpectrum, blob: bytes, digest: str,
+                   seconds: float = 0.0) -> int | None:
         conn = self.connection()
         h, w = float(sp.height), float(sp.zeros.width)
         k, b, f = len(sp.power_sums), int(sp.power_sum_bits), float(sp.zeros.grid_fraction)
