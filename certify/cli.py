@@ -25,6 +25,7 @@ COMMAND_MODULES = [
     "certify.commands.batch",
     "certify.ffield.commands",
     "certify.curves.commands",
+    "certify.commands.ecrace",
 ]
 
 
