@@ -26,6 +26,7 @@ COMMAND_MODULES = [
     "certify.commands.batch",
     "certify.ffield.commands",
     "certify.curves.commands",
+    "certify.commands.ecrace",
 ]
 
 
