@@ -133,6 +133,7 @@ def answer_record(result: RaceResult) -> dict:
         "target_met": bool(fhi - flo <= Fraction(1, 10**result.digits_requested)),
         "mean": str(result.mean),
         "variance": ball_record(result.variance),
+        "exact": result.exact.as_dict() if getattr(result, "exact", None) is not None else None,
     }
 
 
@@ -363,7 +364,7 @@ def certificate_from_result(result: RaceResult, store: SpectrumStore,
         spectrum=spectrum,
         provenance=prov,
         references=refs,
-        caution=CAUTION + " Re-check this file with `certify verify`.",
+        caution=(getattr(result, "caution", "") or CAUTION) + " Re-check this file with `certify verify`.",
     )
 
 

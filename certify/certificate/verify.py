@@ -190,6 +190,13 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
     mu = mean_of(question)
     report.add("answer: mean mu = -sum w_a c(q,a)", str(mu) == cert.answer["mean"],
                f"stored {cert.answer['mean']}, recomputed {mu}")
+    ex = cert.answer.get("exact")
+    if ex is not None or mu == 0:
+        # docs/method.md, section 1b: the density is exactly 1/2 iff it is shown so for mean 0
+        ok = (mu == 0 and ex is not None and ex.get("value") == "1/2"
+              and cert.lower <= Fraction(1, 2) <= cert.upper)
+        report.add("answer: exact value 1/2 exactly when the mean is 0 (symmetric law)", ok,
+                   f"stored exact {ex.get('value') if ex else None!r}, recomputed mean {mu}")
 
     # -- spectrum: zeros, moments, residuals ---------------------------------
     stored_groups = cert.spectrum["groups"]

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from ..arith import ball_from_strings
+from ..arith import ball_from_strings, decimal_down
 from ..certificate.model import Certificate, ball_of
 from ..certificate.numbers import sci
 
@@ -42,6 +42,18 @@ def tiny_gaps(cert: Certificate) -> list[dict]:
     return out
 
 
+def _digits_text(a: dict) -> str:
+    """What the answer's digits line shows: the exact value, certified decimals, or "(none)".
+
+    An integer part alone ("0" for [0.4999.., 0.5000..]) is not shown as digits.
+    """
+    ex = a.get("exact")
+    if ex:
+        return f"{ex['value']} exactly ({ex['reason']})"
+    d = a["certified_digits"]
+    return d if "." in d and d.split(".", 1)[1] else "(none)"
+
+
 def certificate_context(cert: Certificate, file_name: str = "certificate.json") -> dict:
     """Everything the templates show, as strings and lists (no computation in templates)."""
     a = cert.answer
@@ -53,7 +65,7 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
         first = [ball_from_strings(z["mid"], z["rad"]).str(15, radius=False) for z in g["zeros"][:3]]
         groups.append({
             "label": g["label"], "l_functions": ", ".join(ls), "zeros": len(g["zeros"]),
-            "height": f"{float(g['isolation_height']):.6g}", "moments": g["moments"]["count"],
+            "height": decimal_down(Fraction(g["isolation_height"]), 4), "moments": g["moments"]["count"],
             "scale": _short_ball(g["scale"], 10), "first_zeros": ", ".join(first),
         })
     hyps = []
@@ -76,7 +88,7 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
                      "weights": weights, "definition": q["definition"],
                      "normalisation": q["normalisation"]},
         "answer": {"lower": a["enclosure"]["lower"], "upper": a["enclosure"]["upper"],
-                   "width": a["width"], "digits": a["certified_digits"] or "(none)",
+                   "width": a["width"], "digits": _digits_text(a),
                    "target": a["target_width"], "target_met": a["target_met"],
                    "mean": a["mean"], "variance": _short_ball(a["variance"], 15)},
         "gaps": tiny_gaps(cert),
