@@ -1,6 +1,6 @@
 """Probability of an orthant for a vector of sums of independent planar rotations.
 
-The random vector (docs/method.md, section 9) is
+The random vector (docs/method.md, section 10) is
 
     Y = mu + sum_g sum_j 2 Re(v_g U_{g,j}) w_{g,j}    in R^d,
 
@@ -81,7 +81,7 @@ def group_mass(g: VectorGroup) -> arb:
 
 
 def covariance(var: VectorVariable) -> list[list[arb]]:
-    """Cov(Y_i, Y_j) = sum_g 2 Re(v_gi conj(v_gj)) sum_zeros w^2 (docs/method.md, 9.1)."""
+    """Cov(Y_i, Y_j) = sum_g 2 Re(v_gi conj(v_gj)) sum_zeros w^2 (docs/method.md, 10.1)."""
     d = var.dimension
     cov = [[arb(0)] * d for _ in range(d)]
     for g in var.groups:
@@ -120,7 +120,7 @@ class DirectionalTail:
 
         |Phi_0(xi)| <= prod_g prod_{j in S_g} (pi s t_{g,P} w_{g,j})^(-1/2)
 
-    for any subsets S_g (|J_0(x)| <= min(1, sqrt(2/(pi x))), docs/method.md 9.3).
+    for any subsets S_g (|J_0(x)| <= min(1, sqrt(2/(pi x))), docs/method.md 10.4).
     Floating point picks the subsets; the bound is evaluated in arb.
     """
 
@@ -256,7 +256,7 @@ def truncation_tail(tail: DirectionalTail, K: list, eps: list, shells: int = 10)
     [X_0 2^m, X_0 2^(m+1)), m < ``shells``, contribute at most beta(X_0 2^m) times
     their mass (an upper box mass minus a lower one); beyond, beta decays like
     2^(-m J/2) against masses growing like (log)^d, a geometric series
-    (docs/method.md, section 9.4).  Returns (bound, J at the last shell).
+    (docs/method.md, section 10.4).  Returns (bound, J at the last shell).
     """
     d = len(eps)
     X0 = min((arb(K[i] + 1) * eps[i] for i in range(d)), key=lambda a: float(a.mid()))
@@ -328,7 +328,7 @@ def orthant_enclosure(var: VectorVariable, target_width: float, signs=None,
 
     References
     ----------
-    docs/method.md, section 9.
+    docs/method.md, section 10.
     """
     d = var.dimension
     if d < 1:
@@ -378,7 +378,7 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
     if n_box > max_points:
         raise PrecisionExhausted(f"not certified: {n_box} frequency vectors needed (limit {max_points})")
     # --- pruning: frequency vectors whose pointwise bound |c(k)| prod |J_0| bounds is tiny
-    #     are not evaluated; their bound (in arb) is booked instead (docs/method.md, 9.5)
+    #     are not evaluated; their bound (in arb) is booked instead (docs/method.md, 10.5)
     keep, skip = _prune(pts, eps_f, var, tail, tau / 32)
     pi = arb.pi()
     half = arb(1) / 2
@@ -392,7 +392,7 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
     # Each group's isolated zeros, largest weight first.  At a frequency vector the zeros with
     # x w > EXPAND j_{0,1} (x = 2|<xi, v>|) get J_0 evaluated; the others are folded into the
     # Rayleigh expansion with the residual zeros: their power sums w^(2k) are added to R_k
-    # (suffix sums below).  The expansion checks its own radius (docs/method.md, 9.6).
+    # (suffix sums below).  The expansion checks its own radius (docs/method.md, 10.6).
     sorted_w, suffix = [], []
     for g in var.groups:
         ws = sorted(g.weights, key=lambda w: -float(w.mid()))
@@ -631,7 +631,7 @@ def search_box(tail, eps_f: list, budget: float, limit: float = 1e4) -> float:
 
 
 def periods(var: VectorVariable, tau: float):
-    """Half-periods L_i/2 (exact) and the aliasing bound sum_i P(|Y_i| >= L_i/2) (docs 9.2)."""
+    """Half-periods L_i/2 (exact) and the aliasing bound sum_i P(|Y_i| >= L_i/2) (docs/method.md, 10.3)."""
     d = var.dimension
     cov = covariance(var)
     V = [cov[i][i] for i in range(d)]

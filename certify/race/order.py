@@ -4,7 +4,7 @@ delta(q; a_1, ..., a_r) is the logarithmic density of the x with
 pi(x;q,a_1) > pi(x;q,a_2) > ... > pi(x;q,a_r).  With
 E(x;a) = (log x/sqrt x)(phi(q) pi(x;q,a) - pi(x)), the ordering holds exactly
 when every consecutive difference Y_i = E(x;a_i) - E(x;a_{i+1}) is positive.
-Under GRH and LI the vector Y has the limit law (docs/method.md, section 9)
+Under GRH and LI the vector Y has the limit law (docs/method.md, section 10)
 
     Y = mu + sum_{chi != chi_0} sum_{gamma_chi > 0} 2 Re(v_chi U_gamma) / |rho|,
     mu_i = -c(q, a_i) + c(q, a_{i+1}),   v_{chi,i} = conj chi(a_i) - conj chi(a_{i+1}).
