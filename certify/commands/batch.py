@@ -28,6 +28,8 @@ def _command_line(args) -> str:
         parts += ["--race", r]
     if args.kinds != "two-way,residues":
         parts += ["--kinds", args.kinds]
+    if getattr(args, "symmetries", False):
+        parts += ["--symmetries"]
     parts += ["--digits", str(args.digits), "--out", args.out]
     return " ".join(shlex.quote(x) for x in parts)
 
@@ -50,7 +52,8 @@ def run_table(args) -> int:
     summary = run_batch(moduli, digits, args.out, workers=workers, scheduler=args.scheduler,
                         cache_path=args.cache, kinds=kinds, extra=extra,
                         top=_int(args.top, "--top", 1), progress=not args.quiet,
-                        command_line=cmd, use_cache=not args.no_cache)
+                        command_line=cmd, use_cache=not args.no_cache,
+                        symmetries=args.symmetries)
     t = summary["timings_seconds"]
     sp = summary["spectra"]
     print(f"{summary['races']} races ({summary['races_run']} certified now, "
@@ -152,6 +155,10 @@ def register(sub) -> None:
     p.add_argument("--no-cache", action="store_true",
                    help="keep spectra in a scratch cache inside DIR instead")
     p.add_argument("--top", default="20", help="length of the ranking of most biased races")
+    p.add_argument("--symmetries", action="store_true",
+                   help="certify one race per distinct law (r a square: (ra,rb) ~ (a,b); "
+                   "(1/a,1/b) ~ (a,b); (b,a) = 1 - (a,b); q = 2m, m odd ~ m) and read every "
+                   "row from the race it equals, saying why")
     p.add_argument("--quiet", action="store_true", help="no progress line")
     p.set_defaults(func=run_table)
 
