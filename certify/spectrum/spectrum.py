@@ -76,7 +76,7 @@ class SpectrumStore:
         held are skipped; a conductor with enough missing characters
         (:func:`certify.spectrum.moments.prefer_batch`) is done by one Hurwitz
         jet per class and one DFT over its character group (docs/method.md,
-        section 2b); the others are left to :meth:`get`.  Returns the number of
+        section 2c); the others are left to :meth:`get`.  Returns the number of
         characters computed.
         """
         by_cond: dict = {}
