@@ -24,13 +24,9 @@ def _command_line(args) -> str:
         parts += ["--race", r]
     if args.kinds != "two-way,residues":
         parts += ["--kinds", args.kinds]
-<<<<<<< HEAD
     if getattr(args, "symmetries", False):
         parts += ["--symmetries"]
-    parts += ["--digits", str(args.digits), "--out", args.out]
-=======
     parts += ["--digits", str(target_digits(args)), "--out", args.out]
->>>>>>> main
     return " ".join(shlex.quote(x) for x in parts)
 
 
@@ -68,18 +64,13 @@ def run_table(args) -> int:
     cmd = _command_line(args)
     summary = run_batch(moduli, digits, args.out, workers=workers, scheduler=args.scheduler,
                         cache_path=args.cache, kinds=kinds, extra=extra,
-<<<<<<< HEAD
-                        top=_int(args.top, "--top", 1), progress=not args.quiet,
+                        top=top, progress=progress_enabled(args) and not args.quiet,
                         command_line=cmd, use_cache=not args.no_cache,
                         symmetries=args.symmetries)
-=======
-                        top=top, progress=progress_enabled(args) and not args.quiet,
-                        command_line=cmd, use_cache=not args.no_cache)
     if args.json:
         write_json(summary, args.json)
     if args.json == "-":
         return _table_exit(summary)
->>>>>>> main
     t = summary["timings_seconds"]
     sp = summary["spectra"]
     print(f"{summary['races']} races ({summary['races_run']} certified now, "
@@ -204,18 +195,14 @@ def register(sub) -> None:
     p.add_argument("--no-cache", action="store_true",
                    help="keep spectra in a scratch cache inside DIR instead")
     p.add_argument("--top", default="20", help="length of the ranking of most biased races")
-<<<<<<< HEAD
     p.add_argument("--symmetries", action="store_true",
                    help="certify one race per distinct law (r a square: (ra,rb) ~ (a,b); "
                    "(1/a,1/b) ~ (a,b); (b,a) = 1 - (a,b); q = 2m, m odd ~ m) and read every "
                    "row from the race it equals, saying why")
-    p.add_argument("--quiet", action="store_true", help="no progress line")
-=======
     add_json(p, "the batch summary")
     add_progress(p)
     p.add_argument("--quiet", action="store_true", help="alias of --no-progress")
     add_limits(p)
->>>>>>> main
     p.set_defaults(func=run_table)
 
     c = sub.add_parser("cache", help="inspect or prune the cache of certified spectra",
