@@ -145,9 +145,9 @@ def _model_variable(question: OrderQuestion, groups, store: SpectrumStore, prec:
         T1 = sp.power_sums[0] / (2 if g.is_real else 1)
         ws = []
         for (qs, _) in g.primitive_keys:
-            ws.extend(arb(1) / arb(0.25 + t * t).sqrt() for t in _model_ordinates(qs, 400.0))
+            ws.extend(arb(1) / arb(0.25 + t * t).sqrt() for t in _model_ordinates(qs, 150.0))
         m = sum((w * w for w in ws), arb(0))
-        # model zeros up to 400 plus the exact remainder of the first moment
+        # model zeros up to 150 plus the exact remainder of the first moment
         rest = T1 - m
         gs.append(VectorGroup(g.vector, tuple(ws), (rest,) if rest > 0 else (), g.label))
     return VectorVariable(tuple(arb(x.numerator) / x.denominator for x in mu), tuple(gs))

@@ -155,6 +155,8 @@ class DirectionalTail:
             for w in ws:
                 pref.append(pref[-1] + arb(w.lower()).log())
             self.log_prefix.append(pref)
+        self.log_prefix_float = [np.concatenate([[0.0], np.cumsum(np.log(w))]) if w.size else
+                                 np.zeros(1) for w in self.w_float]
         self.log_pi = arb.pi().log()
 
     def _counts(self, s: float) -> np.ndarray:
@@ -171,23 +173,22 @@ class DirectionalTail:
         return n
 
     def log_bound_float(self, s: float) -> tuple[float, int]:
-        """(max over patches of the log bound, min over patches of the exponent count); planning."""
-        best = -np.inf
-        jmin = None
+        """(max over patches of the log bound, min over patches of the exponent count); planning.
+
+        With w sorted decreasingly, sum_j max(0, log(pi s t w_j)) = n log(pi s t) + sum_{j<n} log w_j,
+        n = #{j : w_j > 1/(pi s t)}.
+        """
+        n = self._counts(s)
         tot = np.zeros(self.t_lo.shape[0])
-        cnt = np.zeros(self.t_lo.shape[0], dtype=int)
         for gi, w in enumerate(self.w_float):
             if w.size == 0:
                 continue
             u = np.pi * s * self.t_lo[:, gi]
-            with np.errstate(divide="ignore", invalid="ignore"):
-                lg = np.log(u)[:, None] + np.log(w)[None, :]
-            lg = np.where(np.isfinite(lg), lg, -np.inf)
-            pos = np.maximum(lg, 0.0)
-            tot -= 0.5 * pos.sum(axis=1)
-            cnt += (lg > 0).sum(axis=1)
+            with np.errstate(divide="ignore"):
+                lu = np.where(u > 0, np.log(np.where(u > 0, u, 1.0)), 0.0)
+            tot -= 0.5 * (n[:, gi] * lu + self.log_prefix_float[gi][n[:, gi]])
         best = float(tot.max()) if tot.size else 0.0
-        jmin = int(cnt.min()) if cnt.size else 0
+        jmin = int(n.sum(axis=1).min()) if n.size else 0
         return best, jmin
 
     def bound(self, s: arb, s_float: float) -> tuple[arb, int]:
@@ -613,16 +614,17 @@ def _tail_float(tail, eps_f: list, Xi: float) -> float:
 
 
 def search_box(tail, eps_f: list, budget: float, limit: float = 1e4) -> float:
-    """The smallest box radius Xi (to 1/1000 relative) whose planned tail bound is below budget."""
+    """A box radius Xi (within 4% of the smallest) whose planned tail bound is below budget."""
     Xi = min(eps_f)
+    step = 2.0
     while _tail_float(tail, eps_f, Xi) > budget * 0.9:
-        Xi *= 1.25
+        Xi *= step
         if Xi > limit:
             raise PrecisionExhausted("not certified: the characteristic function does not decay "
                                      "fast enough in some direction (need more zeros)")
-    lo, hi = Xi / 1.25, Xi
-    for _ in range(10):
-        mid = (lo + hi) / 2
+    lo, hi = Xi / step, Xi
+    while hi / lo > 1.04:
+        mid = math.sqrt(lo * hi)
         if _tail_float(tail, eps_f, mid) > budget * 0.9:
             lo = mid
         else:
@@ -657,7 +659,7 @@ def plan_box(var: VectorVariable, tau: float, per_side: int | None = None) -> fl
     """Planning: the box radius Xi the engine would choose for ``var`` (floating point)."""
     d = var.dimension
     if per_side is None:
-        per_side = {1: 1, 2: 64, 3: 12}.get(d, 6)
+        per_side = {1: 1, 2: 32, 3: 10}.get(d, 6)
     with workprec(64):
         half_L, _, _ = periods(var, tau)
         eps_f = [math.pi / float(h) for h in half_L]
