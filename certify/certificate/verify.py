@@ -175,6 +175,10 @@ def verify_certificate(cert: Certificate) -> VerifyReport:
 
 
 def _verify(cert: Certificate, report: VerifyReport) -> None:
+    if cert.question["kind"] == "ordering":  # races among three or more classes
+        from .order import verify_order
+
+        return verify_order(cert, report)
     params = cert.parameters
     prec = int(params["working_precision_bits"])
     digits = int(params["digits_requested"])

@@ -83,21 +83,39 @@ def run_order(args) -> int:
     cmd = "certify " + " ".join(shlex.quote(a) for a in
                                 ["order", str(q), *map(str, classes), "--digits", str(d)]
                                 + (["--all"] if args.all else []))
+    from ..spectrum.spectrum import SpectrumStore
+
+    store = SpectrumStore()
     if args.all:
-        fam = certify_orderings(q, question.classes, d, command_line=cmd)
+        fam = certify_orderings(q, question.classes, d, store=store, command_line=cmd)
         if args.json:
             _write(fam.to_dict(), args.json)
         if args.json != "-":
             print(family_screen(fam))
+        if args.certificate:
+            _certificates(fam.results, store, args.certificate, fam.checks)
         if not fam.ok:
             return 4
         return 0 if all(r.target_met for r in fam.results) else 5
-    result = certify_order(question, d, command_line=cmd)
+    result = certify_order(question, d, store=store, command_line=cmd)
     if args.json:
         _write(result.to_dict(), args.json)
     if args.json != "-":
         print(screen(result))
+    if args.certificate:
+        _certificates([result], store, args.certificate, ())
     return 0 if result.target_met else 5
+
+
+def _certificates(results, store, out_dir: str, checks) -> None:
+    """Write each result's certificate (JSON and Markdown) into out_dir."""
+    from ..certificate.order import order_certificate
+    from ..render.files import base_name, write_files
+
+    for r in results:
+        cert = order_certificate(r, store, checks)
+        for f, p in write_files(cert, out_dir, ("json", "md"), base_name(r.question.label)).items():
+            print(f"  wrote {f:<9} {p}")
 
 
 def register(sub) -> None:
@@ -114,4 +132,6 @@ def register(sub) -> None:
                    help=f"target: width at most 10^-D (default {DEFAULT_ORDER_DIGITS})")
     p.add_argument("--all", action="store_true", help="every ordering of the classes, with checks")
     p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--certificate", metavar="DIR",
+                   help="also write certificates (JSON for `certify verify`, Markdown) into DIR")
     p.set_defaults(func=run_order)

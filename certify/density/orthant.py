@@ -33,8 +33,9 @@ import numpy as np
 from ..arith import acb, arb, workprec
 from ..errors import PrecisionExhausted
 from ..result import DensityEnclosure, Enclosure, ErrorTerm
-from .bessel import ResidualGroup, ResidualTooLarge, _arb_q, _clamp_unit, _residual_log_factor
-from .besselj import check_j01, tail_constant
+from .bessel import ResidualTooLarge, _arb_q, _clamp_unit
+from .besselj import check_j01, rayleigh_sigma, tail_constant
+from ..errors import Inconsistent
 
 
 #: zeros with x w <= EXPAND * j_{0,1} at a frequency vector go into the Rayleigh expansion
@@ -411,6 +412,9 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
                 suf[j] = row
         suffix.append(suf)
     thr = EXPAND * float(j01_lo.lower())
+    res_cache = {}
+    K_max = max((len(g.residual) for g in var.groups), default=0)
+    sigmas = [_arb_q(rayleigh_sigma(k)) / k for k in range(1, K_max + 1)]
     need_each = tau / 16 / max(n_points, 1)
     sums = {s: arb(0) for s in signs}
     rayleigh = arb(0)
@@ -442,17 +446,20 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
                 P *= (x * w).bessel_j(0)
             bessel_calls += n_dir
             if g.residual:
-                R = tuple(r + e for r, e in zip(g.residual, suffix[gi][n_dir]))
-                res_parts.append((x, R, g.label))
+                key = (gi, n_dir)
+                if key not in res_cache:
+                    R = tuple(r + e for r, e in zip(g.residual, suffix[gi][n_dir]))
+                    res_cache[key] = (R, _largest_weight_bound(R, g.label))
+                R, root = res_cache[key]
+                res_parts.append((x, R, root))
         absP = arb(abs(P).upper())
         coef_abs = 2 * abs(mag)  # the pair k, -k
         log_res = arb(0)
         tail_sum = arb(0)
         try:
-            for x, R, label in res_parts:
+            for x, R, root in res_parts:
                 share_k = need_each / max(float((coef_abs * absP).upper()), 1e-300) / (4 * G)
-                ell, tl = _residual_log_factor(ResidualGroup(x, R, label), arb(1), share_k,
-                                               j01_lo, Cj)
+                ell, tl = _rayleigh(x, R, root, share_k, j01_lo, Cj, sigmas)
                 log_res += ell
                 tail_sum += tl
             factor = _clamp_unit(log_res.exp())
@@ -665,3 +672,46 @@ def plan_box(var: VectorVariable, tau: float, per_side: int | None = None) -> fl
         eps_f = [math.pi / float(h) for h in half_L]
         tail = DirectionalTail(var, per_side)
     return search_box(tail, eps_f, tau / 8)
+
+
+def _largest_weight_bound(R, label: str) -> arb:
+    """min_k R_k^(1/(2k)): at least every weight w of the multiset whose power sums are R_k.
+
+    R_k <= 0 cannot happen for infinitely many zeros: refuse (docs/method.md, section 5).
+    """
+    best = None
+    for k, r in enumerate(R, start=1):
+        up = arb(r.upper())
+        if up <= 0:
+            raise Inconsistent(f"{label or 'residual group'}: residual power sum R_{k} = {r.str(5)} "
+                               "is not positive: a moment or an isolated zero is wrong; not certified")
+        root = up.root(2 * k)
+        best = root if best is None or root < best else best
+    return best
+
+
+def _rayleigh(x: arb, R, root: arb, need: float, j01_lo: arb, C: arb, sigmas):
+    """(log prod_res J_0(x w), tail bound): the expansion of docs/method.md section 5 at scale x.
+
+    ``root`` bounds every weight (``_largest_weight_bound``); raises ResidualTooLarge
+    unless y = x root / j_{0,1} < 1 is proven.  Identical to the one-dimensional engine's
+    residual factor with scale x at frequency 1, with the weight bound computed once.
+    """
+    y = x / j01_lo * root
+    if not (y < 1):
+        raise ResidualTooLarge("residual weights too large for the Rayleigh expansion")
+    y2 = y * y
+    geom = y2 / (1 - y2)
+    xj2 = (x / j01_lo) ** 2
+    total = arb(0)
+    xk = arb(1)
+    x2 = x * x
+    pw = arb(1)
+    for k, r in enumerate(R, start=1):
+        xk *= x2
+        total -= sigmas[k - 1] * xk * r
+        pw *= xj2
+        tail = C / (k + 1) * pw * arb(r.upper()).nonnegative_part() * geom
+        if tail.upper() < need:
+            return total, arb(tail.upper())
+    return total, arb(tail.upper())

@@ -77,8 +77,12 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = (", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
-               or "none (pi(x) against li(x): zeta alone)")
+    if q["kind"] == "ordering":  # three or more classes: no weights, an order of classes
+        weights = "none; classes in order " + " > ".join(map(str, q["classes"])) + \
+            " (mean vector and variance below are those of Y = (E(a_i) - E(a_{i+1}))_i, variance of Y_1)"
+    else:
+        weights = (", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
+                   or "none (pi(x) against li(x): zeta alone)")
     prov = cert.provenance
     params = [(k, v if not isinstance(v, (list, tuple)) else ", ".join(map(str, v)))
               for k, v in cert.parameters.items()]
