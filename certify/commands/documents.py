@@ -100,10 +100,18 @@ def run_certificate(args) -> int:
 
 
 def run_render(args) -> int:
+    from ..certificate.dispatch import verify_any
     from ..certificate.model import read_certificate
     from ..render.files import parse_formats, write_files
 
     cert = read_certificate(args.file)
+    # a document shows only what verify re-derives: render nothing that does not verify
+    rep = verify_any(cert)
+    if not rep.ok:
+        for c in rep.failures[:5]:
+            print(f"  FAIL {c.name}: {c.detail}", file=sys.stderr)
+        print(f"certify: error: {args.file} does not verify; nothing rendered", file=sys.stderr)
+        return EXIT_MISMATCH
     out = args.out or os.path.dirname(os.path.abspath(args.file))
     base = os.path.splitext(os.path.basename(args.file))[0]
     formats = tuple(f for f in parse_formats(args.formats) if f != "json")
@@ -115,17 +123,17 @@ def run_render(args) -> int:
 # -- verify ---------------------------------------------------------------------
 
 def run_verify(args) -> int:
-    from ..certificate.model import read_certificate
-    from ..certificate.verify import verify_certificate
+    from ..certificate.dispatch import report_dict, verify_paths
 
-    certs = [(path, read_certificate(path)) for path in args.files]
+    outcomes = verify_paths(list(args.files))
     status = 0
-    out = []
-    for path, cert in certs:
-        rep = verify_certificate(cert)
-        out.append({"file": path, "label": rep.label, "ok": rep.ok, "seconds": round(rep.seconds, 3),
-                    "original_seconds": rep.original_seconds,
-                    "checks": [{"name": c.name, "ok": c.ok, "detail": c.detail} for c in rep.checks]})
+    unreadable = False
+    for o in outcomes:
+        rep, path = o.report, o.path
+        if o.error:
+            unreadable = True
+            print(f"certify: error: {o.error}", file=sys.stderr)
+            continue
         if not args.json:
             verdict = "VERIFIED" if rep.ok else "MISMATCH"
             ratio = (f" (the original computation took {rep.original_seconds:.2f} s)"
@@ -139,7 +147,11 @@ def run_verify(args) -> int:
         if not rep.ok:
             status = EXIT_MISMATCH
     if args.json:
-        print(json.dumps(out, indent=1))
+        print(json.dumps(report_dict(outcomes), indent=1))
+    if unreadable:
+        return BadInput.exit_code
+    if args.json:
+        pass
     elif status == 0:
         print("The stored enclosures follow from the stored data (conditional on the listed "
               "hypotheses, which certify does not prove).")

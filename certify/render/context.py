@@ -1,4 +1,10 @@
-"""The context dict every renderer reads: display strings built from a certificate only."""
+"""The context dict every renderer reads: display strings built from a certificate only.
+
+Renderers show only what ``certify verify`` re-derives: sentences (question,
+hypotheses, evidence, caution, command line) are regenerated here from the stored
+data by the functions verify compares against, numbers derived from the enclosure
+are recomputed from its ends, and parameters are limited to those verify checks.
+"""
 
 from __future__ import annotations
 
@@ -6,6 +12,7 @@ from fractions import Fraction
 
 from ..arith import ball_from_strings
 from ..certificate.model import Certificate, ball_of
+from ..certificate.build import DEFINITION, NORMALISATION
 from ..certificate.numbers import sci
 
 STATUS_TEXT = {
@@ -48,24 +55,33 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
             "height": f"{float(g['isolation_height']):.6g}", "moments": g["moments"]["count"],
             "scale": _short_ball(g["scale"], 10), "first_zeros": ", ".join(first),
         })
+    from ..certificate.build import (LI_STATEMENT, answer_fields, certificate_caution,
+                                     certificate_references, evidence_text, grh_statement, reproduce_command)
+    from ..certificate.verify import SHOWN_PARAMETERS, question_from_record
+
+    # every sentence is regenerated from the stored data (as verify does), never copied
+    question = question_from_record(q)
+    digits = int(cert.parameters["digits_requested"])
+    canonical = {"GRH": grh_statement(cert.spectrum), "LI": LI_STATEMENT}
     hyps = []
     for h in cert.hypotheses:
-        hyps.append({"name": h["name"], "statement": h["statement"], "status": h["status"],
-                     "status_text": STATUS_TEXT.get(h["status"], h["status"]),
-                     "evidence": [e["text"] for e in h["evidence"]],
-                     "reference": h.get("reference", "")})
+        hyps.append({"name": h["name"], "statement": canonical.get(h["name"], h["statement"]),
+                     "status": "assumed", "status_text": STATUS_TEXT["assumed"],
+                     "evidence": [evidence_text(e) for e in h["evidence"]],
+                     "reference": ""})
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = ", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
-    prov = cert.provenance
+    weights = ", ".join(f"w_{a} = {w}" for a, w in question.weights)
+    derived = answer_fields(cert.lower, cert.upper, digits)
+    a = {**a, **derived}
     params = [(k, v if not isinstance(v, (list, tuple)) else ", ".join(map(str, v)))
-              for k, v in cert.parameters.items()]
+              for k, v in cert.parameters.items() if k in SHOWN_PARAMETERS]
     return {
-        "label": cert.label,
-        "question": {"kind": q["kind"], "modulus": q["modulus"], "statement": q["statement"],
-                     "weights": weights, "definition": q["definition"],
-                     "normalisation": q["normalisation"]},
+        "label": question.label,
+        "question": {"kind": question.kind, "modulus": question.modulus,
+                     "statement": question.statement, "weights": weights,
+                     "definition": DEFINITION, "normalisation": NORMALISATION},
         "answer": {"lower": a["enclosure"]["lower"], "upper": a["enclosure"]["upper"],
                    "width": a["width"], "digits": a["certified_digits"] or "(none)",
                    "target": a["target_width"], "target_met": a["target_met"],
@@ -77,12 +93,11 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
         "budget_total": sci(total, 3, up=True),
         "groups": groups,
         "parameters": params,
-        "provenance": {"certify": prov["certify"], "python_flint": prov["python_flint"],
-                       "python": prov["python"], "platform": prov["platform"],
-                       "command_line": prov["command_line"], "date": prov["date"],
-                       "input_digest": prov["input_digest"]},
+        # only what verify re-derives: the command from the question, the digest it checks
+        "provenance": {"command_line": reproduce_command(question, digits),
+                       "input_digest": cert.provenance["input_digest"]},
         "verify_command": f"certify verify {file_name}",
-        "references": list(cert.references),
-        "caution": cert.caution,
+        "references": certificate_references(),
+        "caution": certificate_caution(),
         "schema_version": cert.schema_version,
     }
