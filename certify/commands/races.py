@@ -21,7 +21,7 @@ def _int(text: str, what: str) -> int:
 def _add_common(p):
     p.add_argument("--digits", "-d", default=str(DEFAULT_DIGITS), metavar="D",
                    help=f"target: enclosure width at most 10^-D (1..{MAX_DIGITS}; default {DEFAULT_DIGITS})")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--json", metavar="PATH", help="write the result as a certificate (JSON, the schema of every certify document; - for stdout)")
 
 
 def _digits(args) -> int:
@@ -60,9 +60,18 @@ def screen(result) -> str:
     return "\n".join(lines)
 
 
-def emit(result, args) -> int:
+def _certify(question, d, args, command_line):
+    """The race result; with --json also its certificate (the one shape every command writes)."""
+    if not args.json:
+        return certify_race(question, d, command_line=command_line), None
+    from ..certificate.build import certify_with_certificate
+
+    return certify_with_certificate(question, d, command_line=command_line)
+
+
+def emit(result, args, cert=None) -> int:
     if args.json:
-        text = json.dumps(result.to_dict(), indent=2)
+        text = cert.to_json().rstrip("\n") if cert is not None else json.dumps(result.to_dict(), indent=2)
         if args.json == "-":
             sys.stdout.write(text + "\n")
         else:
@@ -82,17 +91,17 @@ def run_race(args) -> int:
     q = _int(args.modulus, "modulus")
     question = two_way(q, _int(args.a, "class a"), _int(args.b, "class b"))
     d = _digits(args)
-    result = certify_race(question, d, command_line=_cmdline(
+    result, cert = _certify(question, d, args, _cmdline(
         ["race", str(q), args.a, args.b, "--digits", str(d)]))
-    return emit(result, args)
+    return emit(result, args, cert)
 
 
 def run_residues(args) -> int:
     q = _int(args.modulus, "modulus")
     d = _digits(args)
-    result = certify_race(residue_race(q), d, command_line=_cmdline(
+    result, cert = _certify(residue_race(q), d, args, _cmdline(
         ["residues", str(q), "--digits", str(d)]))
-    return emit(result, args)
+    return emit(result, args, cert)
 
 
 def parse_weights(items: list[str]) -> dict:
@@ -104,9 +113,9 @@ def run_weighted(args) -> int:
     q = _int(args.modulus, "modulus")
     question = weighted(q, parse_weights(args.weights))
     d = _digits(args)
-    result = certify_race(question, d, command_line=_cmdline(
+    result, cert = _certify(question, d, args, _cmdline(
         ["weighted", str(q), *args.weights, "--digits", str(d)]))
-    return emit(result, args)
+    return emit(result, args, cert)
 
 
 def register(sub) -> None:

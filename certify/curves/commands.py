@@ -89,12 +89,17 @@ def run_curve(args) -> int:
     if observe < 0 or observe > 12:
         raise BadInput("--observe must be between 0 and 12")
     E = make_curve(args.q, args.A, args.B)
-    L = l_polynomial(E, confirm=_int(args.confirm, "--confirm"))
-    R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=_int(args.max_boxes, "--max-boxes"))
-    d = R.to_dict()
-    d["parameters"]["command"] = "certify " + " ".join(shlex.quote(a) for a in getattr(args, "_argv", []) or [])
+    confirm, max_boxes = _int(args.confirm, "--confirm"), _int(args.max_boxes, "--max-boxes")
+    L = l_polynomial(E, confirm=confirm)
+    R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=max_boxes)
     if args.json:
-        _write(json.dumps(d, indent=2, default=str), args.json)
+        # --json writes the certificate: the one shape of every certify document
+        from fractions import Fraction
+
+        from ..certificate.curves import curve_certificate
+
+        cert = curve_certificate(R, Fraction(str(width)), confirm, max_boxes)
+        _write(cert.to_json().rstrip("\n"), args.json)
     if args.json != "-":
         print(curve_screen(R))
     return 0

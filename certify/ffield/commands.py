@@ -94,9 +94,21 @@ def run_race(args) -> int:
         qn, G, wd = residue_race(args.q, args.modulus, args.mode)
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
-    res = certify_ffrace(qn, G, wd, target_width=10.0 ** (-digits), leader_bound=leaders)
     if args.json:
-        _emit_json(res.to_dict(), args.json)
+        # --json writes the certificate: the one shape of every certify document
+        from fractions import Fraction
+
+        from ..certificate.ffield import certify_ffield
+
+        res, cert = certify_ffield(qn, G, wd, Fraction(1, 10**digits), leader_bound=leaders)
+        if args.json == "-":
+            sys.stdout.write(cert.to_json())
+        else:
+            from ..io import write_atomic
+
+            write_atomic(args.json, cert.to_json())
+    else:
+        res = certify_ffrace(qn, G, wd, target_width=10.0 ** (-digits), leader_bound=leaders)
     if args.json != "-":
         print(screen(res))
     return 0 if res.target_met else 5
@@ -134,7 +146,10 @@ def run_lpoly(args) -> int:
         lines.append(f"  {chi.describe()}: L = [{', '.join(L.coefficient_strings())}] "
                      f"(zeta = exp(2 pi i/{chi.order})); {rep.describe()}")
     if args.json:
-        _emit_json({"group": G.describe(), "field": F.describe(), "characters": out}, args.json)
+        from ..certificate.model import envelope
+
+        _emit_json(envelope("l-polynomials", {"group": G.describe(), "field": F.describe(),
+                                              "characters": out}), args.json)
     if args.json != "-":
         print("\n".join(lines))
     return 0 if all(o["weil_ok"] for o in out) else 4
@@ -156,7 +171,8 @@ def register(subparsers) -> None:
     p.add_argument("--digits", "-d", default="10", metavar="D", help="target width 10^-D (default 10)")
     p.add_argument("--leaders", default="60", metavar="N",
                    help="report leaders from exact counts up to degree N (0: skip; default 60)")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--json", metavar="PATH", help="write the result as a certificate that "
+                   "`certify verify` re-checks (- for stdout)")
     p.set_defaults(func=run_race)
 
     p2 = subparsers.add_parser(
