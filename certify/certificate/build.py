@@ -14,10 +14,10 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import certified_digits, decimal_down, decimal_up, workprec
+from ..arith import certified_digits, certified_significant, decimal_down, decimal_up, workprec
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
-from ..races import DEFAULT_DIGITS, RaceResult, certify_race
+from ..races import DEFAULT_DIGITS, PUBLISHED_RH, RaceResult, certify_race
 from ..result import CAUTION
 from ..spectrum.spectrum import SpectrumStore, residual_sums
 from .evidence import exact_ends, moment_consequences, refine_ordinate, relation_search
@@ -43,6 +43,27 @@ DEFINITION = ("delta = lim_{X -> oo} (1 / log X) * integral over {2 <= x <= X : 
               "P(X > 0) for the limit law above.")
 
 
+LI_NORMALISATION = ("E(x) = (log x / sqrt x) * (pi(x) - li(x)); under RH and LI for zeta, E has "
+                    "the limit law of X = -1 + sum_{gamma > 0} 2 / sqrt(1/4 + gamma^2) "
+                    "cos(Theta), Theta independent uniform, gamma over the positive ordinates "
+                    "of the zeros of zeta (the -1 comes from the prime squares). The race "
+                    "pi(x) < li(x) is the race of -E, with mean +1.")
+
+LI_DEFINITION = ("delta = lim_{X -> oo} (1 / log X) * integral over {2 <= x <= X : "
+                 "pi(x) > li(x) (resp. <)} of dx / x (logarithmic density), which equals "
+                 "P(X > 0) (resp. P(X < 0)) for the limit law above; li may be taken from 0 "
+                 "or from 2 (a constant difference does not change the density).")
+
+
+def l_name(conductor: int, label: int) -> str:
+    """How an L-function is named in texts: zeta(s) for conductor 1."""
+    return "zeta(s)" if conductor == 1 else f"L(s, chi_{{{conductor},{label}}})"
+
+
+def central_name(conductor: int, label: int) -> str:
+    return "zeta(1/2)" if conductor == 1 else f"L(1/2, chi_{{{conductor},{label}}})"
+
+
 def input_digest(question: RaceQuestion, digits: int) -> str:
     """sha256 of the canonical description of what was asked."""
     payload = json.dumps({"modulus": question.modulus, "kind": question.kind,
@@ -52,6 +73,8 @@ def input_digest(question: RaceQuestion, digits: int) -> str:
 
 
 def reproduce_command(question: RaceQuestion, digits: int) -> str:
+    if question.is_li_race:
+        return f"certify certificate '{question.label}' --digits {digits}"
     if question.kind == "two-way":
         a, b = question.classes
         return f"certify certificate {question.modulus} {a} {b} --digits {digits}"
@@ -69,9 +92,22 @@ def question_record(question: RaceQuestion) -> dict:
         "weights": [{"class": a, "weight": str(w)} for a, w in question.weights],
         "label": question.label,
         "statement": question.statement,
-        "normalisation": NORMALISATION,
-        "definition": DEFINITION,
+        "normalisation": LI_NORMALISATION if question.is_li_race else NORMALISATION,
+        "definition": LI_DEFINITION if question.is_li_race else DEFINITION,
     }
+
+
+def small_side_record(lo: Fraction, hi: Fraction) -> dict:
+    """min(delta, 1 - delta) for the stored enclosure [lo, hi] of delta, in scientific notation.
+
+    Its certified significant digits are those common to the whole enclosure; the
+    ends are rounded outward (two digits past the certified ones).
+    """
+    name, a, b = ("delta", lo, hi) if hi < Fraction(1, 2) else ("1 - delta", 1 - hi, 1 - lo)
+    k, text = certified_significant(a, b)
+    sig = max(k + 2, 3)
+    return {"name": name, "lower": sci(a, sig, up=False), "upper": sci(b, sig, up=True),
+            "significant_digits": k, "certified": text}
 
 
 def answer_record(result: RaceResult) -> dict:
@@ -85,12 +121,15 @@ def answer_record(result: RaceResult) -> dict:
     lower = decimal_down(lo - margin, places)
     upper = decimal_up(hi + margin, places)
     flo, fhi = Fraction(lower), Fraction(upper)
+    extra = {"small_side": small_side_record(flo, fhi)} if result.question.is_li_race else {}
     return {
+        **extra,
         "enclosure": {"lower": lower, "upper": upper},
         "engine_ball": ball_record(result.ball),
         **answer_fields(flo, fhi, result.digits_requested),
         "mean": str(result.mean),
         "variance": ball_record(result.variance),
+        "exact": result.exact.as_dict() if getattr(result, "exact", None) is not None else None,
     }
 
 
@@ -166,29 +205,46 @@ LATTICE_REFERENCE = ("Lattice reduction: Factoring polynomials with rational coe
                      "Mathematische Annalen 261 (1982).")
 
 
-def certificate_caution() -> str:
-    """The fixed caution of a race certificate over Q (GRH and LI are always used there)."""
-    return CAUTION + " Re-check this file with `certify verify`."
+ZETA_RH_STATEMENT = "The Riemann hypothesis: every non-trivial zero of zeta(s) has real part 1/2."
+ZETA_LI_STATEMENT = ("The positive ordinates of the non-trivial zeros of zeta(s) are linearly "
+                     "independent over Q.")
 
 
-def grh_statement(spectrum) -> str:
+def certificate_caution(rh: str = "GRH") -> str:
+    """The fixed caution of a race certificate over Q: it rests on (G)RH and LI, assumed."""
+    from ..result import Hypothesis, caution_text
+
+    hyps = (Hypothesis(rh, "", "assumed"), Hypothesis("LI", "", "assumed"))
+    return caution_text(hyps) + " Re-check this file with `certify verify`."
+
+
+def hypothesis_statements(spectrum, rh: str = "GRH") -> dict:
+    """{name: statement} of the two hypotheses a race over Q rests on, from its L-functions."""
+    if rh == "RH":
+        return {"RH": ZETA_RH_STATEMENT, "LI": ZETA_LI_STATEMENT}
     keys = sorted({(lf["conductor"], lf["label"]) for g in spectrum["groups"]
                    for lf in g["l_functions"]})
     names = ", ".join(f"L(s, chi_{{{c},{n}}})" for (c, n) in keys)
-    return (f"The generalised Riemann hypothesis for {names}: every non-trivial zero has real "
-            "part 1/2.")
+    return {"GRH": f"The generalised Riemann hypothesis for {names}: every non-trivial zero has "
+                   "real part 1/2.",
+            "LI": LI_STATEMENT}
+
+
+def grh_statement(spectrum) -> str:
+    return hypothesis_statements(spectrum)["GRH"]
 
 
 def _g(x) -> str:
     return f"{float(Fraction(str(x))):.6g}"
 
 
-def evidence_text(item) -> str:
-    """The sentence of one evidence item, regenerated from its kind, keys and data only."""
+def evidence_text(item, rh: str = "GRH") -> str:
+    """The sentence of one evidence item, regenerated from its kind, keys and data only
+    (``rh`` is "RH" for the zeta race, "GRH" otherwise: the question says which)."""
     kind, d = item["kind"], item["data"]
     key = item.get("l_function", "")
     c, _, n = key.partition(".")
-    L = f"L(s, chi_{{{c},{n}}})"
+    L = l_name(int(c), int(n)) if c.isdigit() and n.isdigit() else f"L(s, chi_{{{c},{n}}})"
     if kind == "zeros-on-critical-line":
         return (f"{L}: {d['zeros']} zeros on the critical line with ordinates in "
                 f"(0, {_g(d['isolation_height'])}], each certified by a sign change of the "
@@ -198,28 +254,28 @@ def evidence_text(item) -> str:
             return f"{L}: argument-principle count to the isolation height not established"
         T = _g(d["height"])
         if d["verified"]:
-            return (f"{L}: GRH verified to height {T}: the argument principle counts exactly "
+            return (f"{L}: {rh} verified to height {T}: the argument principle counts exactly "
                     f"{d['count']} zeros with 0 < gamma < {T} in the critical strip, and "
                     f"{d['sign_changes']} sign changes of Z were found there, so all of them lie "
                     "on the critical line, are simple, and none is missing from the list")
         return (f"{L}: the argument principle counts {d['count']} zeros with 0 < gamma < {T} but "
-                f"{d['sign_changes']} sign changes were found: GRH is NOT verified to this height")
+                f"{d['sign_changes']} sign changes were found: {rh} is NOT verified to this height")
     if kind == "moment-completeness":
-        return (f"{item['group']}: assuming GRH, no ordinate below {_g(d['complete_below'])} is "
+        return (f"{item['group']}: assuming {rh}, no ordinate below {_g(d['complete_below'])} is "
                 f"missing from the isolated list: a missing one would exceed the exact residual "
                 f"power sum R_{d['moment_index']} by itself (zeros off the line are not counted; "
-                "this is not a proof of GRH)")
+                f"this is not a proof of {rh})")
     if kind == "published-verification":
-        return PUBLISHED_GRH
+        return PUBLISHED_RH if rh == "RH" else PUBLISHED_GRH
     if kind == "central-value":
         from ..arith import acb
 
         v = acb(ball_of(d["re"]), ball_of(d["im"]))
-        return f"L(1/2, chi_{{{c},{n}}}) = {v.str(10)}, an enclosure excluding 0"
+        return f"{central_name(int(c), int(n))} = {v.str(10)}, an enclosure excluding 0"
     if kind == "simple-zeros":
         return (f"{item['group']}: each of the {d['isolated']} isolated zeros has odd order (a sign "
                 f"change in its own disjoint interval); {d['proven_simple']} of them are proven "
-                "simple assuming GRH, since a multiple zero would leave two copies in the exact "
+                f"simple assuming {rh}, since a multiple zero would leave two copies in the exact "
                 "residual power sums")
     if kind == "integer-relation-search":
         K = d["size"]
@@ -237,13 +293,13 @@ def evidence_text(item) -> str:
     raise ValueError(f"unknown evidence kind {kind!r}")
 
 
-def _item(kind: str, data: dict, **keys) -> dict:
+def _item(kind: str, data: dict, rh: str = "GRH", **keys) -> dict:
     item = {"kind": kind, **keys, "data": data}
-    item["text"] = evidence_text(item)
+    item["text"] = evidence_text(item, rh)
     return {"kind": kind, **keys, "text": item["text"], "data": data}
 
 
-def _zero_count_evidence(lf: dict, zeros: list, height: str) -> dict:
+def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH") -> dict:
     """GRH to the isolation height for one L-function: argument-principle count against the
     sign changes (so no zero below the height is missing, on or off the line)."""
     from .zerocount import count_zeros
@@ -261,13 +317,17 @@ def _zero_count_evidence(lf: dict, zeros: list, height: str) -> dict:
         except PrecisionExhausted:
             continue
     if N is None:
-        return _item("zero-count", {"established": False, "height": height}, l_function=key)
+        return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
     return _item("zero-count", {"established": True, "height": height, "count": N,
-                                "sign_changes": found, "verified": N == found}, l_function=key)
+                                "sign_changes": found, "verified": N == found}, rh,
+                 l_function=key)
 
 
 def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
-    """GRH and LI with structured evidence (each item: kind, text, data)."""
+    """GRH (RH for zeta) and LI with structured evidence (each item: kind, text, data)."""
+    from ..race.question import riemann_hypothesis_name
+
+    rh = riemann_hypothesis_name(result.question)
     grh_ev, li_ev = [], []
     ordinates = []  # (height, group index, l index, zero ball) for the relation search
     for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
@@ -285,20 +345,20 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             grh_ev.append(_item("zeros-on-critical-line",
                                 {"conductor": c, "label": n, "zeros": count,
                                  "isolation_height": rec["isolation_height"]},
-                                l_function=f"{c}.{n}"))
+                                rh, l_function=f"{c}.{n}"))
         for li, lf in enumerate(rec["l_functions"]):
             grh_ev.append(_zero_count_evidence(lf, [z for z in rec["zeros"] if z["l"] == li],
-                                               rec["isolation_height"]))
+                                               rec["isolation_height"], rh))
         grh_ev.append(_item("moment-completeness",
                             {"complete_below": decimal_down(cons["complete_below"], 6),
-                             "moment_index": cons["moment_index"]}, group=g.label))
+                             "moment_index": cons["moment_index"]}, rh, group=g.label))
         for li, lf in enumerate(rec["l_functions"]):
             c, n = lf["conductor"], lf["label"]
             li_ev.append(_item("central-value", {"re": lf["central_value"]["re"],
                                                  "im": lf["central_value"]["im"]},
-                               l_function=f"{c}.{n}"))
+                               rh, l_function=f"{c}.{n}"))
         li_ev.append(_item("simple-zeros", {"isolated": len(g.zeros),
-                                            "proven_simple": cons["simple"]}, group=g.label))
+                                            "proven_simple": cons["simple"]}, rh, group=g.label))
         for z in rec["zeros"]:
             ordinates.append((Fraction(z["mid"]), gi, z["l"], z))
     ordinates.sort(key=lambda t: t[0])
@@ -326,12 +386,12 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                                         else sci(rs["linear_form_lower_bound"], 4, up=False)),
             "candidate": rs["candidate"],
         }))
-    grh_ev.append(_item("published-verification", {}))
+    grh_ev.append(_item("published-verification", {}, rh))
+    st = hypothesis_statements(spectrum, rh)
     return [
-        {"name": "GRH", "statement": grh_statement(spectrum), "status": "assumed",
-         "evidence": grh_ev, "reference": ""},
-        {"name": "LI", "statement": LI_STATEMENT, "status": "assumed",
-         "evidence": li_ev, "reference": ""},
+        {"name": rh, "statement": st[rh], "status": "assumed", "evidence": grh_ev, "reference": ""},
+        {"name": "LI", "statement": st["LI"], "status": "assumed", "evidence": li_ev,
+         "reference": ""},
     ]
 
 
@@ -346,6 +406,12 @@ def certificate_references() -> list:
     from ..races import REFERENCES
 
     return list(REFERENCES) + [LATTICE_REFERENCE]
+
+
+def riemann_hypothesis_name(question) -> str:
+    from ..race.question import riemann_hypothesis_name as name
+
+    return name(question)
 
 
 def certificate_from_result(result: RaceResult, store: SpectrumStore,
@@ -370,7 +436,7 @@ def certificate_from_result(result: RaceResult, store: SpectrumStore,
         spectrum=spectrum,
         provenance=prov,
         references=refs,
-        caution=certificate_caution(),
+        caution=certificate_caution(riemann_hypothesis_name(result.question)),
     )
 
 

@@ -25,8 +25,8 @@ from fractions import Fraction
 from ..arith import arb, workprec
 from ..density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from ..errors import BadInput, CertifyError, Inconsistent, PrecisionExhausted
-from ..race.question import (RaceQuestion, mean_of, residue_race, spectral_groups, two_way,
-                             weighted)
+from ..race.question import (LI_KINDS, RaceQuestion, mean_of, prime_vs_li, residue_race,
+                             riemann_hypothesis_name, spectral_groups, two_way, weighted)
 from ..source.dirichlet import primitive_character
 from ..spectrum.moments import central_value, zero_power_sums
 from ..spectrum.spectrum import residual_checks, residual_sums
@@ -35,7 +35,11 @@ from .evidence import exact_ends, moment_consequences, relation_search
 from .build import answer_fields, input_digest, question_record
 from .model import Certificate, ball_of, thaw
 
-REQUIRED_HYPOTHESES = ("GRH", "LI")
+REQUIRED_HYPOTHESES = ("GRH", "LI")  # for Dirichlet races; the zeta race needs RH and LI
+
+
+def required_hypotheses(question: RaceQuestion) -> tuple:
+    return (riemann_hypothesis_name(question), "LI")
 
 
 @dataclass
@@ -92,6 +96,10 @@ def question_from_record(rec) -> RaceQuestion:
         return residue_race(q)
     if kind == "weighted":
         return weighted(q, {w["class"]: w["weight"] for w in rec["weights"]})
+    if kind in LI_KINDS:
+        if q != 1 or rec.get("classes") or rec.get("weights"):
+            raise BadInput(f"the race {kind} has modulus 1 and no classes or weights")
+        return prime_vs_li(kind)
     raise BadInput(f"unknown race kind {kind!r}")
 
 
@@ -216,6 +224,13 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
     mu = mean_of(question)
     report.add("answer: mean mu = -sum w_a c(q,a)", str(mu) == cert.answer["mean"],
                f"stored {cert.answer['mean']}, recomputed {mu}")
+    ex = cert.answer.get("exact")
+    if ex is not None or mu == 0:
+        # docs/method.md, section 1b: the density is exactly 1/2 iff it is shown so for mean 0
+        ok = (mu == 0 and ex is not None and ex.get("value") == "1/2"
+              and cert.lower <= Fraction(1, 2) <= cert.upper)
+        report.add("answer: exact value 1/2 exactly when the mean is 0 (symmetric law)", ok,
+                   f"stored exact {ex.get('value') if ex else None!r}, recomputed mean {mu}")
     report.add("provenance: input digest of the question and target",
                cert.provenance["input_digest"] == input_digest(question, digits),
                "the stored digest is not that of the stored question and target")
@@ -319,8 +334,16 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
     report.add("answer: width, certified digits, gaps to 1/2 and 1, target and target_met "
                "recomputed from the stored enclosure", not diff,
                f"stored field(s) {', '.join(diff)} differ from what the enclosure gives")
-    extra = sorted(set(a) - set(expected_a) - {"enclosure", "engine_ball", "mean", "variance"})
+    extra = sorted(set(a) - set(expected_a) - {"enclosure", "engine_ball", "mean", "variance",
+                                               "exact", "small_side"})
     report.add("answer: no unexpected field", not extra, f"unexpected field(s) {extra}")
+    if question.is_li_race or "small_side" in a:
+        from .build import small_side_record
+
+        report.add("answer: the small side and its significant digits follow from the stored "
+                   "enclosure", question.is_li_race
+                   and thaw(a.get("small_side", {})) == small_side_record(s_lo, s_hi),
+                   f"stored {thaw(a.get('small_side', {}))}, implied {small_side_record(s_lo, s_hi)}")
     eb = ball_of(a["engine_ball"], "engine ball")
     el, eh = exact_ends(eb)
     report.add("answer: engine ball inside the stored enclosure and meets the recomputed one",
@@ -340,7 +363,7 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
     _verify_parameters(cert, report, dens, group_data, digits, tau)
 
     # -- hypotheses ----------------------------------------------------------
-    _verify_hypotheses(cert, report, group_data, prec)
+    _verify_hypotheses(cert, report, group_data, prec, required_hypotheses(question))
 
 
 def _overlap(a: arb, b: arb) -> bool:
@@ -388,16 +411,18 @@ def _expect_items(report, where: str, stored, expected_keys) -> bool:
                       if not ok else "")
 
 
-def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec: int) -> None:
-    from .build import LI_STATEMENT, certificate_caution, certificate_references, grh_statement
+def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec: int,
+                       required: tuple = REQUIRED_HYPOTHESES) -> None:
+    from .build import certificate_caution, certificate_references, hypothesis_statements
 
+    rh = required[0]
     names = [h["name"] for h in cert.hypotheses]
-    report.add("hypotheses: exactly GRH and LI, once each, in this order",
-               names == list(REQUIRED_HYPOTHESES),
-               "; ".join(f"{n} is missing" for n in REQUIRED_HYPOTHESES if n not in names)
-               + f" (stored {names}: a race over Q rests on GRH and LI, nothing else, "
+    report.add(f"hypotheses: exactly {rh} and LI, once each, in this order",
+               names == list(required),
+               "; ".join(f"{n} is missing" for n in required if n not in names)
+               + f" (stored {names}: this race rests on {rh} and LI, nothing else, "
                "nothing proven)")
-    expected = {"GRH": grh_statement(cert.spectrum), "LI": LI_STATEMENT}
+    expected = hypothesis_statements(cert.spectrum, rh)
     for h in cert.hypotheses:
         if h["name"] not in expected:
             continue
@@ -407,15 +432,15 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                    and h["reference"] == "",
                    f"status {h['status']!r}; certify does not prove {h['name']}, and the statement "
                    "must be the one the L-functions give")
-    report.add("caution: the fixed text", cert.caution == certificate_caution(),
+    report.add("caution: the fixed text", cert.caution == certificate_caution(rh),
                "the caution differs from the fixed conditional-result text")
     report.add("references: the fixed list", list(cert.references) == certificate_references(),
                "the references differ from the fixed list")
-    if names != list(REQUIRED_HYPOTHESES):
+    if names != list(required):
         return
     grh, li = cert.hypotheses
     for h in (grh, li):
-        bad = [i for i, e in enumerate(h["evidence"]) if e["text"] != _text(e)]
+        bad = [i for i, e in enumerate(h["evidence"]) if e["text"] != _text(e, rh)]
         report.add(f"{h['name']} evidence: every sentence regenerated from its data", not bad,
                    f"item(s) {bad[:5]} carry text that their data do not give")
     keys_grh, keys_li = [], []
@@ -428,7 +453,7 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
     total = sum(len(zs) for _, _, zs, _ in group_data)
     if total >= 2:
         keys_li.append(("integer-relation-search", ""))
-    if not (_expect_items(report, "GRH", grh["evidence"], keys_grh)
+    if not (_expect_items(report, rh, grh["evidence"], keys_grh)
             & _expect_items(report, "LI", li["evidence"], keys_li)):
         return
     ev_grh = list(grh["evidence"])
@@ -444,7 +469,7 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
             count = sum(1 for z in sg["zeros"] if z["l"] == li_idx)
             e = next(e for e in ev_grh if e["kind"] == "zeros-on-critical-line"
                      and e.get("l_function") == key)
-            report.add(f"GRH evidence for L(s, chi_{{{key}}}): zeros on the line",
+            report.add(f"{rh} evidence for {_lname(lf)}: zeros on the line",
                        thaw(e["data"]) == {"conductor": lf["conductor"], "label": lf["label"],
                                            "zeros": count,
                                            "isolation_height": sg["isolation_height"]},
@@ -459,11 +484,11 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                   and _overlap(ball_of(e["data"]["re"]), cv.real)
                   and _overlap(ball_of(e["data"]["im"]), cv.imag)
                   and thaw(e["data"]) == thaw(lf["central_value"]))
-            report.add(f"LI evidence: L(1/2, chi_{{{key}}}) != 0", ok,
+            report.add(f"LI evidence: {_cname(lf)} != 0", ok,
                        "the recomputed enclosure disagrees / contains 0")
         e = next(e for e in ev_grh if e["kind"] == "moment-completeness"
                  and e.get("group") == g.label)
-        report.add(f"GRH evidence for {g.label}: completeness height",
+        report.add(f"{rh} evidence for {g.label}: completeness height",
                    set(e["data"]) == {"complete_below", "moment_index"}
                    and Fraction(e["data"]["complete_below"]) <= cons["complete_below"]
                    and e["data"]["moment_index"] == cons["moment_index"],
@@ -512,11 +537,23 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                f"{float(rs['norm_lower_bound']):.6g}")
 
 
-def _text(e) -> str:
+def _lname(lf) -> str:
+    from .build import l_name
+
+    return l_name(int(lf["conductor"]), int(lf["label"]))
+
+
+def _cname(lf) -> str:
+    from .build import central_name
+
+    return central_name(int(lf["conductor"]), int(lf["label"]))
+
+
+def _text(e, rh: str = "GRH") -> str:
     from .build import evidence_text
 
     try:
-        return evidence_text(e)
+        return evidence_text(e, rh)
     except (KeyError, TypeError, ValueError, ZeroDivisionError):
         return "\x00(no text: the data are malformed)"
 
@@ -527,8 +564,8 @@ def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros, height
     from .zerocount import count_zeros
 
     e = next(e for e in ev_grh if e["kind"] == "zero-count" and e.get("l_function") == key)
-    name = (f"GRH evidence for L(s, chi_{{{key}}}): argument-principle count, no zero missing "
-            "below the isolation height")
+    name = (f"{'RH' if lf['conductor'] == 1 else 'GRH'} evidence for {_lname(lf)}: "
+            "argument-principle count, no zero missing below the isolation height")
     d = thaw(e["data"])
     T = Fraction(height)
     found = sum(1 for z in zeros if exact_ends(ball_of(z))[1] < T)

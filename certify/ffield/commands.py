@@ -14,9 +14,9 @@ its prime field is written ``z`` (see ``certify.ffield.poly``).
 
 from __future__ import annotations
 
-import json
-import sys
 
+from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
+                                target_width, write_json)
 from ..errors import BadInput
 from ..result import CAUTION
 
@@ -26,10 +26,19 @@ MAX_DIGITS = 30
 
 
 def _int(text, what: str) -> int:
-    try:
-        return int(str(text))
-    except (TypeError, ValueError):
-        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+    return parse_int(text, what)
+
+
+def _check_group(args, what: str) -> None:
+    """Refuse before any work when q^deg m (the size of the tables) exceeds the limit."""
+    from .poly import finite_field, parse_field_order, parse_monic
+
+    q = parse_field_order(args.q)
+    if len(str(args.modulus)) > 2000:
+        raise BadInput("the modulus is longer than 2000 characters")
+    m = parse_monic(args.modulus, finite_field(q), "modulus")
+    Limits.of(args).require("group", q ** m.degree(), f"{what} modulo a polynomial of degree "
+                            f"{m.degree()} over F_{q} (q^deg m)")
 
 
 def screen(res) -> str:
@@ -65,24 +74,15 @@ def screen(res) -> str:
 
 
 def _emit_json(obj: dict, path: str) -> None:
-    text = json.dumps(obj, indent=2, default=str)
-    if path == "-":
-        sys.stdout.write(text + "\n")
-    else:
-        try:
-            from ..io import write_atomic
-            write_atomic(path, text + "\n")
-        except ImportError:  # pragma: no cover - older trees without certify.io
-            with open(path, "w", encoding="utf-8") as fh:
-                fh.write(text + "\n")
+    write_json(obj, path)
 
 
 def run_race(args) -> int:
     from .race import certify_ffrace, parse_race, residue_race
 
-    digits = _int(args.digits, "--digits")
-    if not (1 <= digits <= MAX_DIGITS):
-        raise BadInput(f"--digits must be between 1 and {MAX_DIGITS} (got {digits})")
+    check_outputs(args)
+    width = target_width(args)
+    _check_group(args, NAME_RACE)
     leaders = _int(args.leaders, "--leaders")
     if not (0 <= leaders <= 2000):
         raise BadInput(f"--leaders must be between 0 and 2000 (got {leaders})")
@@ -100,15 +100,10 @@ def run_race(args) -> int:
 
         from ..certificate.ffield import certify_ffield
 
-        res, cert = certify_ffield(qn, G, wd, Fraction(1, 10**digits), leader_bound=leaders)
-        if args.json == "-":
-            sys.stdout.write(cert.to_json())
-        else:
-            from ..io import write_atomic
-
-            write_atomic(args.json, cert.to_json())
+        res, cert = certify_ffield(qn, G, wd, Fraction(repr(width)), leader_bound=leaders)
+        write_json(cert.to_dict(), args.json)
     else:
-        res = certify_ffrace(qn, G, wd, target_width=10.0 ** (-digits), leader_bound=leaders)
+        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
     if args.json != "-":
         print(screen(res))
     return 0 if res.target_met else 5
@@ -119,13 +114,15 @@ def run_lpoly(args) -> int:
     from .lpoly import l_polynomial, weil_check
     from .poly import finite_field, parse_field_order, parse_monic, poly_str
 
+    check_outputs(args)
+    _check_group(args, NAME_LPOLY)
     q = parse_field_order(args.q)
     F = finite_field(q)
     m = parse_monic(args.modulus, F, "modulus")
     if q ** m.degree() > 10**6:
         raise BadInput("fflpoly lists every character: use a modulus with q^deg m <= 10^6")
     G = character_group(F, m)
-    limit = _int(args.limit, "--limit")
+    limit = parse_int(args.max_characters, "--max-characters", 0, 10**6)
     out = []
     lines = [G.describe(), f"  field: {F.describe()}"]
     for i, chi in enumerate(G.characters()):
@@ -168,11 +165,11 @@ def register(subparsers) -> None:
     p.add_argument("--residues", action="store_true", help="race non-residues against residues")
     p.add_argument("--mode", default="cumulative", choices=["cumulative", "degree"],
                    help="cumulative: primes of degree <= X; degree: primes of degree exactly X")
-    p.add_argument("--digits", "-d", default="10", metavar="D", help="target width 10^-D (default 10)")
+    add_target(p, 10, MAX_DIGITS)
     p.add_argument("--leaders", default="60", metavar="N",
                    help="report leaders from exact counts up to degree N (0: skip; default 60)")
-    p.add_argument("--json", metavar="PATH", help="write the result as a certificate that "
-                   "`certify verify` re-checks (- for stdout)")
+    add_json(p)
+    add_limits(p)
     p.set_defaults(func=run_race)
 
     p2 = subparsers.add_parser(
@@ -181,6 +178,8 @@ def register(subparsers) -> None:
                     "inverse roots and the check against Weil's theorem.")
     p2.add_argument("q", help="field order (a prime power)")
     p2.add_argument("modulus", help="monic modulus m")
-    p2.add_argument("--limit", default="50", help="at most this many characters (default 50)")
-    p2.add_argument("--json", metavar="PATH", help="write JSON (- for stdout)")
+    p2.add_argument("--max-characters", default="50", metavar="N",
+                    help="list at most this many characters (default 50)")
+    add_json(p2, "the characters and L-polynomials")
+    add_limits(p2)
     p2.set_defaults(func=run_lpoly)

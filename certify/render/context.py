@@ -10,9 +10,8 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from ..arith import ball_from_strings
+from ..arith import ball_from_strings, decimal_down
 from ..certificate.model import Certificate, ball_of
-from ..certificate.build import DEFINITION, NORMALISATION
 from ..certificate.numbers import sci
 
 STATUS_TEXT = {
@@ -31,6 +30,13 @@ def tiny_gaps(cert: Certificate) -> list[dict]:
     lo, hi = cert.lower, cert.upper
     a = cert.answer
     out = []
+    small = a.get("small_side")
+    if small is not None:
+        # the li race: its small side, with the significant digits common to the enclosure
+        certified = f" (certified: {small['certified']})" if small.get("certified") else ""
+        out.append({"what": small["name"] + certified, "lower": small["lower"],
+                    "upper": small["upper"]})
+        return out
     if lo > Fraction(99, 100):
         out.append({"what": "1 - delta", "lower": a["gap_to_one"]["lower"],
                     "upper": a["gap_to_one"]["upper"]})
@@ -40,6 +46,18 @@ def tiny_gaps(cert: Certificate) -> list[dict]:
         out.append({"what": "delta - 1/2", "lower": a["gap_to_half"]["lower"],
                     "upper": a["gap_to_half"]["upper"]})
     return out
+
+
+def _digits_text(a: dict) -> str:
+    """What the answer's digits line shows: the exact value, certified decimals, or "(none)".
+
+    An integer part alone ("0" for [0.4999.., 0.5000..]) is not shown as digits.
+    """
+    ex = a.get("exact")
+    if isinstance(ex, dict) and ex:
+        return f"{ex['value']} exactly ({ex['reason']})"
+    d = a["certified_digits"]
+    return d if "." in d and d.split(".", 1)[1] else "(none)"
 
 
 def _gaps_from_ends(lo: Fraction, hi: Fraction) -> list[dict]:
@@ -130,31 +148,37 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     q = cert.question
     groups = []
     for g in cert.spectrum["groups"]:
-        ls = [f"L(s, chi_{{{lf['conductor']},{lf['label']}}})" for lf in g["l_functions"]]
+        ls = ["zeta(s)" if lf["conductor"] == 1 else f"L(s, chi_{{{lf['conductor']},{lf['label']}}})"
+              for lf in g["l_functions"]]
         first = [ball_from_strings(z["mid"], z["rad"]).str(15, radius=False) for z in g["zeros"][:3]]
         groups.append({
             "label": g["label"], "l_functions": ", ".join(ls), "zeros": len(g["zeros"]),
-            "height": f"{float(g['isolation_height']):.6g}", "moments": g["moments"]["count"],
+            "height": decimal_down(Fraction(g["isolation_height"]), 4), "moments": g["moments"]["count"],
             "scale": _short_ball(g["scale"], 10), "first_zeros": ", ".join(first),
         })
-    from ..certificate.build import (LI_STATEMENT, answer_fields, certificate_caution,
-                                     certificate_references, evidence_text, grh_statement, reproduce_command)
+    from ..certificate.build import (answer_fields, certificate_caution, certificate_references,
+                                     evidence_text, hypothesis_statements, question_record,
+                                     reproduce_command)
     from ..certificate.verify import SHOWN_PARAMETERS, question_from_record
+    from ..race.question import riemann_hypothesis_name
 
     # every sentence is regenerated from the stored data (as verify does), never copied
     question = question_from_record(q)
     digits = int(cert.parameters["digits_requested"])
-    canonical = {"GRH": grh_statement(cert.spectrum), "LI": LI_STATEMENT}
+    rh = riemann_hypothesis_name(question)
+    qrec = question_record(question)
+    canonical = hypothesis_statements(cert.spectrum, rh)
     hyps = []
     for h in cert.hypotheses:
         hyps.append({"name": h["name"], "statement": canonical.get(h["name"], h["statement"]),
                      "status": "assumed", "status_text": STATUS_TEXT["assumed"],
-                     "evidence": [evidence_text(e) for e in h["evidence"]],
+                     "evidence": [evidence_text(e, rh) for e in h["evidence"]],
                      "reference": ""})
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = ", ".join(f"w_{a} = {w}" for a, w in question.weights)
+    weights = (", ".join(f"w_{a} = {w}" for a, w in question.weights)
+               or "none (pi(x) against li(x): zeta alone)")
     derived = answer_fields(cert.lower, cert.upper, digits)
     a = {**a, **derived}
     params = [(k, v if not isinstance(v, (list, tuple)) else ", ".join(map(str, v)))
@@ -166,9 +190,9 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
                      "setting_line": f"Race: {question.kind} modulo {question.modulus}; "
                                      f"weights {weights}",
                      "statement": question.statement, "weights": weights,
-                     "definition": DEFINITION, "normalisation": NORMALISATION},
+                     "definition": qrec["definition"], "normalisation": qrec["normalisation"]},
         "answer": {"lower": a["enclosure"]["lower"], "upper": a["enclosure"]["upper"],
-                   "width": a["width"], "digits": a["certified_digits"] or "(none)",
+                   "width": a["width"], "digits": _digits_text(a),
                    "target": a["target_width"], "target_met": a["target_met"],
                    "mean": a["mean"], "variance": _short_ball(a["variance"], 15), "exact": ""},
         "gaps": tiny_gaps(cert),
@@ -183,6 +207,6 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
                        "input_digest": cert.provenance["input_digest"]},
         "verify_command": f"certify verify {file_name}",
         "references": certificate_references(),
-        "caution": certificate_caution(),
+        "caution": certificate_caution(rh),
         "schema_version": cert.schema_version,
     }
