@@ -54,7 +54,7 @@ def _digits_text(a: dict) -> str:
     An integer part alone ("0" for [0.4999.., 0.5000..]) is not shown as digits.
     """
     ex = a.get("exact")
-    if isinstance(ex, dict) and ex:
+    if ex:
         return f"{ex['value']} exactly ({ex['reason']})"
     d = a["certified_digits"]
     return d if "." in d and d.split(".", 1)[1] else "(none)"
