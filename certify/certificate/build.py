@@ -14,7 +14,8 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import certified_digits, certified_significant, decimal_down, decimal_up, workprec
+from ..arith import (certified_digits, certified_significant, decimal_down, decimal_up, sci_down,
+                     workprec)
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
 from ..races import DEFAULT_DIGITS, PUBLISHED_RH, RaceResult, certify_race
@@ -235,7 +236,8 @@ def grh_statement(spectrum) -> str:
 
 
 def _g(x) -> str:
-    return f"{float(Fraction(str(x))):.6g}"
+    """A height or lower bound in a sentence: rounded down (the sentence then claims less)."""
+    return decimal_down(Fraction(str(x)), 4)
 
 
 def evidence_text(item, rh: str = "GRH") -> str:
@@ -252,13 +254,13 @@ def evidence_text(item, rh: str = "GRH") -> str:
     if kind == "zero-count":
         if not d.get("established"):
             return f"{L}: argument-principle count to the isolation height not established"
-        T = _g(d["height"])
+        T, Tx = _g(d["height"]), str(d["height"])
         if d["verified"]:
             return (f"{L}: {rh} verified to height {T}: the argument principle counts exactly "
-                    f"{d['count']} zeros with 0 < gamma < {T} in the critical strip, and "
+                    f"{d['count']} zeros with 0 < gamma < {Tx} in the critical strip, and "
                     f"{d['sign_changes']} sign changes of Z were found there, so all of them lie "
                     "on the critical line, are simple, and none is missing from the list")
-        return (f"{L}: the argument principle counts {d['count']} zeros with 0 < gamma < {T} but "
+        return (f"{L}: the argument principle counts {d['count']} zeros with 0 < gamma < {Tx} but "
                 f"{d['sign_changes']} sign changes were found: {rh} is NOT verified to this height")
     if kind == "moment-completeness":
         return (f"{item['group']}: assuming {rh}, no ordinate below {_g(d['complete_below'])} is "
@@ -282,10 +284,10 @@ def evidence_text(item, rh: str = "GRH") -> str:
         if d["candidate"] is None:
             text = (f"integer-relation search (LLL) among the first {K} ordinates: none found; "
                     f"every integer relation among them has Euclidean norm >= "
-                    f"{_g(d['norm_lower_bound'])}, so none has all |k_i| <= "
+                    f"{sci_down(Fraction(d['norm_lower_bound']), 6)}, so none has all |k_i| <= "
                     f"{d['coefficient_bound']}")
             if d["linear_form_lower_bound"] is not None:
-                text += (f"; |sum k_i gamma_i| >= {float(Fraction(d['linear_form_lower_bound'])):.3e} "
+                text += (f"; |sum k_i gamma_i| >= {sci_down(Fraction(d['linear_form_lower_bound']), 3)} "
                          "for every such non-zero k")
             return text
         return (f"integer-relation search (LLL) among the first {K} ordinates: candidate "
