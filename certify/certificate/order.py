@@ -1,7 +1,7 @@
 """Certificates of orderings of three or more classes (races among several classes).
 
 The same model as two-way races (:class:`~certify.certificate.model.Certificate`,
-schema version 1, kind ``dirichlet-race``) with question kind ``ordering``:
+schema version 2), kind ``order-race``, question kind ``ordering``:
 the question stores the classes in order; the answer stores the mean vector
 (comma-separated) and the exact covariance matrix; each spectral group stores
 its direction vector v in C^(r-1) beside the zeros and moments; the
@@ -18,23 +18,26 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import acb, arb, certified_digits, decimal_down, decimal_up, workprec
+import time
+
+from ..arith import arb, certified_digits, decimal_down, decimal_up, workprec
 from ..density.orthant import VectorGroup, VectorVariable, covariance, orthant_enclosure
 from ..race.order import OrderQuestion, mean_vector, order_groups, ordering
-from ..result import CAUTION
 from ..spectrum.moments import zero_power_sums
 from ..spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 from ..source.dirichlet import primitive_character
 from ..errors import Inconsistent
-from .build import RELATION_SIZE, _hypotheses, _spectrum_record
+from .build import (RELATION_SIZE, _hypotheses, _spectrum_record, answer_fields,
+                    certificate_caution, certificate_references)
 from .model import Certificate, ball_of, ball_record
-from .numbers import places_for, sci, sci_bound
+from .numbers import places_for, sci_bound
 
 NORMALISATION = ("E(x;a) = (log x / sqrt x)(phi(q) pi(x;q,a) - pi(x)); under GRH and LI the vector "
                  "Y_i = E(x;a_i) - E(x;a_{i+1}) (i = 1..r-1) has the limit law of "
                  "mu + sum_chi sum_{gamma_chi > 0} 2 Re(v_chi U_gamma)/sqrt(1/4 + gamma^2), U_gamma "
                  "independent uniform on the unit circle, v_{chi,i} = conj chi(a_i) - conj chi(a_{i+1}), "
-                 "mu_i = c(q,a_{i+1}) - c(q,a_i).")
+                 "mu_i = c(q,a_{i+1}) - c(q,a_i) (as in Chebyshev's bias, Experimental Mathematics 3 "
+                 "(1994); docs/method.md, section 10).")
 DEFINITION = ("delta = lim_{X -> oo} (1/log X) * integral over {2 <= x <= X : pi(x;q,a_1) > ... > "
               "pi(x;q,a_r)} of dx/x (logarithmic density), which equals P(Y_i > 0 for all i) for "
               "the limit law above.")
@@ -62,6 +65,7 @@ def _mean_text(mean) -> str:
 
 
 def answer_record(result) -> dict:
+    """The enclosure widened outward to printable decimals; mean vector and exact covariance."""
     lo, hi = result.density.lower, result.density.upper
     width = hi - lo
     places = places_for(width)
@@ -72,13 +76,7 @@ def answer_record(result) -> dict:
     return {
         "enclosure": {"lower": lower, "upper": upper},
         "engine_ball": ball_record(result.ball),
-        "width": sci(fhi - flo, 3, up=True),
-        "certified_digits": certified_digits(flo, fhi),
-        "gap_to_half": {"lower": sci(flo - Fraction(1, 2), 4, up=False),
-                        "upper": sci(fhi - Fraction(1, 2), 4, up=True)},
-        "gap_to_one": {"lower": sci(1 - fhi, 4, up=False), "upper": sci(1 - flo, 4, up=True)},
-        "target_width": f"1e-{result.digits_requested}",
-        "target_met": bool(fhi - flo <= Fraction(1, 10**result.digits_requested)),
+        **answer_fields(flo, fhi, result.digits_requested),
         "mean": _mean_text(result.mean),
         "variance": ball_record(result.covariance[0][0]),
         "covariance": [[ball_record(c) for c in row] for row in result.covariance],
@@ -108,10 +106,6 @@ def order_certificate(result, store: SpectrumStore, consistency=(),
     prov["timings_seconds"] = dict(result.timings)
     budget = [{"name": e.name, "bound": sci_bound(e.bound, 3), "description": e.description}
               for e in result.budget]
-    refs = list(result.references) + [
-        "Lattice reduction: Factoring polynomials with rational coefficients, Mathematische "
-        "Annalen 261 (1982).",
-    ]
     return Certificate(
         question=question_record(result.question),
         answer=answer_record(result),
@@ -120,8 +114,9 @@ def order_certificate(result, store: SpectrumStore, consistency=(),
         parameters=params,
         spectrum=spectrum,
         provenance=prov,
-        references=refs,
-        caution=(result.caution or CAUTION) + " Re-check this file with `certify verify`.",
+        references=certificate_references(),
+        caution=certificate_caution("GRH"),
+        kind="order-race",
     )
 
 
@@ -139,8 +134,38 @@ def certify_order_with_certificate(question: OrderQuestion, digits: int,
 # re-verification
 # ---------------------------------------------------------------------------
 
+def verify_order_certificate(cert: Certificate):
+    """Re-check an ``order-race`` certificate from its stored data (a VerifyReport; never raises)."""
+    from ..errors import CertifyError
+    from .verify import VerifyReport
+
+    t0 = time.time()
+    report = VerifyReport(cert.label)
+    try:
+        _check_limits(cert)
+        verify_order(cert, report)
+    except CertifyError as exc:
+        report.add("re-verification", False, f"{type(exc).__name__}: {exc}")
+    except (KeyError, TypeError, ValueError, IndexError, ZeroDivisionError) as exc:
+        report.add("re-verification", False, f"malformed certificate data ({type(exc).__name__}: {exc})")
+    report.seconds = time.time() - t0
+    report.original_seconds = cert.provenance.get("timings_seconds", {}).get("total")
+    return report
+
+
+def _check_limits(cert: Certificate) -> None:
+    """The bounds of two-way races (precision, moments, zeros), and at most 5 classes."""
+    from ..errors import BadInput
+    from ..race.order import MAX_CLASSES
+    from .verify import check_limits
+
+    if not 3 <= len(cert.question["classes"]) <= MAX_CLASSES:
+        raise BadInput(f"an ordering certificate has 3..{MAX_CLASSES} classes")
+    check_limits(cert)
+
+
 def verify_order(cert: Certificate, report) -> None:
-    """Re-check an ordering's certificate (called by verify_certificate)."""
+    """Re-check an ordering's certificate into ``report``."""
     from .verify import _check_zero_list, _contains, _overlap, _q, _verify_hypotheses
 
     params = cert.parameters
