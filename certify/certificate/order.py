@@ -263,3 +263,32 @@ def verify_order(cert: Certificate, report) -> None:
     report.add("consistency checks recorded with the certificate all passed",
                all(c.get("ok") for c in cons), "a recorded consistency check failed")
     _verify_hypotheses(cert, report, group_data, prec)
+
+
+def verify_family(data: dict, source: str) -> list:
+    """Reports for an ``order-family`` document: each certificate, then the family's checks.
+
+    The family report recomputes, from the verified certificates' stored enclosures, that
+    the orderings are exactly the r! orderings of the classes and that their enclosures sum
+    to an interval containing 1 (the pairwise marginal checks are shown as recorded; each
+    certificate's own verification re-checks that none failed).
+    """
+    from itertools import permutations
+
+    from .verify import VerifyReport
+
+    certs = [Certificate.from_dict(c, f"{source}: ordering {i + 1}")
+             for i, c in enumerate(data["certificates"])]
+    reports = [verify_order_certificate(c) for c in certs]
+    fam = VerifyReport(f"orderings of {', '.join(map(str, data['classes']))} mod {data['modulus']}")
+    want = sorted(permutations(int(c) for c in data["classes"]))
+    have = sorted(tuple(c.question["classes"]) for c in certs)
+    fam.add("family: exactly the r! orderings of the classes", have == want and all(
+        c.question["modulus"] == data["modulus"] for c in certs), f"stored {have}")
+    lo = sum((c.lower for c in certs), Fraction(0))
+    hi = sum((c.upper for c in certs), Fraction(0))
+    fam.add("family: the stored enclosures sum to an interval containing 1", lo <= 1 <= hi,
+            f"sum in [{float(lo):.12f}, {float(hi):.12f}]")
+    fam.add("family: every ordering's certificate verified", all(r.ok for r in reports),
+            "see the certificates' reports")
+    return reports + [fam]

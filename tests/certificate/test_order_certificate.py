@@ -8,7 +8,7 @@ import pytest
 from certify.certificate.model import Certificate, read_certificate
 from certify.certificate.order import order_certificate
 from certify.certificate.referee import parse_race
-from certify.certificate.verify import verify_certificate
+from certify.certificate.dispatch import verify_any as verify_certificate
 from certify.cli import main
 from certify.orders import certify_orderings
 from certify.race.order import ordering
@@ -33,7 +33,7 @@ def test_certificate_round_trip_and_verify(family):
     rep = verify_certificate(back)
     assert rep.ok, [c for c in rep.checks if not c.ok]
     names = " ".join(c.name for c in rep.checks)
-    assert "direction vector" in names and "covariance" in names and "hypothesis LI listed" in names
+    assert "direction vector" in names and "covariance" in names and "hypotheses: exactly GRH and LI" in names
 
 
 def test_tampered_certificates_fail(family):
@@ -89,3 +89,18 @@ def test_cli_order_certificate(tmp_path):
     cert = read_certificate(str(path))
     assert cert.question["label"] == "delta(12;5,7,11)"
     assert verify_certificate(cert).ok
+
+
+def test_family_document_verifies_and_detects_a_missing_ordering(tmp_path):
+    path = tmp_path / "fam.json"
+    assert main(["order", "5", "1", "2", "4", "--all", "--digits", "3", "--json", str(path)]) == 0
+    from certify.certificate.dispatch import verify_paths
+
+    outs = verify_paths([str(path)])
+    assert len(outs) == 7 and all(o.report.ok for o in outs)
+    data = json.loads(path.read_text())
+    data["certificates"] = data["certificates"][:-1]
+    path.write_text(json.dumps(data))
+    outs = verify_paths([str(path)])
+    fam = outs[-1].report
+    assert not fam.ok and any("r! orderings" in c.name and not c.ok for c in fam.checks)
