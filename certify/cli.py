@@ -24,6 +24,7 @@ COMMAND_MODULES = [
     "certify.commands.races",
     "certify.commands.documents",
     "certify.commands.batch",
+    "certify.commands.lirace",
     "certify.ffield.commands",
     "certify.curves.commands",
     "certify.commands.ecrace",

@@ -11,7 +11,8 @@ from ..commands.options import (Limits, add_json, add_limits, add_out, add_progr
                                 check_json_path, check_outputs, parse_float, parse_int,
                                 progress, progress_enabled, target_width)
 from ..errors import BadInput
-from ..result import CAUTION
+from ..arith import interval_text
+from ..result import CAUTION, ExactValue, caution_text, headline_text
 
 
 def _float(text: str, what: str) -> float:
@@ -81,18 +82,20 @@ def curve_screen(R) -> str:
         f"  L(E, u) = {L.as_text()}",
         f"  from point counts of degree <= {L.degrees_used}, confirmed by degrees {list(L.degrees_confirmed)}",
         f"race ({R.mode}): {R.statement()}",
-        f"  density = {(d.digits()[:42] + ('  (exact: ' + str(d.lower) + ')' if d.width == 0 else '')) or '(no digit certified)'}   enclosure [{d.lower_str(places)}, {d.upper_str(places)}]"
-        f"   width {float(d.width):.2e}",
+        "  " + headline_text("density", d, ExactValue(d.lower, f"an enclosure of width 0: "
+                                                             f"{R.parameters.get('engine')}")
+                             if d.width == 0 else None),
+        f"  enclosure {d.interval_text(places)}   width <= {d.width_text()}",
         f"  mean of the limit law {R.mean().str(8)} (period {R.variable.period} in X); "
         f"{len(R.variable.weights)} non-torsion angle(s)",
         "  error budget:",
     ]
     for e in R.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
     lines.append("  hypotheses:")
     for h in R.hypotheses:
         lines.append(f"    [{h.status}] {h.name}: {h.statement}")
-    lines.append(f"  {CAUTION}")
+    lines.append(f"  {caution_text(R.hypotheses)}")
     return "\n".join(lines)
 
 
@@ -124,8 +127,7 @@ def family_screen(results, c: float) -> str:
     for r in results:
         s = r.summary()
         mean = f"[{s['mean']['lower']}, {s['mean']['upper']}]" if s["mean"] else "-"
-        within = s["share_within_c_over_d_of_half"]
-        w = f"[{within['lower']:.3f}, {within['upper']:.3f}]" if within else "-"
+        w = interval_text(r.within[0], r.within[1], 3) if r.within is not None else "-"
         lines.append(
             f"d = {r.twist_degree}: {s['certified']}/{s['members']} members certified "
             f"({'sample of ' + str(s['members']) + ' from ' if r.sampled else 'whole family of '}{s['population']}); "
@@ -134,7 +136,7 @@ def family_screen(results, c: float) -> str:
             f"{s['relation_case']} with relations among the angles ({s['wide_enclosures_over_0.01']} enclosures "
             f"wider than 0.01); {s['seconds']:.1f} s")
     lines.append("  hypotheses: RH for every L(E_f, u) [theorem]; LI for each member [assumed, LLL evidence]")
-    lines.append(f"  {CAUTION}")
+    lines.append(f"  {caution_text(results[-1].hypotheses) if results else CAUTION}")
     return "\n".join(lines)
 
 

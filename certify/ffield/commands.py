@@ -18,7 +18,7 @@ from __future__ import annotations
 from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
                                 target_width, write_json)
 from ..errors import BadInput
-from ..result import CAUTION
+from ..result import ExactValue, caution_text, headline_text
 
 NAME_RACE = "ffrace"
 NAME_LPOLY = "fflpoly"
@@ -44,11 +44,12 @@ def _check_group(args, what: str) -> None:
 def screen(res) -> str:
     """One screen of text for a function-field race result."""
     d = res.density
-    places = min(d.places(), 30)
+    exact = (ExactValue(d.lower, f"an enclosure of width 0: {res.parameters.get('method')}")
+             if d.width == 0 else None)
     lines = [
-        f"{res.question.label} = {d.digits() or '(no digit certified)'}",
+        headline_text(res.question.label, d, exact, res.target_met, f"{res.target_width:.0e}"),
         f"  {res.question.statement}",
-        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        f"  enclosure  {d.interval_text(min(d.places(), 30))}   width <= {d.width_text()}"
         + ("" if res.target_met else f"   (target {res.target_width:.0e} NOT met)"),
         f"  case: {res.case}; {res.closure.describe()}; method: {res.parameters.get('method')}",
         f"  {len(res.l_data)} L-polynomials, {len(res.points)} distinct roots of modulus sqrt(q) "
@@ -59,7 +60,7 @@ def screen(res) -> str:
                      + "; ".join(str(list(r)) for r in res.relations))
     lines.append("  error budget:")
     for e in res.budget:
-        lines.append(f"    {e.name:<40} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<40} <= {e.bound_text()}")
     lines.append("  hypotheses:")
     for h in res.hypotheses:
         lines.append(f"    {h.name} [{h.status}]: {h.statement}")
@@ -68,8 +69,7 @@ def screen(res) -> str:
         led = ", ".join(f"{k}: {len(v)}" for k, v in L.degrees_led.items())
         lines.append(f"  exact counts to degree {L.bound} ({L.mode}): first leader change at "
                      f"{L.first_change if L.first_change else 'none'}; degrees led: {led}")
-    lines.append(f"  {CAUTION} Here Weil's theorem is proven; LI or the completeness of the "
-                 "listed relations is assumed.")
+    lines.append(f"  {caution_text(res.hypotheses)}")
     return "\n".join(lines)
 
 
