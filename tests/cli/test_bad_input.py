@@ -150,6 +150,10 @@ CASES = [
     ["ecrace", "[0,-1,1,-10,-20]", "--digits", "0"], ["ecrace", "[0,-1,1,-10,-20]", "--observe", "-5"],
     ["ecrace", "[0,-1,1,-10,-20]", "--json", ""], ["ecrace", "[0,-1,1,-10,-20]", "--json", "{dir}"],
     ["ecrace", "[0,-1,1,-10," + HUGE + "]"],
+    # -- lirace -----------------------------------------------------------------------
+    ["lirace", "sideways"], ["lirace", "--digits", "0"], ["lirace", "--sig-digits", "0"],
+    ["lirace", "--sig-digits", "1e400"], ["lirace", "--json", ""], ["lirace", "--json", "{dir}"],
+    ["lirace", "--digits", HUGE],
     # -- the top level ------------------------------------------------------------------
     [], ["nosuchcommand"], ["--no-such-flag"],
 ]
