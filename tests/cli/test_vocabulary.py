@@ -16,13 +16,13 @@ from certify.cli import build_parser
 # commands that compute a result: --json PATH; that write files: --out DIR;
 # that aim at a target: --digits D; that can run long: a progress display.
 PRODUCES_RESULT = {"race", "residues", "weighted", "certificate", "verify", "check", "claims",
-                   "demo", "table", "ffrace", "fflpoly", "curve", "twists", "ecrace", "lirace"}
+                   "demo", "table", "ffrace", "fflpoly", "curve", "twists", "ecrace", "lirace", "order"}
 WRITES_FILES = {"certificate", "render", "check", "claims", "demo", "table", "twists"}
 HAS_TARGET = {"race", "residues", "weighted", "certificate", "check", "claims", "table", "ffrace",
-              "curve", "twists", "ecrace", "lirace"}
+              "curve", "twists", "ecrace", "lirace", "order"}
 LONG_RUNNING = {"verify", "claims", "table", "twists"}
 SIZE_LIMITED = {"race", "residues", "weighted", "certificate", "verify", "check", "claims", "table",
-                "ffrace", "fflpoly", "curve", "twists"}
+                "ffrace", "fflpoly", "curve", "twists", "order"}
 
 # the one name for each thing, and the names that must not appear for it
 CANONICAL = {
