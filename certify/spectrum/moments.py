@@ -120,6 +120,14 @@ class DirichletL(AnalyticL):
         return int(self.chi.order()) <= 2
 
     def hardy_z(self, t: arb, prec: int) -> arb:
+        """Z(t, chi) by Arb (Hurwitz sums, cost ~ q), or for a large conductor a real
+        function with the same signs by the smoothed sum (cost ~ sqrt q; afe.py)."""
+        from .afe import AFE_MIN_CONDUCTOR, SmoothedL
+
+        if self.conductor >= AFE_MIN_CONDUCTOR:
+            if getattr(self, "_smoothed", None) is None:
+                self._smoothed = SmoothedL(self.conductor, self.label, self.parity)
+            return self._smoothed.hardy_y(t, prec)
         with workprec(prec):
             return self.chi.hardy_z(t).real
 
@@ -154,6 +162,14 @@ class ZetaL(AnalyticL):
         return self._chi
 
     def hardy_z(self, t: arb, prec: int) -> arb:
+        """Z(t, chi) by Arb (Hurwitz sums, cost ~ q), or for a large conductor a real
+        function with the same signs by the smoothed sum (cost ~ sqrt q; afe.py)."""
+        from .afe import AFE_MIN_CONDUCTOR, SmoothedL
+
+        if self.conductor >= AFE_MIN_CONDUCTOR:
+            if getattr(self, "_smoothed", None) is None:
+                self._smoothed = SmoothedL(self.conductor, self.label, self.parity)
+            return self._smoothed.hardy_y(t, prec)
         with workprec(prec):
             return self.chi.hardy_z(t).real
 
