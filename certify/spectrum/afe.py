@@ -120,6 +120,16 @@ class SmoothedL:
             eps = self.root_number(p)
             return 2 * (A / eps.sqrt()).real
 
+    def hardy_z(self, t: arb, prec: int) -> arb:
+        """Z(t, chi) = Y(t) / P(t), P(t) = (q/pi)^((1/2+kappa)/2) |Gamma((1/2+it+kappa)/2)| > 0."""
+        tf = abs(float(t.mid()))
+        p = prec + int(math.pi * tf / 4 / math.log(2)) + 14
+        with workprec(p):
+            y = self.hardy_y(t, prec)
+            w = acb(arb(1) / 2 + self.parity, t) / 2
+            P = (arb(self.q) / arb.pi()) ** w.real * abs(w.gamma())
+            return y / P
+
     def lambda_value(self, s: acb, prec: int) -> acb:
         """Lambda(s, chi) for 0 <= Re s <= 1 (both sums)."""
         with workprec(prec + 10):
