@@ -388,10 +388,10 @@ def conductor_power_sums(conductor: int, labels, count: int, abs_accuracy_bits: 
         f"could not be enclosed to 2^-{need} below {max_prec} bits")
 
 
-# measured crossover (bench/bench_moments.py): the batch costs about phi(q) Hurwitz
-# jets and one DFT, a single character about the same Hurwitz work; batching pays
-# as soon as a few characters of one conductor are wanted.
-BATCH_MIN_CHARACTERS = 2
+# measured crossover (bench/bench_large.py, loaded machine): the batch for all characters
+# of q = 61, 101, 211 costs about 3 one-character computations, so batching pays from
+# about 4 characters of one conductor.
+BATCH_MIN_CHARACTERS = 4
 
 
 def prefer_batch(conductor: int, wanted: int) -> bool:
