@@ -17,7 +17,7 @@ from fractions import Fraction
 from functools import lru_cache
 
 from . import __version__
-from .arith import arb, decimal_down, flint_version, sci_down, sci_up, workprec
+from .arith import arb, bound_text, decimal_down, flint_version, sci_down, sci_up, workprec
 from .density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.question import RaceQuestion, mean_of, spectral_groups
@@ -448,7 +448,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         # refine the plan where the budget says
         b = {e.name: e.bound_float for e in dens.budget}
         worst = max(b, key=b.get)
-        last_reason = f"largest error term: {worst} ({b[worst]:.2e})"
+        worst_bound = next(e.bound for e in dens.budget if e.name == worst)
+        last_reason = f"largest error term: {worst} (<= {bound_text(worst_bound)})"
         if worst == "residual zeros" or dens.parameters.get("fallback_frequencies", 0):
             # grow towards the frequency range the engine needed, at most doubling per round
             plan.xi_max = max(plan.xi_max, min(dens.parameters["xi_max"], 2 * plan.xi_max))

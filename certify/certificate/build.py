@@ -14,7 +14,8 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import certified_digits, certified_significant, decimal_down, decimal_up, workprec
+from ..arith import (certified_digits, certified_significant, decimal_down, decimal_up, sci_down,
+                     workprec)
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
 from ..races import DEFAULT_DIGITS, PUBLISHED_RH, RaceResult, certify_race
@@ -205,13 +206,15 @@ def _zero_count_evidence(lf: dict, zeros: list) -> dict:
                 "text": f"{name}: argument-principle count not established ({exc})",
                 "data": {"established": False, "height": _exact_decimal(T)}}
     if N == found:
-        text = (f"{name}: {rh} verified to height {float(T):.6g}: the argument "
-                f"principle counts exactly {N} zeros with 0 < gamma < {float(T):.6g} in the critical "
+        text = (f"{name}: {rh} verified to height {decimal_down(Fraction(T), 4)}: the argument "
+                f"principle counts exactly {N} zeros with 0 < gamma < {_exact_decimal(Fraction(T))} "
+                "in the critical "
                 f"strip, and {found} sign changes of Z were found there, so all of them lie on the "
                 "critical line and are simple")
     else:
         text = (f"{name}: the argument principle counts {N} zeros with "
-                f"0 < gamma < {float(T):.6g} but {found} sign changes were found: GRH is NOT "
+                f"0 < gamma < {_exact_decimal(Fraction(T))} but {found} sign changes were found: "
+                "GRH is NOT "
                 "verified to this height")
     return {"kind": "zero-count", "l_function": key, "text": text,
             "data": {"established": True, "height": _exact_decimal(T), "count": N,
@@ -241,7 +244,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                 "kind": "zeros-on-critical-line",
                 "l_function": f"{c}.{n}",
                 "text": (f"{l_name(c, n)}: {count} zeros on the critical line with ordinates "
-                         f"in (0, {float(g.height):.6g}], each certified by a sign change of the "
+                         f"in (0, {decimal_up(Fraction(g.height), 4)}], each certified by a sign "
+                         "change of the "
                          "Hardy Z-function at the two ends of its enclosure"),
                 "data": {"conductor": c, "label": n, "zeros": count,
                          "isolation_height": rec["isolation_height"]},
@@ -252,7 +256,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
         grh_ev.append({
             "kind": "moment-completeness",
             "group": g.label,
-            "text": (f"{g.label}: assuming {rh}, no ordinate below {float(h):.6g} is missing from "
+            "text": (f"{g.label}: assuming {rh}, no ordinate below {decimal_down(Fraction(h), 4)} "
+                     "is missing from "
                      f"the isolated list: a missing one would exceed the exact residual power sum "
                      f"R_{cons['moment_index']} by itself (zeros off the line are not counted; "
                      f"this is not a proof of {rh})"),
@@ -298,10 +303,10 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
         if rs["candidate"] is None:
             text = (f"integer-relation search (LLL) among the first {K} ordinates: none found; "
                     f"every integer relation among them has Euclidean norm >= "
-                    f"{float(rs['norm_lower_bound']):.6g}, so none has all |k_i| <= "
+                    f"{sci_down(Fraction(rs['norm_lower_bound']), 6)}, so none has all |k_i| <= "
                     f"{rs['coefficient_bound']}")
             if rs["linear_form_lower_bound"] is not None:
-                text += (f"; |sum k_i gamma_i| >= {float(rs['linear_form_lower_bound']):.3e} "
+                text += (f"; |sum k_i gamma_i| >= {sci_down(Fraction(rs['linear_form_lower_bound']), 3)} "
                          "for every such non-zero k")
         else:
             text = (f"integer-relation search (LLL) among the first {K} ordinates: candidate "

@@ -39,7 +39,7 @@ def screen(result) -> str:
     k, text = result.significant
     lines = [
         f"{result.question.label}: {result.question.statement}",
-        f"  delta      in [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}",
+        f"  delta      in {d.interval_text(places)}   width <= {d.width_text()}",
         f"  {small_side_text(result)}",
     ]
     if result.sig_digits_requested and not result.sig_target_met:
@@ -55,7 +55,7 @@ def screen(result) -> str:
                  f"total {result.timings.get('total', 0):.2f} s")
     lines.append("  error budget (absolute, on delta):")
     for e in result.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
     lines.append("  hypotheses (assumed, not proven):")
     for h in result.hypotheses:
         lines.append(f"    {h.name}: {h.statement}")
