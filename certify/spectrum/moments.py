@@ -15,7 +15,7 @@ The Riemann zeta function is the character of conductor 1 (label 1, even):
 there Lambda is replaced by the entire function
 xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), whose zeros are exactly the
 non-trivial zeros of zeta, and the same formula holds with c_k the (real)
-coefficients of log xi(1 + x) (docs/method.md, section 2c).
+coefficients of log xi(1 + x) (docs/method.md, section 2b).
 
 The coefficients come from python-flint's power series of L(s, chi) (for
 zeta: of the deflated series zeta(s) - 1/(s - 1)) and of log Gamma; the alternating sum loses about m * log2(m) bits, so the
@@ -142,7 +142,7 @@ class ZetaL(AnalyticL):
     """The Riemann zeta function as an :class:`AnalyticL` (the character of conductor 1).
 
     Lambda is xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), entire of order 1
-    with xi(1 - s) = xi(s) (docs/method.md, section 2c); Z(t) is Arb's Hardy
+    with xi(1 - s) = xi(s) (docs/method.md, section 2b); Z(t) is Arb's Hardy
     Z-function of the trivial character mod 1, e^{i theta(t)} zeta(1/2 + i t).
     """
 
