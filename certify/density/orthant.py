@@ -133,7 +133,9 @@ class DirectionalTail:
         G = len(var.groups)
         t_lo = np.zeros((len(patches), G))
         self.t_arb = [[None] * G for _ in patches]
-        rad = arb(0, h)
+        # the centres -1 + h(2m+1) are floats (rounded): a radius h (1 + 2^-20) makes the
+        # boxes overlap, so that no direction falls between two of them
+        rad = arb(0, h * (1 + 2.0**-20))
         for p, (face, eta) in enumerate(patches):
             coords = [arb(1) if i == face else arb(eta[i]) + rad for i in range(d)]
             for gi, g in enumerate(var.groups):
