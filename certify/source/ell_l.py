@@ -150,7 +150,7 @@ class EllipticL(AnalyticL):
         bits = prec + cancel + 10
         M = terms_for(N, bits, sig_hi, t0, sig_lo)
         a = self.an(M)
-        wp = int(prec + cancel + 2 * math.log2(M + 2) + 30 + extra_bits)
+        wp = int(prec + cancel + math.log2(M + 2) + 14 + extra_bits)
         with workprec(wp):
             A = arb(N).sqrt() / (2 * arb.pi())
             T0 = arb(t0)
@@ -164,7 +164,7 @@ class EllipticL(AnalyticL):
                 xf = n / self.A_float
                 # |term| is about e^-x: it needs only enough relative precision
                 # for an absolute error 2^-wp (never below prec + guard bits)
-                wpn = max(int(prec + 2 * math.log2(M + 2) + 30 + extra_bits),
+                wpn = max(int(prec + math.log2(M + 2) + 14 + extra_bits),
                           wp - int(max(xf - 2, 0) * LOG2E))
                 with workprec(wpn):
                     x = arb(n) / A
@@ -217,7 +217,7 @@ class EllipticL(AnalyticL):
         return mean_spacing_of(self.conductor, 2, t)
 
     def prec_scale(self, t: float) -> float:
-        return 2 + self.conductor * (t + 2) ** 2
+        return 2 + math.sqrt(self.conductor) * (t + 2)
 
     # -- jets -------------------------------------------------------------------
 
