@@ -17,7 +17,7 @@ from fractions import Fraction
 from functools import lru_cache
 
 from . import __version__
-from .arith import arb, decimal_down, flint_version, sci_down, sci_up, workprec
+from .arith import arb, bound_text, decimal_down, flint_version, sci_down, sci_up, workprec
 from .density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.question import RaceQuestion, mean_of, spectral_groups
@@ -190,8 +190,15 @@ def _model_ordinates(conductor: int, height: float) -> tuple[float, ...]:
         k += 1
 
 
-def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
+def plan_frequency_range(groups, V: float, mu: float, tau: float,
+                         height_factor: float | None = None) -> float:
     """Frequency range where the truncation bound falls below tau/8, on model zeros.
+
+    With ``height_factor`` h, a group of scale s is taken to isolate only its
+    zeros below h s xi / j_{0,1} (what the Rayleigh condition on its largest
+    residual weight asks at the frequency xi, docs/method.md section 5b), so
+    groups of small weight isolate few or no zeros and rely on their moments;
+    without it every zero counts (the old, optimistic plan).
 
     Planning only (floating point): the engine later evaluates the bound rigorously
     on the certified zeros.
@@ -206,10 +213,15 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
         s = float(g.scale.mid())
         for (qs, _) in g.primitive_keys:
             gam = np.asarray(_model_ordinates(qs, 2000.0))
-            parts.append(s / np.hypot(0.5, gam))
-    weights = np.concatenate(parts) if parts else np.zeros(0)
+            parts.append((s, gam, s / np.hypot(0.5, gam)))
     xi = eps
     while xi < 1e4:
+        if height_factor is None:
+            weights = np.concatenate([w for _, _, w in parts]) if parts else np.zeros(0)
+        else:
+            sel = [w[: int(np.searchsorted(gam, height_factor * s * xi / J01, side="right"))]
+                   for s, gam, w in parts]
+            weights = np.concatenate(sel) if sel else np.zeros(0)
         f = 2 / (math.pi * weights * xi)
         small = f[f < 1]
         if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
@@ -218,11 +230,21 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
     return xi
 
 
+def planned_zero_count(conductor: int, height: float) -> int:
+    """Model count of positive ordinates below ``height`` (planning only)."""
+    return len(_model_ordinates(conductor, float(height))) if height > 0 else 0
+
+
 _plan_xi_max = plan_frequency_range  # former private name
+
+
+PUBLISHED_RH = ("Published interval verification (not redone here): \"The Riemann hypothesis is "
+                "true up to 3*10^12\", Bulletin of the London Mathematical Society 53 (2021).")
 
 
 def _hypotheses(question, group_reports) -> tuple:
     ls = sorted({k for g in group_reports for k in g.primitive_keys})
+    zeta = question.is_li_race
     ev_grh = []
     for g in group_reports:
         ev_grh.append(
@@ -230,14 +252,25 @@ def _hypotheses(question, group_reports) -> tuple:
             f"of the Hardy Z-function up to height {decimal_down(Fraction(g.height), 4)}; "
             "residual power sums "
             f"non-negative and consistent with none missing below that height")
-    ev_grh.append("Published interval verifications (not redone here): Math. Comp. 61 (1993), "
-                  "all conductors < 13 to height 10000; Math. Comp. (2016), conductors <= 400000.")
+    if zeta:
+        ev_grh.append(PUBLISHED_RH)
+    else:
+        ev_grh.append("Published interval verifications (not redone here): Math. Comp. 61 (1993), "
+                      "all conductors < 13 to height 10000; Math. Comp. (2016), conductors <= 400000.")
     ev_li = []
     for g in group_reports:
         for (c, n), cv in zip(g.primitive_keys, g.central_values):
-            ev_li.append(f"L(1/2, chi_{{{c},{n}}}) = {cv.str(8)} excludes 0")
+            name = "zeta(1/2)" if c == 1 else f"L(1/2, chi_{{{c},{n}}})"
+            ev_li.append(f"{name} = {cv.str(8)} excludes 0")
     ev_li.append("every isolated zero is a certified sign change in its own disjoint interval "
                  "(odd order; simplicity itself is assumed)")
+    if zeta:
+        return (
+            Hypothesis("RH", "The Riemann hypothesis: every non-trivial zero of zeta(s) has real "
+                       "part 1/2.", "assumed", tuple(ev_grh)),
+            Hypothesis("LI", "The positive ordinates of the non-trivial zeros of zeta(s) are "
+                       "linearly independent over Q.", "assumed", tuple(ev_li)),
+        )
     names = ", ".join(f"L(s, chi_{{{c},{n}}})" for (c, n) in ls)
     return (
         Hypothesis("GRH", f"The generalised Riemann hypothesis for {names}: every non-trivial "
@@ -266,11 +299,17 @@ class RacePlan:
     moments: int
     width: float
     height_factor: float = 2.6
+    few_zeros: bool = True  # plan heights from each group's weight (no floor)
 
     def request(self, group) -> tuple[float, float, int, int]:
         """(height, zero width, moments, moment accuracy bits) for a spectral group."""
         s = float(group.scale.mid())
-        height = max(MIN_HEIGHT, self.height_factor * s * self.xi_max / J01)
+        # the Rayleigh condition asks |rho| > s xi / j01 of every residual zero at the
+        # largest frequency; below that height the group's zeros are isolated, above it
+        # its moments carry them (a group of small weight may isolate none)
+        height = self.height_factor * s * self.xi_max / J01
+        if height < MIN_HEIGHT and not self.few_zeros:
+            height = MIN_HEIGHT
         # R_k is multiplied by about (s xi / j01)^(2k) in the engine
         grow = max(2.0, 2 * s * self.xi_max / J01)
         bits = int(self.digits * 3.33 + 2 * self.moments * math.log2(grow) + 40)
@@ -296,13 +335,15 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
     moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
     with workprec(prec):
         groups = spectral_groups(question)
+        store.prefetch([(c, n, 1, prec) for g in groups for (c, n) in g.primitive_keys[:1]])
         V = arb(0)
         for g in groups:
             c, n = g.primitive_keys[0]
             sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
             T1 = sp.power_sums[0] / (2 if g.is_real else 1)
             V += g.scale * g.scale * T1 / 2
-    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau)
+    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
+                                  height_factor=RacePlan.height_factor)
     width = min(1e-6, tau / (50 * (1 + xi_max)))
     return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
 
@@ -350,6 +391,7 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         residuals = []
         with workprec(prec):
             groups = spectral_groups(question)
+            store.prefetch([(c, n, k, b) for (c, n, _, _, _, k, b) in plan.spectrum_requests(groups)])
             for g in groups:
                 height, width, moments, bits = plan.request(g)
                 fraction = 0.25
@@ -406,7 +448,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         # refine the plan where the budget says
         b = {e.name: e.bound_float for e in dens.budget}
         worst = max(b, key=b.get)
-        last_reason = f"largest error term: {worst} ({b[worst]:.2e})"
+        worst_bound = next(e.bound for e in dens.budget if e.name == worst)
+        last_reason = f"largest error term: {worst} (<= {bound_text(worst_bound)})"
         if worst == "residual zeros" or dens.parameters.get("fallback_frequencies", 0):
             # grow towards the frequency range the engine needed, at most doubling per round
             plan.xi_max = max(plan.xi_max, min(dens.parameters["xi_max"], 2 * plan.xi_max))

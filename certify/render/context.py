@@ -24,6 +24,13 @@ def tiny_gaps(cert: Certificate) -> list[dict]:
     lo, hi = cert.lower, cert.upper
     a = cert.answer
     out = []
+    small = a.get("small_side")
+    if small is not None:
+        # the li race: its small side, with the significant digits common to the enclosure
+        certified = f" (certified: {small['certified']})" if small.get("certified") else ""
+        out.append({"what": small["name"] + certified, "lower": small["lower"],
+                    "upper": small["upper"]})
+        return out
     if lo > Fraction(99, 100):
         out.append({"what": "1 - delta", "lower": a["gap_to_one"]["lower"],
                     "upper": a["gap_to_one"]["upper"]})
@@ -53,7 +60,8 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     q = cert.question
     groups = []
     for g in cert.spectrum["groups"]:
-        ls = [f"L(s, chi_{{{lf['conductor']},{lf['label']}}})" for lf in g["l_functions"]]
+        ls = ["zeta(s)" if lf["conductor"] == 1 else f"L(s, chi_{{{lf['conductor']},{lf['label']}}})"
+              for lf in g["l_functions"]]
         first = [ball_from_strings(z["mid"], z["rad"]).str(15, radius=False) for z in g["zeros"][:3]]
         groups.append({
             "label": g["label"], "l_functions": ", ".join(ls), "zeros": len(g["zeros"]),
@@ -69,7 +77,8 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = ", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
+    weights = (", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
+               or "none (pi(x) against li(x): zeta alone)")
     prov = cert.provenance
     params = [(k, v if not isinstance(v, (list, tuple)) else ", ".join(map(str, v)))
               for k, v in cert.parameters.items()]
