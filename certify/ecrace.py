@@ -70,6 +70,9 @@ class RankReport:
     def statement(self) -> str:
         if self.certified:
             return f"analytic rank {self.rank} (certified)"
+        if self.theorem:
+            return (f"analytic rank {self.rank} (published theorem, Math. Comp. 44 (1985)); "
+                    f"computed here: rank <= {self.upper_bound}, rank = {self.rank} mod 2")
         return (f"analytic rank {self.rank} assumed; proven: rank <= {self.upper_bound}, "
                 f"rank = {self.rank} mod 2")
 
