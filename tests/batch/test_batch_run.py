@@ -40,7 +40,7 @@ def test_outputs_and_check_values(table):
     # 1 + 1 + (6 + 1) races, each two-way one also reversed: 2*(1+1+6) + 3 rows
     assert len(rows) == 2 * (1 + 1 + 6) + 3
     # Check values: delta(4;3,1) ~ 0.9959 and delta(3;2,1) ~ 0.999, the digits printed in
-    # Rubinstein and Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994).
+    # "Chebyshev's bias", Experimental Mathematics 3 (1994).
     for race, printed in [("delta(4;3,1)", "0.9959"), ("delta(3;2,1)", "0.999")]:
         r = rows[race]
         lo, hi = Fraction(r["lower"]), Fraction(r["upper"])
