@@ -83,7 +83,14 @@ def run_ecrace(args) -> int:
         raise BadInput(f"--grh-height must be a number, got {args.grh_height!r}") from None
     if not (0 <= grh <= 200):
         raise BadInput(f"--grh-height must lie in [0, 200] (got {grh:g})")
+    t_run = __import__("time").time()
     result = certify_ec_race(E, digits, command_line=cmd, grh_height=grh)
+    if args.certificate:
+        from ..certificate.ecq import ecq_certificate
+        from ..certificate.model import write_certificate
+
+        write_certificate(ecq_certificate(result, grh, __import__("time").time() - t_run),
+                          args.certificate)
     if bound:
         obs = observe(E, bound)
     if args.plot:
@@ -125,4 +132,6 @@ def register(sub) -> None:
                    help="also verify GRH for L(E,s) up to height T (at most the isolation height) by "
                         "counting zeros with the argument principle (slow; default 0: skip)")
     p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--certificate", metavar="PATH",
+                   help="write a certificate (kind ecq-race) that `certify verify` re-checks by a recount")
     p.set_defaults(func=run_ecrace)
