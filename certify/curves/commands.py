@@ -62,8 +62,11 @@ def curve_screen(R) -> str:
         f"  L(E, u) = {L.as_text()}",
         f"  from point counts of degree <= {L.degrees_used}, confirmed by degrees {list(L.degrees_confirmed)}",
         f"race ({R.mode}): {R.statement()}",
-        f"  density = {(d.digits()[:42] + ('  (exact: ' + str(d.lower) + ')' if d.width == 0 else '')) or '(no digit certified)'}   enclosure [{d.lower_str(places)}, {d.upper_str(places)}]"
-        f"   width {float(d.width):.2e}",
+        (f"  density = {d.lower} (exact" + (": the limit is periodic in X and never 0)"
+                                            if str(R.parameters.get("engine", "")).startswith("exact") else ")")
+         if d.width == 0 else
+         f"  density = {d.digits()[:42] or '(no digit certified)'}   enclosure [{d.lower_str(places)}, "
+         f"{d.upper_str(places)}]   width {float(d.width):.2e}"),
         f"  mean of the limit law {R.mean().str(8)} (period {R.variable.period} in X); "
         f"{len(R.variable.weights)} non-torsion angle(s)",
         "  error budget:",

@@ -52,7 +52,7 @@ from .poly import (
     MAX_TABLE, finite_field, parse_field_order, parse_monic, parse_poly, poly_index, poly_str,
 )
 from .torus import (
-    ExactRoot, OrbitClosure, TrigFunction, confirm_relation, density_on_closure,
+    REFUTED, ExactRoot, OrbitClosure, TrigFunction, confirm_relation, density_on_closure,
     find_relations, identify_root, orbit_closure,
 )
 
@@ -538,8 +538,13 @@ def is_residue_race(question: FFRaceQuestion) -> bool:
 
 def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, int],
                    target_width: float = 1e-10, prec: int = 160, leader_bound: int = 60,
-                   max_boxes: int = 200000, coeff_bound: int = 60) -> FFRaceResult:
-    """Certify the density of a function-field race (see the module docstring)."""
+                   max_boxes: int = 200000, coeff_bound: int = 60, max_resultant_degree: int = 4000,
+                   progress=None) -> FFRaceResult:
+    """Certify the density of a function-field race (see the module docstring).
+
+    ``progress`` (optional) is called with a one-line message before each stage that can take
+    long (spectrum, relation search, density, leaders); the CLI prints them to stderr.
+    """
     t0 = time.time()
     q = question.q
     # a residue race only sees the quadratic characters (docs/function_fields.md)
@@ -556,18 +561,27 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
     cands = find_relations(xs, coeff_bound=coeff_bound, prec=rel_prec) if J else []
     confirmed = []
     unconfirmed = []
+    refuted = 0
+    roots = [p.root for p in cpts]
+    if cands and progress:
+        progress(f"confirming {len(cands)} candidate relation(s) among {J} angles exactly "
+                 f"(resultants of minimal polynomials, degree budget {max_resultant_degree})")
     for k in cands:
         if not any(k[1:]):
             continue
-        par = confirm_relation([p.root for p in cpts], k, q, prec=prec)
+        par = confirm_relation(roots, k, q, prec=prec, max_degree=max_resultant_degree)
         if par is None:
             unconfirmed.append(k)
+        elif par == REFUTED:
+            refuted += 1  # proved false exactly: not a relation, nothing to use
         else:
             confirmed.append([par] + list(k[1:]))
     if unconfirmed:
         raise PrecisionExhausted(
             f"not certified: {len(unconfirmed)} candidate relation(s) among the angles could not be "
-            f"confirmed or refuted exactly (first: {unconfirmed[0]})")
+            f"confirmed or refuted exactly within the resultant degree budget {max_resultant_degree} "
+            f"(first: {unconfirmed[0]}, degrees of the minimal polynomials involved: "
+            f"{[r.poly().degree() for r, kj in zip(roots, unconfirmed[0][1:]) if kj]})")
     rows = [[2] + [0] * J] + confirmed
     if confirmed:
         # a reduced basis (Hermite form) of the relation lattice, for the report

@@ -43,8 +43,8 @@ from ..arith import arb, workprec
 from ..errors import Inconsistent, PrecisionExhausted
 from .characters import smith_normal_form
 
-__all__ = ["ExactRoot", "identify_root", "find_relations", "confirm_relation",
-           "OrbitClosure", "orbit_closure", "density_on_closure", "TrigFunction"]
+__all__ = ["ExactRoot", "identify_root", "find_relations", "confirm_relation", "REFUTED", "relation_cost",
+           "OrbitClosure", "orbit_closure", "density_on_closure", "TrigFunction", "vanishing_coset"]
 
 
 # ---------------------------------------------------------------- exact roots
@@ -191,49 +191,106 @@ def _to_upoly(mp, var: int) -> fmpz_poly:
     return fmpz_poly(cs)
 
 
+#: ``confirm_relation`` returns this when the candidate is proved false (beta != q^S exactly).
+REFUTED = -1
+
+
+def _minimal_factor(P: fmpz_poly, ball_of, precs=(256, 512, 1024, 2048)) -> fmpz_poly | None:
+    """The irreducible factor of P having the number z as a root, where ``ball_of(prec)`` encloses z.
+
+    z is a root of P, hence of exactly one of its distinct irreducible factors; a factor
+    whose value on z's ball excludes 0 is not that one.  When exactly one factor's value
+    contains 0, it is the minimal polynomial of z (up to sign).  None if the precisions
+    tried do not separate the factors.
+    """
+    _, facs = P.factor()
+    gs = [g for g, _ in facs if g.degree() >= 1]
+    if len(gs) == 1:
+        return gs[0]
+    for prec in precs:
+        with workprec(prec):
+            z = ball_of(prec)
+            hits = [g for g in gs if _eval_acb(g, z).contains(0)]
+        if len(hits) == 1:
+            return hits[0]
+        if not hits:
+            raise Inconsistent("a number is not a root of the polynomial built for it")
+    return None
+
+
+def relation_cost(roots: list, k: list[int]) -> int:
+    """Product of the degrees of the minimal polynomials a relation involves (an upper bound
+    on every resultant degree :func:`confirm_relation` can meet)."""
+    return math.prod(r.poly().degree() for r, kj in zip(roots, k[1:]) if kj)
+
+
 def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
                      max_degree: int = 4000) -> int | None:
-    """Confirm prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly; return k_0 mod 2, or None.
+    """Decide prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly: k_0 mod 2 if it holds, REFUTED if not,
+    None if undecided within the budget.
 
     ``roots[j]`` are :class:`ExactRoot` for j = 1..J (index 0 of k is the pi coordinate
-    and is ignored here).  None means not confirmed (the relation is not used).
+    and is ignored here).  beta = prod_{k_j>0} alpha_j^(2k_j) prod_{k_j<0} conj(alpha_j)^(2|k_j|)
+    is built one factor at a time, keeping only the *minimal polynomial* of each partial
+    product: the resultant polynomial (powers, then products of roots) is factored over Z and
+    the unique irreducible factor vanishing on the partial product's ball is kept
+    (:func:`_minimal_factor`).  So the degrees stay those of the minimal polynomials, not their
+    product.  Finally beta = q^S (S = sum |k_j|) iff its minimal polynomial is y - q^S: an
+    exact yes or no.  If yes, gamma = prod (alpha_j/sqrt q)^(k_j) has gamma^2 = 1 and a ball
+    decides gamma = +1 or -1.  A resultant of degree above ``max_degree`` is not attempted
+    (None: not confirmed, the caller refuses).
     """
     parts = [(r, kj) for r, kj in zip(roots, k[1:]) if kj]
     if not parts:
         return k[0] % 2
-    P = None
-    deg = 1
-    for r, kj in parts:
-        deg *= r.poly().degree()
-        if deg > max_degree:
-            return None
-        Pj = _power_poly(r.poly(), 2 * abs(kj))
-        P = Pj if P is None else _product_poly(P, Pj)
     S = sum(abs(kj) for _, kj in parts)
     Q = fmpz(q) ** S
-    if int(P(Q)) != 0:  # (fmpz.is_zero is unreliable in python-flint 0.9)
-        return None
-    lin = fmpz_poly([-Q, 1])
-    P1 = P
-    while (P1 % lin).is_zero():
-        P1 = P1 // lin
+
+    def factor_ball(r, kj, p):
+        a = r.ball(p)
+        a = a if kj > 0 else a.conjugate()
+        return a ** (2 * abs(kj))
+
+    cur = None
+    done: list = []
+    for r, kj in parts:
+        g = r.poly()
+        if cur is not None and cur.degree() * g.degree() > max_degree:
+            return None
+        Pj = _power_poly(g, 2 * abs(kj))
+        Pj = _minimal_factor(Pj, lambda p, r=r, kj=kj: factor_ball(r, kj, p))
+        if Pj is None:
+            return None
+        done.append((r, kj))
+        if cur is None:
+            cur = Pj
+            continue
+        if cur.degree() * Pj.degree() > max_degree:
+            return None
+
+        def partial(p, items=tuple(done)):
+            z = acb(1)
+            for rr, kk in items:
+                z *= factor_ball(rr, kk, p)
+            return z
+
+        cur = _minimal_factor(_product_poly(cur, Pj), partial)
+        if cur is None:
+            return None
+    if cur.degree() != 1 or int(cur[0]) != -Q * int(cur[1]):
+        return REFUTED
     with workprec(prec):
-        beta = acb(1)
         gamma = acb(1)
         sq = arb(q).sqrt()
         for r, kj in parts:
             a = r.ball(prec)
             a = a if kj > 0 else a.conjugate()
-            beta *= a ** (2 * abs(kj))
             gamma *= (a / sq) ** abs(kj)
-        val = _eval_acb(P1, beta)
-        if val.contains(0):
-            return None
         if (gamma - 1).abs_upper() < 1:
             return 0
         if (gamma + 1).abs_upper() < 1:
             return 1
-    return None
+    return None  # pragma: no cover - gamma^2 = 1 exactly, so a 256-bit ball decides
 
 
 def _eval_acb(P: fmpz_poly, z: acb) -> acb:
@@ -287,6 +344,37 @@ class TrigFunction:
             e = (2 * arb.pi() * x_mid[c])
             s += B.real * e.cos() - B.imag * e.sin()
         return s
+
+
+def vanishing_coset(G: TrigFunction, H: OrbitClosure, prec: int = 128):
+    """The fixed coordinates of a coset of H on which G is identically 0, or None.
+
+    On the coset y_i = a_i / d_i (i < r), x = V y and G is a trigonometric polynomial in the
+    free coordinates: term k has frequency V[c_k][r:] and phase sum_i V[c_k][i] a_i / d_i.
+    Terms with frequencies f and -f combine into one Fourier coefficient; G vanishes on the
+    coset iff every coefficient (and the constant) is 0.  A coset whose coefficient balls all
+    contain 0 is returned (fail closed: the caller refuses), so a coset that is not returned
+    certainly carries a non-zero G, whose zero set then has measure 0.
+    """
+    r = len(H.d)
+    with workprec(prec):
+        for fin in itertools.product(*[range(di) for di in H.d]):
+            coef: dict[tuple, acb] = {}
+            const = acb(G.const)
+            for c, B in G.terms:
+                row = H.V[c]
+                freq = tuple(row[r:])
+                phase = sum((Fraction(row[i] * a, di) for i, (a, di) in enumerate(zip(fin, H.d))), Fraction(0))
+                z = B * (2 * arb.pi() * (arb(phase.numerator) / phase.denominator) * acb(0, 1)).exp()
+                if not any(freq):
+                    const += z.real
+                    continue
+                neg = tuple(-v for v in freq)
+                key, val = (freq, z) if freq > neg else (neg, z.conjugate())
+                coef[key] = coef.get(key, acb(0)) + val
+            if const.real.contains(0) and all(v.real.contains(0) and v.imag.contains(0) for v in coef.values()):
+                return fin
+    return None
 
 
 def density_on_closure(G: TrigFunction, H: OrbitClosure, target_width: float,
