@@ -28,6 +28,8 @@ __all__ = [
     "arb_to_fraction", "lower_fraction", "upper_fraction",
     "decimal_down", "decimal_up", "certified_digits", "ball_strings",
     "ball_from_strings", "flint_version", "hull", "rad_float",
+    "sci_text", "sci_up", "sci_down", "bound_text", "interval_text", "sci_interval_text",
+    "places_for_width", "fraction_text", "upper_float",
 ]
 
 flint_version = flint.__version__
@@ -225,3 +227,147 @@ def hull(a: arb, b: arb) -> arb:
 def rad_float(x: arb) -> float:
     """The radius of a ball as a float (upper bound), for reporting only."""
     return float(arb(x.rad()).upper())
+
+
+# ---------------------------------------------------------------------------
+# Printing numbers: the one formatter every command, JSON writer, table and
+# renderer uses.  Every function here works on exact rationals (the exact
+# dyadic ends of a ball) and rounds *outward*: a lower end down, an upper end
+# and an error bound up.  Nothing is ever formatted "to nearest".
+# ---------------------------------------------------------------------------
+
+
+def _end(x, up: bool) -> Fraction:
+    """The exact upper (``up``) or lower end of a ball, or a rational/int/float as is."""
+    if isinstance(x, arb):
+        return upper_fraction(x) if up else lower_fraction(x)
+    if isinstance(x, fmpq):
+        return Fraction(int(x.p), int(x.q))
+    if isinstance(x, float):
+        if x != x or x in (float("inf"), float("-inf")):
+            raise ValueError(f"not a finite number: {x!r}")
+        return Fraction(x)  # exact value of the double
+    return Fraction(x)
+
+
+def _floor_log10(v: Fraction) -> int:
+    """floor(log10 v) for v > 0, exactly."""
+    e = len(str(v.numerator)) - len(str(v.denominator))
+    while Fraction(10) ** e > v:
+        e -= 1
+    while Fraction(10) ** (e + 1) <= v:
+        e += 1
+    return e
+
+
+def sci_text(v, sig: int = 3, up: bool = True) -> str:
+    """``v`` in scientific notation with ``sig`` significant digits, rounded up or down.
+
+    Rounding is toward +infinity when ``up`` and toward -infinity otherwise (also
+    for negatives), so ``sci_text(v, up=True) >= v`` always.
+
+    Examples
+    --------
+    >>> sci_text(Fraction(1, 3), 3, up=True)
+    '3.34e-1'
+    >>> sci_text(Fraction(-1, 3), 3, up=True)
+    '-3.33e-1'
+    """
+    v = Fraction(v)
+    if sig < 1:
+        raise ValueError("sig must be at least 1")
+    if v == 0:
+        return "0"
+    neg = v < 0
+    a = -v if neg else v
+    e = _floor_log10(a)
+    n = a * Fraction(10) ** (sig - 1 - e)
+    away = up != neg  # round the magnitude away from zero when the signed direction asks
+    k = -((-n.numerator) // n.denominator) if away else n.numerator // n.denominator
+    if k >= 10**sig:  # 9.99.. -> 10.0: one more digit, renormalise (k = 10^sig exactly here)
+        k //= 10
+        e += 1
+    digits = str(k)
+    body = digits[0] + ("." + digits[1:] if len(digits) > 1 else "")
+    return f"{'-' if neg else ''}{body}e{e}"
+
+
+def sci_up(x, sig: int = 3) -> str:
+    """A number in scientific notation that is >= every point of ``x`` (ball or rational)."""
+    return sci_text(_end(x, True), sig, up=True)
+
+
+def sci_down(x, sig: int = 3) -> str:
+    """A number in scientific notation that is <= every point of ``x`` (ball or rational)."""
+    return sci_text(_end(x, False), sig, up=False)
+
+
+def bound_text(x, sig: int = 3) -> str:
+    """An error bound as printed everywhere: the upper end of ``x``, rounded up.
+
+    >>> bound_text(Fraction(9368085, 10**10), 3)
+    '9.37e-4'
+    """
+    return sci_up(x, sig)
+
+
+def upper_float(x) -> float:
+    """A float that is >= every point of ``x`` (for reporting and planning only)."""
+    import math
+
+    v = _end(x, True)
+    f = float(v)
+    if Fraction(f) < v:
+        f = math.nextafter(f, math.inf)
+    return f
+
+
+def places_for_width(width, extra: int = 2, lo: int = 4, hi: int = 80) -> int:
+    """Decimal places that show ``width``: ``extra`` digits past its leading digit (lo..hi)."""
+    w = Fraction(width)
+    p = lo
+    while p < hi and Fraction(1, 10**p) > w / 10**extra:
+        p += 1
+    return p
+
+
+def interval_text(lo, hi, places: int | None = None) -> str:
+    """``[lo, hi]`` in fixed point, rounded outward (lo down, hi up).
+
+    ``lo`` and ``hi`` may be balls (their lower and upper ends are used),
+    rationals or ints; ``places`` defaults to enough to show the width.
+    """
+    a, b = _end(lo, False), _end(hi, True)
+    if a > b:
+        raise ValueError("empty interval")
+    if places is None:
+        places = places_for_width(b - a)
+    return f"[{_fraction_decimal(a, places, up=False)}, {_fraction_decimal(b, places, up=True)}]"
+
+
+def sci_interval_text(lo, hi, sig: int | None = None) -> str:
+    """``[lo, hi]`` in scientific notation, each end rounded outward.
+
+    ``sig`` defaults to enough significant digits that the printed ends
+    differ by at most a few times the width (at least 3).
+
+    >>> sci_interval_text(Fraction('9.3680846740e-4'), Fraction('9.3680849046e-4'))
+    '[9.36808467e-4, 9.36808491e-4]'
+    """
+    a, b = _end(lo, False), _end(hi, True)
+    if a > b:
+        raise ValueError("empty interval")
+    if sig is None:
+        big = max(abs(a), abs(b))
+        w = b - a
+        if big == 0 or w == 0:
+            sig = 3
+        else:
+            sig = max(3, min(60, _floor_log10(big) - _floor_log10(w) + 2))
+    return f"[{sci_text(a, sig, up=False)}, {sci_text(b, sig, up=True)}]"
+
+
+def fraction_text(v) -> str:
+    """An exact rational as ``p/q`` (or ``p``): for values known exactly."""
+    v = Fraction(v)
+    return str(v.numerator) if v.denominator == 1 else f"{v.numerator}/{v.denominator}"

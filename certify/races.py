@@ -17,11 +17,12 @@ from fractions import Fraction
 from functools import lru_cache
 
 from . import __version__
-from .arith import arb, flint_version, workprec
+from .arith import arb, decimal_down, flint_version, sci_down, sci_up, workprec
 from .density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.question import RaceQuestion, mean_of, spectral_groups
-from .result import CAUTION, Enclosure, Hypothesis
+from .result import (CAUTION, Enclosure, ExactValue, Hypothesis, caution_text,
+                     headline_text)
 from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 
 J01 = 2.404825557695773
@@ -65,7 +66,7 @@ class RaceResult:
         Proven interval for the density (under the hypotheses).
     digits_requested : int
     target_met : bool
-        Whether the width reached 10^-digits_requested.
+        Whether the width reached 10^-digits_requested (or the value is exact).
     mean : Fraction
         mu of the race variable.
     variance : arb
@@ -74,6 +75,11 @@ class RaceResult:
     hypotheses : tuple[Hypothesis, ...]
     groups : tuple[GroupReport, ...]
     timings : dict
+    exact : ExactValue or None
+        The density when it is known exactly (1/2 for a race whose limit law is
+        symmetric: mean 0, docs/method.md section 1b), with the reason; the
+        enclosure ``density`` is then the engine's numerical cross-check and
+        contains it.
     """
 
     question: RaceQuestion
@@ -91,13 +97,23 @@ class RaceResult:
     provenance: dict
     references: tuple = REFERENCES
     caution: str = CAUTION
+    exact: ExactValue | None = None
 
     def __repr__(self) -> str:
         d = self.density
-        p = d.places()
         status = "target met" if self.target_met else "TARGET NOT MET (best certified enclosure)"
-        return (f"<RaceResult {self.question.label} in [{d.lower_str(p)}, {d.upper_str(p)}] "
-                f"(width {float(d.width):.2e}; {status}; conditional on GRH and LI)>")
+        names = " and ".join(h.name for h in self.hypotheses if h.status == "assumed") or "nothing"
+        if self.exact is not None:
+            return (f"<RaceResult {self.question.label} = {self.exact.text()} exactly "
+                    f"({self.exact.reason}; conditional on {names})>")
+        return (f"<RaceResult {self.question.label} in {d.interval_text()} "
+                f"(width <= {d.width_text()}; {status}; conditional on {names})>")
+
+    @property
+    def headline(self) -> str:
+        """The first line shown for this result (exact value, certified digits or enclosure)."""
+        return headline_text(self.question.label, self.density, self.exact, self.target_met,
+                             f"1e-{self.digits_requested}")
 
     @property
     def certified_digits(self) -> str:
@@ -114,14 +130,21 @@ class RaceResult:
                 "label": self.question.label,
                 "statement": self.question.statement,
                 "weights": {str(a): str(w) for a, w in self.question.weights},
+                "normalised_weights": {str(a): str(w) for a, w in self.question.normalised_weights},
+                "normalisation_factor": str(self.question.normalisation),
             },
             "density": {
                 "lower": d.lower_str(places),
                 "upper": d.upper_str(places),
-                "width": f"{float(d.width):.3e}",
+                "width": d.width_text(),
                 "certified_digits": d.digits(),
                 "target_width": f"1e-{self.digits_requested}",
                 "target_met": self.target_met,
+                "exact": self.exact.as_dict() if self.exact is not None else None,
+                "headline": self.headline,
+                "one_minus": {"lower": sci_down(1 - d.upper, 8), "upper": sci_up(1 - d.lower, 8)},
+                "gap_to_half": {"lower": sci_down(d.lower - Fraction(1, 2), 8),
+                                "upper": sci_up(d.upper - Fraction(1, 2), 8)},
             },
             "mean": str(self.mean),
             "variance": self.variance.str(20, radius=True),
@@ -204,7 +227,8 @@ def _hypotheses(question, group_reports) -> tuple:
     for g in group_reports:
         ev_grh.append(
             f"{g.label}: {len(g.zeros)} zeros certified on the critical line by sign changes "
-            f"of the Hardy Z-function up to height {g.height:g}; residual power sums "
+            f"of the Hardy Z-function up to height {decimal_down(Fraction(g.height), 4)}; "
+            "residual power sums "
             f"non-negative and consistent with none missing below that height")
     ev_grh.append("Published interval verifications (not redone here): Math. Comp. 61 (1993), "
                   "all conductors < 13 to height 10000; Math. Comp. (2016), conductors <= 400000.")
@@ -408,7 +432,20 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         "zeros_used": sum(len(g.zeros) for g in reports),
         "hardy_z_evaluations": store.z_calls,
     })
-    if not met:
+    if question.normalisation != 1:
+        params["weight_normalisation"] = (
+            f"weights multiplied by {question.normalisation} so that sum |w_a| = 2; the density "
+            "is invariant under positive scaling (docs/method.md, section 1c)")
+    exact = None
+    if mu_q == 0:
+        # docs/method.md, section 1b: mean 0 makes the limit law symmetric without atom at 0
+        if not dens.enclosure.contains(Fraction(1, 2)):
+            raise Inconsistent(f"{question.label}: the mean is 0, so the density is 1/2 exactly, "
+                               f"but the engine's enclosure {dens.enclosure.interval_text()} "
+                               "excludes 1/2; not certified")
+        exact = ExactValue(Fraction(1, 2), "mean 0, so the limit law is symmetric about 0 and "
+                           "has no atom there: docs/method.md, section 1b")
+    if not met and exact is None:
         params["not_met_reason"] = last_reason
     timings["total"] = time.time() - t_start
     import platform
@@ -422,6 +459,8 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         "command_line": command_line,
         "date": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()),
     }
-    return RaceResult(question, dens.enclosure, dens.ball, digits, met, mu_q, V, dens.budget,
-                      params, _hypotheses(question, reports), tuple(reports),
-                      {k: round(v, 3) for k, v in timings.items()}, provenance)
+    hypotheses = _hypotheses(question, reports)
+    return RaceResult(question, dens.enclosure, dens.ball, digits, met or exact is not None, mu_q,
+                      V, dens.budget, params, hypotheses, tuple(reports),
+                      {k: round(v, 3) for k, v in timings.items()}, provenance,
+                      caution=caution_text(hypotheses), exact=exact)

@@ -24,7 +24,8 @@ import os
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..arith import certified_digits, decimal_down, decimal_up
+from ..arith import certified_digits, decimal_down, decimal_up, fraction_text, sci_up
+from ..errors import Inconsistent
 from ..io import write_atomic
 
 CLOSE_TO_ONE = Fraction(99, 100)
@@ -33,7 +34,9 @@ HYPOTHESES_NOTE = ("Every density is conditional on the generalised Riemann hypo
                    "hypothesis (LI); certify gathers evidence for both and proves neither. "
                    "Each result file lists the hypotheses with their evidence.")
 DIGITS_NOTE = ("Digits shown are common to every point of the certified enclosure "
-               "(truncated, not rounded); an interval is shown where no digit is common.")
+               "(truncated, not rounded); an interval is shown where no digit is common; "
+               "a fraction marked exact is the proven value (mean 0: the limit law is "
+               "symmetric, so delta = 1/2).")
 
 
 @dataclass
@@ -51,6 +54,7 @@ class Row:
     sha256: str
     derived: bool = False
     error: str = ""
+    exact: Fraction | None = None  # the density when known exactly (e.g. 1/2 for mean 0)
 
     @property
     def certified(self) -> bool:
@@ -89,12 +93,17 @@ def rows_from_results(out: str, ordered, reverse: bool = True) -> list[Row]:
         lo, hi = Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"])
         digest = _file_digest(path) if os.path.exists(path) else ""
         met = bool(d["density"]["target_met"])
+        ex = (d["density"].get("exact") or {}).get("value")
+        exact = Fraction(ex) if ex else None
+        if exact is not None and not lo <= exact <= hi:
+            raise Inconsistent(f"{rel}: the exact value {ex} lies outside the stored enclosure")
         rows.append(Row(qn.modulus, qn.kind, a, b, qn.label, lo, hi, met, d.get("mean", ""), rel,
-                        digest))
+                        digest, exact=exact))
         if reverse and qn.kind == "two-way":
             mean = str(-Fraction(d["mean"])) if d.get("mean") else ""
             rows.append(Row(qn.modulus, qn.kind, b, a, f"delta({qn.modulus};{b},{a})", 1 - hi,
-                            1 - lo, met, mean, rel, digest, derived=True))
+                            1 - lo, met, mean, rel, digest, derived=True,
+                            exact=None if exact is None else 1 - exact))
     return rows
 
 
@@ -107,8 +116,10 @@ def _floor_log10(x: Fraction) -> int:
     return e
 
 
-def density_text(lo: Fraction, hi: Fraction, places: int) -> str:
-    """Certified digits of [lo, hi], or the interval rounded outward to ``places``."""
+def density_text(lo: Fraction, hi: Fraction, places: int, exact: Fraction | None = None) -> str:
+    """The exact value, or certified digits of [lo, hi], or the interval rounded outward."""
+    if exact is not None:
+        return fraction_text(exact)
     d = certified_digits(lo, hi)
     if "." in d and len(d.split(".")[1]) >= 1:
         return d
@@ -138,7 +149,7 @@ def sci_interval(lo: Fraction, hi: Fraction, sig: int = 3) -> tuple[str, str, in
 
 def one_minus_text(row: Row, latex: bool) -> str:
     """1 - delta in scientific notation where delta is close to 1 (else empty)."""
-    if not row.certified or row.lower < CLOSE_TO_ONE:
+    if not row.certified or row.lower < CLOSE_TO_ONE or row.exact is not None:
         return ""
     lo, hi = 1 - row.upper, 1 - row.lower
     if lo <= 0:
@@ -152,6 +163,8 @@ def one_minus_text(row: Row, latex: bool) -> str:
 
 
 def _mark(row: Row) -> str:
+    if row.exact is not None:
+        return " (exact)"
     return "" if row.target_met else "*"
 
 
@@ -195,12 +208,12 @@ def render_latex(rows: list[Row], digits: int, caption: str = "") -> str:
               r"\endhead", r"\bottomrule", r"\endfoot"]
     for r in rows:
         if r.certified:
-            dtext = density_text(r.lower, r.upper, digits)
-            dcell = f"${dtext}$" if not dtext.startswith("[") else f"${dtext}$"
+            dtext = density_text(r.lower, r.upper, digits, r.exact)
+            dcell = f"${dtext}$" + (" (exact)" if r.exact is not None else "")
             omt = one_minus_text(r, True)
         else:
             dcell, omt = "not certified", ""
-        mark = r"$^{*}$" if r.certified and not r.target_met else ""
+        mark = r"$^{*}$" if r.certified and not r.target_met and r.exact is None else ""
         lines.append(f"{r.q} & {r.latex_label} & {dcell}{mark} & {omt} \\\\ % {r.source} "
                      f"sha256={r.sha256[:16]}{' (reverse race: 1 - delta)' if r.derived else ''}")
     lines.append(r"\end{longtable}")
@@ -225,8 +238,10 @@ def render_latex_ranking(rows: list[Row], digits: int) -> str:
         r"\midrule",
     ]
     for i, r in enumerate(rows, 1):
-        mark = r"$^{*}$" if not r.target_met else ""
-        lines.append(f"{i} & {r.q} & {r.latex_label} & ${density_text(r.lower, r.upper, digits)}$"
+        mark = (r"$^{*}$" if not r.target_met and r.exact is None
+                else (" (exact)" if r.exact is not None else ""))
+        lines.append(f"{i} & {r.q} & {r.latex_label} & "
+                     f"${density_text(r.lower, r.upper, digits, r.exact)}$"
                      f"{mark} & {one_minus_text(r, True)} \\\\ % {r.source} sha256={r.sha256[:16]}")
     lines += [r"\bottomrule", r"\end{tabular}"]
     return "\n".join(lines) + "\n"
@@ -238,7 +253,7 @@ def render_markdown(rows: list[Row], digits: int, title: str) -> str:
              "| q | race | delta | 1 - delta | certificate |", "|---:|---|---|---|---|"]
     for r in rows:
         if r.certified:
-            d = density_text(r.lower, r.upper, digits) + _mark(r)
+            d = density_text(r.lower, r.upper, digits, r.exact) + _mark(r)
             om = one_minus_text(r, False)
         else:
             d, om = "not certified", ""
@@ -249,7 +264,7 @@ def render_markdown(rows: list[Row], digits: int, title: str) -> str:
 
 CSV_FIELDS = ["q", "kind", "a", "b", "race", "lower", "upper", "width", "certified_digits",
               "one_minus_delta", "target_met", "mean", "derived", "result_file", "result_sha256",
-              "status"]
+              "status", "exact"]
 
 
 def render_csv(rows: list[Row]) -> str:
@@ -262,13 +277,14 @@ def render_csv(rows: list[Row]) -> str:
             lower = decimal_down(r.lower, 30).rstrip("0")
             upper = decimal_up(r.upper, 30).rstrip("0")
             w.writerow([r.q, r.kind, r.a if r.a is not None else "", r.b if r.b is not None else "",
-                        r.label, lower, upper, f"{float(r.upper - r.lower):.3e}",
+                        r.label, lower, upper, sci_up(r.upper - r.lower, 4),
                         certified_digits(r.lower, r.upper), one_minus_text(r, False),
                         "yes" if r.target_met else "no", r.mean, "yes" if r.derived else "no",
-                        r.source, r.sha256, "certified"])
+                        r.source, r.sha256, "certified",
+                        fraction_text(r.exact) if r.exact is not None else ""])
         else:
             w.writerow([r.q, r.kind, r.a or "", r.b or "", r.label, "", "", "", "", "", "no", "",
-                        "no", r.source, "", r.error])
+                        "no", r.source, "", r.error, ""])
     return buf.getvalue()
 
 

@@ -9,6 +9,7 @@ import sys
 from ..errors import BadInput
 from ..race.question import parse_weight_items, residue_race, two_way, weighted
 from ..races import DEFAULT_DIGITS, MAX_DIGITS, certify_race
+from ..result import density_lines
 
 
 def _int(text: str, what: str) -> int:
@@ -29,33 +30,34 @@ def _digits(args) -> int:
 
 
 def screen(result) -> str:
-    """The one-screen summary of a race result."""
+    """The one-screen summary of a race result (numbers through certify.result's formatter)."""
     d = result.density
-    places = d.places()
-    lines = [
-        f"{result.question.label} = {d.digits() or '(no digit certified)'}",
-        f"  {result.question.statement}",
-        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
-        + ("" if result.target_met else f"   (target 1e-{result.digits_requested} NOT met)"),
-    ]
-    one_minus = 1 - d.upper
-    if d.lower > 0.999:
-        lines.append(f"  1 - delta  in [{float(1 - d.upper):.6e}, {float(1 - d.lower):.6e}]")
-    elif d.upper < 0.001:
-        lines.append(f"  delta      in [{float(d.lower):.6e}, {float(d.upper):.6e}]")
-    del one_minus
-    lines.append(f"  mean {result.mean}, variance {result.variance.str(8)}; "
+    lines = density_lines(result.question.label, d, result.exact, result.target_met,
+                          f"1e-{result.digits_requested}", statement=result.question.statement)
+    if result.question.normalisation != 1:
+        w = " ".join(f"{a}:{x}" for a, x in result.question.normalised_weights)
+        lines.append(f"  weights normalised to sum |w| = 2 (same density): {w}")
+    norm = "" if result.question.normalisation == 1 else " (normalised weights)"
+    lines.append(f"  mean {result.mean}{norm}, variance {result.variance.str(8, radius=True)}; "
                  f"{result.parameters['zeros_used']} zeros of "
                  f"{len(result.parameters['primitive_l_functions'])} L-functions; "
                  f"{result.timings.get('total', 0):.2f} s")
-    lines.append("  error budget:")
+    if result.exact is not None:
+        lines.append("  error budget of the numerical cross-check (the exact value has none):")
+    else:
+        lines.append("  error budget (each bound rounded up):")
     for e in result.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
-    lines.append("  hypotheses (assumed, not proven):")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
+    assumed = [h for h in result.hypotheses if h.status == "assumed"]
+    if assumed:
+        lines.append("  hypotheses (assumed, not proven):")
     for h in result.hypotheses:
-        lines.append(f"    {h.name}: {h.statement}")
+        tag = "" if h.status == "assumed" else f" [{h.status}]"
+        lines.append(f"    {h.name}{tag}: {h.statement}")
     if not result.target_met:
-        lines.append(f"  not certified to the target: {result.parameters.get('not_met_reason', '')}")
+        lines.append(f"  not certified to the target 1e-{result.digits_requested}: "
+                     f"{result.parameters.get('not_met_reason', '') or 'no reason recorded'}; "
+                     "the enclosure shown is the best one proven")
     lines.append(f"  {result.caution}")
     return "\n".join(lines)
 

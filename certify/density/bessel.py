@@ -47,7 +47,7 @@ class BesselVariable:
 import math
 from fractions import Fraction
 
-from ..errors import PrecisionExhausted
+from ..errors import Inconsistent, PrecisionExhausted
 from ..result import DensityEnclosure, Enclosure, ErrorTerm
 from .besselj import check_j01, rayleigh_sigma, tail_constant
 
@@ -101,7 +101,12 @@ def _residual_log_factor(group: ResidualGroup, xi: arb, need: float, j01_lo: arb
     for k, R in enumerate(group.power_sums, start=1):
         up = arb(R.upper())
         if up <= 0:
-            return arb(0), arb(0)
+            # infinitely many zeros are never isolated, so every R_k is a sum of positive
+            # terms: R_k <= 0 is impossible data, not a neutral factor (fail closed)
+            raise Inconsistent(
+                f"{group.label or 'residual group'}: residual power sum R_{k} = {R.str(5)} is "
+                "not positive, but infinitely many zeros remain after the isolated ones: a "
+                "moment or an isolated zero is wrong; not certified")
         r = up.root(2 * k)
         best = r if best is None or r < best else best
     y = x / j01_lo * best
@@ -177,17 +182,22 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
         V = variance(var)
         if not (V > 0):
             raise PrecisionExhausted("not certified: the race variable has no random part")
-        # --- aliasing: P(|X| >= L/2) <= e^{-(L/2-|mu|)^2/2V} + e^{-(L/2+|mu|)^2/2V}
+        # --- aliasing (docs/method.md, section 4, Lemma A): with h = L/2 and mu in
+        # [mu_lo, mu_hi] inside (-h, h), V <= V_hi:
+        #   P(|X| >= h) <= exp(-(h - mu_hi)^2 / (2 V_hi)) + exp(-(h + mu_lo)^2 / (2 V_hi)),
+        # each term bounded at the end of the mean's ball that makes it largest (no
+        # monotonicity in |mu| is needed)
         budget_alias = tau / 8
         vf = float(V.upper())
         t = math.sqrt(2 * vf * math.log(2 / budget_alias))
         half_L = Fraction(math.ceil((abs(float(mu.mid())) + float(mu.rad()) + t) * 64) / 64)
         L = 2 * _arb_q(half_L)
-        mu_abs_up = arb(abs(mu).upper())
-        gap = _arb_q(half_L) - mu_abs_up
-        if not (gap > 0):
+        h = _arb_q(half_L)
+        mu_lo, mu_hi, V_hi = arb(mu.lower()), arb(mu.upper()), arb(V.upper())
+        gap_up, gap_down = h - mu_hi, h + mu_lo
+        if not (gap_up > 0 and gap_down > 0):
             raise PrecisionExhausted("not certified: period too short for the mean")
-        alias = (-(gap**2) / (2 * V)).exp() + (-((_arb_q(half_L) + mu_abs_up) ** 2) / (2 * V)).exp()
+        alias = (-(gap_up**2) / (2 * V_hi)).exp() + (-(gap_down**2) / (2 * V_hi)).exp()
         alias = arb(alias.upper())
         eps = 2 * arb.pi() / L
         # --- truncation: smallest odd N with bound <= tau/8

@@ -61,6 +61,26 @@ class RaceQuestion:
                     f"sum over non-residues a of pi(x;{q},a)/#N > sum over residues b of pi(x;{q},b)/#R")
         return f"the logarithmic density of the set of x >= 2 with {self.label[len('density of ['):-1]}"
 
+    @property
+    def normalisation(self) -> Fraction:
+        """The factor c > 0 with sum_a |c w_a| = 2 (1 for two-way and residue races).
+
+        The density of sum_a w_a pi(x;q,a) > 0 does not change when every weight
+        is multiplied by the same c > 0 (docs/method.md, section 1c); the race
+        variable is built from the normalised weights, so that a race and any
+        positive multiple of it are computed identically.
+        """
+        total = sum((abs(w) for _, w in self.weights), Fraction(0))
+        if total == 0:
+            raise BadInput("all weights are zero: there is no race")
+        return Fraction(2) / total
+
+    @property
+    def normalised_weights(self) -> tuple[tuple[int, Fraction], ...]:
+        """The weights times :attr:`normalisation` (sum of absolute values 2)."""
+        c = self.normalisation
+        return tuple((a, w * c) for a, w in self.weights)
+
     def weight_of(self, a: int) -> Fraction:
         for c, w in self.weights:
             if c == a:
@@ -120,16 +140,17 @@ def weighted(q, weights: dict) -> RaceQuestion:
 
 
 def mean_of(question: RaceQuestion) -> Fraction:
-    """mu = -sum_a w_a c(q, a)."""
-    return -sum((w * c_value(question.modulus, a) for a, w in question.weights), Fraction(0))
+    """mu = -sum_a w_a c(q, a), for the normalised weights (docs/method.md, section 1c)."""
+    return -sum((w * c_value(question.modulus, a) for a, w in question.normalised_weights),
+                Fraction(0))
 
 
 def weight_sum_is_zero(question: RaceQuestion, chi: Character) -> bool:
     """Whether W(chi) = sum_a w_a chi(a) is exactly 0 (in the cyclotomic field)."""
     if chi.order == 1:
-        return sum(w for _, w in question.weights) == 0
+        return sum(w for _, w in question.normalised_weights) == 0
     coeffs = [Fraction(0)] * chi.order
-    for a, w in question.weights:
+    for a, w in question.normalised_weights:
         coeffs[chi.exponent(a)] += w
     den = 1
     for c in coeffs:
@@ -141,9 +162,9 @@ def weight_sum_is_zero(question: RaceQuestion, chi: Character) -> bool:
 
 
 def weight_modulus(question: RaceQuestion, chi: Character) -> arb:
-    """|W(chi)| as a ball."""
+    """|W(chi)| as a ball, for the normalised weights."""
     s = acb(0)
-    for a, w in question.weights:
+    for a, w in question.normalised_weights:
         s += chi.value(a) * (arb(w.numerator) / w.denominator)
     return abs(s)
 

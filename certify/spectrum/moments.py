@@ -18,12 +18,10 @@ working precision is raised accordingly and the output radii checked.
 
 from __future__ import annotations
 
-from math import comb
-
 from flint import acb_series, dirichlet_char
 
 from ..arith import acb, arb, series_cap, workprec
-from ..errors import PrecisionExhausted
+from .lfunction import AnalyticL, power_sums, zero_power_sums_of
 
 
 def log_lambda_coefficients(conductor: int, label: int, parity: int, count: int, prec: int):
@@ -46,36 +44,56 @@ def log_lambda_coefficients(conductor: int, label: int, parity: int, count: int,
 
 def power_sums_from_coefficients(re_c: list[arb], count: int) -> list[arb]:
     """S_1..S_count from Re c_1..Re c_count by the binomial formula."""
-    out = []
-    for m in range(1, count + 1):
-        s = arb(0)
-        for j in range(1, m + 1):
-            term = comb(2 * m - j - 1, m - 1) * 2 * j * re_c[j - 1]
-            s += term if j % 2 == 1 else -term
-        out.append(s)
-    return out
+    return power_sums(re_c, count)
+
+
+class DirichletL(AnalyticL):
+    """L(s, chi) for a primitive character, as an :class:`AnalyticL`."""
+
+    degree = 1
+    central_order = 0
+
+    def __init__(self, conductor: int, label: int, parity: int | None = None):
+        self.conductor = conductor
+        self.label = label
+        self.key = (conductor, label)
+        self.name = f"L(s, chi_{{{conductor},{label}}})"
+        self._parity = parity
+        self._chi = None
+
+    @property
+    def chi(self):
+        if self._chi is None:
+            self._chi = dirichlet_char(self.conductor, self.label)
+        return self._chi
+
+    @property
+    def parity(self) -> int:
+        if self._parity is None:
+            self._parity = int(self.chi.parity())
+        return self._parity
+
+    @property
+    def self_dual(self) -> bool:
+        return int(self.chi.order()) <= 2
+
+    def hardy_z(self, t: arb, prec: int) -> arb:
+        with workprec(prec):
+            return self.chi.hardy_z(t).real
+
+    def log_lambda_jet(self, count: int, prec: int) -> list:
+        return log_lambda_coefficients(self.conductor, self.label, self.parity, count, prec)
 
 
 def zero_power_sums(conductor: int, label: int, parity: int, count: int,
                     abs_accuracy_bits: int = 100, max_prec: int = 20000) -> list[arb]:
     """Enclosures of S_1..S_count for the primitive character chi_{conductor,label}.
 
-    Raises precision until the radius of S_m is below 2^-(abs_accuracy_bits + 2 m log2 m_scale)
-    relative to the scale of the expected residual, or raises PrecisionExhausted.
+    Raises precision until the radius of S_m is below 2^-abs_accuracy_bits,
+    or raises PrecisionExhausted (the generic :func:`zero_power_sums_of`).
     """
-    need = abs_accuracy_bits
-    # the alternating binomial sum loses about 2 bits per moment
-    prec = need + 3 * count + 64
-    while prec <= max_prec:
-        with workprec(prec):
-            cs = log_lambda_coefficients(conductor, label, parity, count, prec)
-            sums = power_sums_from_coefficients([c.real for c in cs], count)
-            if all(s.is_finite() and s.rad() < arb(2) ** (-need) for s in sums):
-                return sums
-        prec *= 2
-    raise PrecisionExhausted(
-        f"not certified: zero power sums of chi_{{{conductor},{label}}} "
-        f"could not be enclosed to 2^-{need} below {max_prec} bits")
+    return zero_power_sums_of(DirichletL(conductor, label, parity), count,
+                              abs_accuracy_bits, max_prec)
 
 
 def central_value(conductor: int, label: int, prec: int = 64) -> acb:

@@ -1,6 +1,8 @@
-"""Zeros of primitive Dirichlet L-functions on the critical line.
+"""Zeros of analytic L-functions on the critical line (one code path for all).
 
-Ordinates are isolated by sign changes of the Hardy Z-function
+Written against :class:`certify.spectrum.lfunction.AnalyticL` (primitive
+Dirichlet L-functions, zeta, L(E, s), ...).  Ordinates are isolated by sign
+changes of the Hardy Z-function, e.g.
 Z(t, chi) = e^{i theta(t)} L(1/2 + i t, chi), which is real for real t; a
 certified sign change between two points proves a zero of odd order on the
 critical line between them.  Signs are read from Arb balls only: a sign is
@@ -18,10 +20,9 @@ import math
 from fractions import Fraction
 from dataclasses import dataclass, field
 
-from flint import dirichlet_char
-
 from ..arith import arb, workprec
 from ..errors import PrecisionExhausted
+from .lfunction import mean_spacing_of
 
 
 def _dyadic(x: float) -> arb:
@@ -36,18 +37,36 @@ class ZCounter:
 
 
 class HardyZ:
-    """Rigorous Z(t, chi) for a primitive character, with sign decisions."""
+    """Rigorous Z(t) of an analytic L-function, with sign decisions.
 
-    def __init__(self, conductor: int, label: int):
-        self.conductor = conductor
-        self.label = label
-        self.chi = dirichlet_char(conductor, label)
+    ``HardyZ(conductor, label)`` is the primitive Dirichlet L(s, chi_{conductor,label});
+    ``HardyZ.of(L)`` wraps any :class:`certify.spectrum.lfunction.AnalyticL`.
+    """
+
+    def __init__(self, conductor, label: int | None = None):
+        if label is None:
+            self.lfun = conductor
+        else:
+            from .moments import DirichletL
+
+            self.lfun = DirichletL(conductor, label)
+        self.conductor = self.lfun.conductor
+        self.label = getattr(self.lfun, "label", 0)
         self.counter = ZCounter()
 
+    @classmethod
+    def of(cls, lfun) -> "HardyZ":
+        return cls(lfun)
+
     def value(self, t: arb, prec: int) -> arb:
-        with workprec(prec):
-            self.counter.calls += 1
-            return self.chi.hardy_z(t).real
+        self.counter.calls += 1
+        return self.lfun.hardy_z(t, prec)
+
+    def spacing(self, t: float) -> float:
+        return self.lfun.mean_spacing(t)
+
+    def prec_for(self, width: float, t: float) -> int:
+        return max(64, int(-math.log2(width)) + 24 + int(math.log2(self.lfun.prec_scale(t))))
 
     def sign(self, t: arb, prec: int, max_prec: int | None = None) -> tuple[int, arb, int]:
         """(sign, value, prec used) of Z(t); sign 0 if undecided up to ``max_prec``.
@@ -69,7 +88,7 @@ class HardyZ:
 
 def mean_spacing(conductor: int, t: float) -> float:
     """2 pi / log(q t / 2 pi): mean gap between ordinates near height t (>= one unit)."""
-    return 2 * math.pi / max(math.log(max(conductor * max(t, 1.0) / (2 * math.pi), 1.0)), 1.0)
+    return mean_spacing_of(conductor, 1, t)
 
 
 def locate(z: HardyZ, t_from: float, t_to: float, fraction: float = 0.25,
@@ -85,10 +104,10 @@ def locate(z: HardyZ, t_from: float, t_to: float, fraction: float = 0.25,
     while s_prev == 0:
         s_prev, _, _ = z.sign(_dyadic(t), prec)
         if s_prev == 0:
-            t += 1e-6 * mean_spacing(z.conductor, t)
+            t += 1e-6 * z.spacing(t)
     a = t
     while a < t_to:
-        b = min(a + fraction * mean_spacing(z.conductor, a), t_to)
+        b = min(a + fraction * z.spacing(a), t_to)
         if b <= a:
             break
         s, _, _ = z.sign(_dyadic(b), prec)
@@ -121,7 +140,7 @@ def _refine_bracketed(z: HardyZ, a: float, b: float, sa: int, width: float) -> a
     for _ in range(1000):
         if hi - lo <= target:
             break
-        prec = _prec_for(float(hi - lo) / 64, float(hi), z.conductor)
+        prec = z.prec_for(float(hi - lo) / 64, float(hi))
         if f_lo is None:
             f_lo = _frac(z.sign(_ball(lo), prec)[1])
         if f_hi is None:
@@ -139,12 +158,12 @@ def _refine_bracketed(z: HardyZ, a: float, b: float, sa: int, width: float) -> a
             c = (lo + hi) / 2
         s, v, _ = z.sign(_ball(c), prec)
         if s == 0:
-            s, v, _ = z.sign(_ball(c), _prec_for(float(target) / 16, float(hi), z.conductor))
+            s, v, _ = z.sign(_ball(c), z.prec_for(float(target) / 16, float(hi)))
         if s == 0:
             # |Z(c)| is within rounding: the zero is within a few ulps; close in.
             d = max(target / 4, Fraction(1, den))
             l2, h2 = max(lo, c - d), min(hi, c + d)
-            p2 = max(2 * prec, _prec_for(float(d) / 16, float(hi), z.conductor))
+            p2 = max(2 * prec, z.prec_for(float(d) / 16, float(hi)))
             sl = z.sign(_ball(l2), p2)[0] if l2 > lo else s_lo
             sh = z.sign(_ball(h2), p2)[0] if h2 < hi else -s_lo
             if sl == s_lo and sh == -s_lo:
@@ -184,7 +203,7 @@ def refine(z: HardyZ, a: float, b: float, sa: int, width: float) -> arb:
     den = 1 << max(8, int(-math.log2(width)) + 12)
     try:
         x0, x1 = lo, hi
-        p0 = _prec_for(float(hi - lo) / 64, float(hi), z.conductor)
+        p0 = z.prec_for(float(hi - lo) / 64, float(hi))
         f0 = _frac(z.value(_ball(x0), p0))
         f1 = _frac(z.value(_ball(x1), p0))
         step = hi - lo
@@ -202,7 +221,7 @@ def refine(z: HardyZ, a: float, b: float, sa: int, width: float) -> arb:
                 break
             # the next step should be accurate to about step^1.6: evaluate to that precision
             acc = max(float(step) ** 1.6 / 64, float(target) / 64)
-            f1 = _frac(z.value(_ball(x1), _prec_for(acc, float(hi), z.conductor)))
+            f1 = _frac(z.value(_ball(x1), z.prec_for(acc, float(hi))))
         else:
             raise ArithmeticError
         if step >= target / 8:
@@ -211,7 +230,7 @@ def refine(z: HardyZ, a: float, b: float, sa: int, width: float) -> arb:
         l2, h2 = x1 - half, x1 + half
         if not (lo <= l2 and h2 <= hi):
             raise ArithmeticError
-        p2 = _prec_for(float(half) / 16, float(hi), z.conductor)
+        p2 = z.prec_for(float(half) / 16, float(hi))
         sl = z.sign(_ball(l2), p2)[0] if l2 > lo else sa
         sh = z.sign(_ball(h2), p2)[0] if h2 < hi else -sa
         if not (sl == sa and sh == -sa):
@@ -256,7 +275,18 @@ def find_zeros(conductor: int, label: int, height: float, width: float,
     ``start`` reuses a previous list: its zeros are kept (refined further if
     ``width`` is smaller) and the search continues from its height.
     """
-    zf = HardyZ(conductor, label)
+    return find_zeros_of(HardyZ(conductor, label), height, width, fraction, start)
+
+
+def find_zeros_of(lfun, height: float, width: float, fraction: float = 0.25,
+                  start: ZeroList | None = None, t_from: float = 0.0) -> ZeroList:
+    """Certified positive ordinates up to ``height`` of any AnalyticL (or a HardyZ of one).
+
+    Every returned ball is a certified sign change of the Hardy Z-function;
+    completeness is checked afterwards by the residual sums.  ``t_from`` > 0
+    starts the search off t = 0 (where Z vanishes at a central zero).
+    """
+    zf = lfun if isinstance(lfun, HardyZ) else HardyZ.of(lfun)
     if start is not None and start.grid_fraction <= fraction:
         brackets = list(start.brackets)
         zeros = list(start.zeros)
@@ -264,12 +294,12 @@ def find_zeros(conductor: int, label: int, height: float, width: float,
         if start.width > width:
             zeros = [refine(zf, a, b, s, width) for (a, b, s) in brackets]
     else:
-        brackets, zeros, t0 = [], [], 0.0
+        brackets, zeros, t0 = [], [], float(t_from)
     if height > t0:
         new = locate(zf, t0, height, fraction)
         brackets += new
         zeros += [refine(zf, a, b, s, width) for (a, b, s) in new]
     calls = zf.counter.calls + (start.z_calls if start is not None else 0)
-    return ZeroList(conductor, label, max(height, t0), zeros, brackets,
+    return ZeroList(zf.conductor, zf.label, max(height, t0), zeros, brackets,
                     min(width, start.width) if start is not None and height <= t0 and start.width <= width else width,
                     calls, fraction)
