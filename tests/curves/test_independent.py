@@ -107,6 +107,23 @@ def exact_periodic_density(coeffs: list[int], q: int, mode: str, P: int):
     return Fraction(sum(1 for s in signs if s > 0), P)
 
 
+def vanishing_progression(coeffs: list[int], q: int, max_modulus: int = 12):
+    """(r, m) if the degree-race limit Y_n = [n even] - p_n / q^n is exactly 0 for all n = r mod m.
+
+    Along a progression the sequence p_(r + m s) satisfies a linear recurrence of order <= deg L
+    (its terms are sums of deg L geometric sequences), so deg L + 1 consecutive zeros make it 0.
+    """
+    N = len(coeffs) - 1
+    n_max = max_modulus * (N + 2) + max_modulus
+    p = _power_sums(coeffs, n_max)
+    for m in range(1, max_modulus + 1):
+        for r in range(1, m + 1):
+            ns = range(r, n_max + 1, m)
+            if len(ns) > N + 1 and all(p[n] == (q**n if n % 2 == 0 else 0) for n in ns):
+                return r % m, m
+    return None
+
+
 def orbit_frequency(coeffs: list[int], q: int, mode: str, n_max: int = 6000, n_min: int = 200) -> float:
     """Share of n in [n_min, n_max] where the limit function (all roots, no pairing) is > 0; floats."""
     N = len(coeffs) - 1
@@ -186,6 +203,10 @@ def _check(E, L, mode: str, stats: dict):
             assert R is not None, (q, coeffs, mode, err)
             assert R.density.width == 0 and R.density.lower == expected, (q, coeffs, mode, R.density, expected)
             stats["exact periodic"] += 1
+        return
+    if mode == "degree" and vanishing_progression(coeffs, q) is not None:
+        assert R is None and "vanishes identically" in str(err), (q, coeffs, mode, R and R.density)
+        stats["refused (limit 0 on a class)"] += 1
         return
     assert R is not None, (q, coeffs, mode, err)
     freq = orbit_frequency(coeffs, q, mode)
