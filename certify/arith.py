@@ -26,7 +26,7 @@ __all__ = [
     "arb", "acb", "arb_series", "acb_series", "fmpq", "fmpz",
     "workprec", "current_prec", "Verdict", "sign_verdict", "less_verdict",
     "arb_to_fraction", "lower_fraction", "upper_fraction",
-    "decimal_down", "decimal_up", "certified_digits", "ball_strings",
+    "decimal_down", "decimal_up", "certified_digits", "certified_significant", "ball_strings",
     "ball_from_strings", "flint_version", "hull", "rad_float",
     "sci_text", "sci_up", "sci_down", "bound_text", "interval_text", "sci_interval_text",
     "places_for_width", "fraction_text", "upper_float",
@@ -184,6 +184,36 @@ def certified_digits(lo: Fraction, hi: Fraction, max_digits: int = 60) -> str:
         best = _fraction_decimal(Fraction(a, scale) * (1 if lo >= 0 else -1), d, up=False)
         # a truncation boundary inside the interval would change the digit
     return best
+
+
+def certified_significant(lo: Fraction, hi: Fraction, max_digits: int = 80) -> tuple[int, str]:
+    """(k, text): the k leading significant digits common to every number of [lo, hi].
+
+    For 0 < lo <= hi with the same decimal exponent, ``text`` is those digits
+    in scientific notation, truncated (each printed digit is the same for every
+    point of the interval), e.g. ``(10, "2.629967327e-7")``.  Returns (0, "")
+    if the interval contains 0, is not positive, or spans a power of ten.
+    """
+    lo, hi = Fraction(lo), Fraction(hi)
+    if lo > hi:
+        raise ValueError("empty interval")
+    if not lo > 0:
+        return 0, ""
+    e = _floor_log10(lo)
+    if _floor_log10(hi) != e:
+        return 0, ""
+    k = 0
+    lead = ""
+    for d in range(1, max_digits + 1):
+        scale = Fraction(10) ** (d - 1 - e)
+        a = (lo * scale).__floor__()
+        b = (hi * scale).__floor__()
+        if a != b:
+            break
+        k, lead = d, str(a)
+    if not k:
+        return 0, ""
+    return k, f"{lead[0]}{'.' + lead[1:] if k > 1 else ''}e{e}"
 
 
 def ball_strings(x: arb) -> tuple[str, str]:

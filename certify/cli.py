@@ -14,6 +14,7 @@ from __future__ import annotations
 import argparse
 import importlib
 import sys
+import warnings
 
 from .errors import BadInput, CertifyError
 
@@ -23,8 +24,10 @@ COMMAND_MODULES = [
     "certify.commands.races",
     "certify.commands.documents",
     "certify.commands.batch",
+    "certify.commands.lirace",
     "certify.ffield.commands",
     "certify.curves.commands",
+    "certify.commands.ecrace",
 ]
 
 
@@ -58,8 +61,21 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _one_line_warning(message, category, filename, lineno, line=None):
+    """Warnings on the command line: one line, no source location."""
+    return f"certify: warning: {_message(message)}\n"
+
+
+def _message(exc: BaseException) -> str:
+    return " ".join(str(exc).split()) or type(exc).__name__
+
+
 def main(argv: list[str] | None = None) -> int:
+    import sqlite3
+
     argv = sys.argv[1:] if argv is None else list(argv)
+    shown = warnings.formatwarning
+    warnings.formatwarning = _one_line_warning
     try:
         parser = build_parser()
         args = parser.parse_args(argv)
@@ -68,14 +84,28 @@ def main(argv: list[str] | None = None) -> int:
             return 2
         return int(args.func(args) or 0)
     except CertifyError as exc:
-        print(f"certify: error: {exc}", file=sys.stderr)
+        for line in str(exc).splitlines() or [type(exc).__name__]:
+            print(f"certify: error: {line}", file=sys.stderr)
         return exc.exit_code
     except KeyboardInterrupt:
         print("certify: interrupted", file=sys.stderr)
         return 130
-    except (OSError, MemoryError) as exc:
-        print(f"certify: error: {exc}", file=sys.stderr)
+    except MemoryError:
+        print("certify: error: out of memory; try a smaller input", file=sys.stderr)
         return 1
+    except OSError as exc:
+        where = f" {exc.filename}" if getattr(exc, "filename", None) else ""
+        print(f"certify: error:{where} {exc.strerror or _message(exc)}", file=sys.stderr)
+        return 1
+    except sqlite3.Error as exc:
+        print(f"certify: error: the spectra cache failed: {_message(exc)}", file=sys.stderr)
+        return 1
+    except (OverflowError, RecursionError) as exc:
+        print(f"certify: error: a number or a nesting in the input is too large ({_message(exc)})",
+              file=sys.stderr)
+        return 2
+    finally:
+        warnings.formatwarning = shown
 
 
 if __name__ == "__main__":  # pragma: no cover

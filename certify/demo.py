@@ -15,6 +15,8 @@ import os
 import time
 from importlib import resources
 
+from .arith import sci_down
+
 DEMO_FILE = "demo_preprint.claims"
 TITLE = "Lopsided races: the bias of primes in progressions to small moduli (fictitious preprint)"
 
@@ -40,7 +42,7 @@ def run_demo(out_dir: str = "reports", quiet: bool = False) -> dict:
     lines = [f"Demo: {TITLE}", f"  claims: {shown_src} (in the installed package: {src})"]
     for v in verdicts:
         lines.append(f"  {v.claim.race.label} = {v.claim.text}: {v.verdict}"
-                     + (f" (off by {float(v.margin):.2e})" if v.margin is not None else "")
+                     + (f" (off by at least {sci_down(v.margin, 3)})" if v.margin is not None else "")
                      + (f" after refinement to {v.digits_tried[-1]} digits"
                         if len(v.digits_tried) > 1 else ""))
     # the showcase certificate: every format

@@ -221,8 +221,13 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
 _plan_xi_max = plan_frequency_range  # former private name
 
 
+PUBLISHED_RH = ("Published interval verification (not redone here): \"The Riemann hypothesis is "
+                "true up to 3*10^12\", Bulletin of the London Mathematical Society 53 (2021).")
+
+
 def _hypotheses(question, group_reports) -> tuple:
     ls = sorted({k for g in group_reports for k in g.primitive_keys})
+    zeta = question.is_li_race
     ev_grh = []
     for g in group_reports:
         ev_grh.append(
@@ -230,14 +235,25 @@ def _hypotheses(question, group_reports) -> tuple:
             f"of the Hardy Z-function up to height {decimal_down(Fraction(g.height), 4)}; "
             "residual power sums "
             f"non-negative and consistent with none missing below that height")
-    ev_grh.append("Published interval verifications (not redone here): Math. Comp. 61 (1993), "
-                  "all conductors < 13 to height 10000; Math. Comp. (2016), conductors <= 400000.")
+    if zeta:
+        ev_grh.append(PUBLISHED_RH)
+    else:
+        ev_grh.append("Published interval verifications (not redone here): Math. Comp. 61 (1993), "
+                      "all conductors < 13 to height 10000; Math. Comp. (2016), conductors <= 400000.")
     ev_li = []
     for g in group_reports:
         for (c, n), cv in zip(g.primitive_keys, g.central_values):
-            ev_li.append(f"L(1/2, chi_{{{c},{n}}}) = {cv.str(8)} excludes 0")
+            name = "zeta(1/2)" if c == 1 else f"L(1/2, chi_{{{c},{n}}})"
+            ev_li.append(f"{name} = {cv.str(8)} excludes 0")
     ev_li.append("every isolated zero is a certified sign change in its own disjoint interval "
                  "(odd order; simplicity itself is assumed)")
+    if zeta:
+        return (
+            Hypothesis("RH", "The Riemann hypothesis: every non-trivial zero of zeta(s) has real "
+                       "part 1/2.", "assumed", tuple(ev_grh)),
+            Hypothesis("LI", "The positive ordinates of the non-trivial zeros of zeta(s) are "
+                       "linearly independent over Q.", "assumed", tuple(ev_li)),
+        )
     names = ", ".join(f"L(s, chi_{{{c},{n}}})" for (c, n) in ls)
     return (
         Hypothesis("GRH", f"The generalised Riemann hypothesis for {names}: every non-trivial "

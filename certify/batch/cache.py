@@ -25,9 +25,12 @@ Location
 ``$CERTIFY_CACHE`` if set, else ``$XDG_CACHE_HOME/certify/spectra.sqlite``,
 else ``~/.cache/certify/spectra.sqlite``; any path can be given instead.
 
-The cache stores certified data, but certifies nothing by itself: the race
-driver re-runs every check (residual sums, sign changes recorded as balls)
-on what it loads, and results stay conditional on GRH and LI.
+The cache stores certified data, but certifies nothing by itself: every
+entry read is re-derived before use (:mod:`certify.batch.recheck`: power
+sums and L(1/2) recomputed, each zero's sign change re-checked); an entry
+that fails is skipped with a warning naming the file and recomputed.  The
+race driver then re-runs every check (residual sums) on what it gets, and
+results stay conditional on GRH and LI.
 """
 
 from __future__ import annotations
@@ -37,6 +40,7 @@ import math
 import os
 import sqlite3
 import time
+import warnings
 from dataclasses import dataclass
 
 from .. import __version__
@@ -44,6 +48,7 @@ from ..arith import flint_version
 from ..errors import BadInput
 from ..spectrum.spectrum import PrimitiveSpectrum, SpectrumStore
 from ..spectrum.zeros import ZeroList
+from .recheck import recheck_spectrum
 from .serial import FORMAT, decode, encode
 
 SOFTWARE_VERSION = f"certify {__version__}; spectrum format {FORMAT}"
@@ -73,6 +78,10 @@ CREATE TABLE IF NOT EXISTS spectra (
 );
 CREATE INDEX IF NOT EXISTS spectra_key ON spectra (conductor, label, version);
 """
+
+
+class CacheWarning(UserWarning):
+    """A cache entry was skipped (damaged, or wrong on re-derivation); the work is redone."""
 
 
 def default_cache_path() -> str:
@@ -144,24 +153,31 @@ class SpectrumCache:
     connection per process, so it can be handed to worker processes.
     """
 
-    def __init__(self, path: str | None = None, version: str = SOFTWARE_VERSION):
+    def __init__(self, path: str | None = None, version: str = SOFTWARE_VERSION,
+                 read_only: bool = False):
         self.path = os.path.abspath(os.path.expanduser(path or default_cache_path()))
         self.version = version
+        self.read_only = read_only
         self._conn = None
         self._pid = None
         self.loads = 0
         self.saves = 0
         self.damaged: list[int] = []
+        self.rechecked = 0
+        self.recheck_seconds = 0.0
 
     def __getstate__(self):
-        return {"path": self.path, "version": self.version}
+        return {"path": self.path, "version": self.version, "read_only": self.read_only}
 
     def __setstate__(self, state):
-        self.__init__(state["path"], state["version"])
+        self.__init__(state["path"], state["version"], state.get("read_only", False))
 
     # -- connection ---------------------------------------------------------
     def connection(self) -> sqlite3.Connection:
         if self._conn is None or self._pid != os.getpid():
+            if self.read_only:
+                self._conn, self._pid = self._connect_read_only(), os.getpid()
+                return self._conn
             folder = os.path.dirname(self.path)
             try:
                 os.makedirs(folder, exist_ok=True)
@@ -172,10 +188,30 @@ class SpectrumCache:
                 conn.execute("PRAGMA synchronous = NORMAL" if mode == "wal" else
                              "PRAGMA synchronous = FULL")
                 self._init_schema(conn)
-            except sqlite3.DatabaseError as exc:
+            except sqlite3.Error as exc:
                 raise BadInput(f"cache {self.path}: not a usable SQLite database ({exc})") from None
             self._conn, self._pid = conn, os.getpid()
         return self._conn
+
+    def _connect_read_only(self) -> sqlite3.Connection:
+        """A connection that writes nothing (a cache on a read-only file or folder)."""
+        from urllib.parse import quote
+
+        if not os.path.isfile(self.path):
+            raise BadInput(f"no cache at {self.path}")
+        last = None
+        for flags in ("mode=ro", "mode=ro&immutable=1"):
+            try:
+                conn = sqlite3.connect(f"file:{quote(self.path)}?{flags}", uri=True,
+                                       timeout=BUSY_TIMEOUT_MS / 1000, isolation_level=None)
+                row = conn.execute("SELECT value FROM meta WHERE key='schema'").fetchone()
+                if row is None or row[0] != str(SCHEMA):
+                    raise BadInput(f"cache {self.path}: schema {row[0] if row else '(none)'} "
+                                   f"is not {SCHEMA}")
+                return conn
+            except sqlite3.DatabaseError as exc:
+                last = exc
+        raise BadInput(f"cache {self.path}: not a readable SQLite database ({last})")
 
     def _init_schema(self, conn):
         conn.execute("BEGIN IMMEDIATE")
@@ -222,21 +258,38 @@ class SpectrumCache:
             raise KeyError(entry_id)
         return bytes(row[0]), row[1]
 
+    def _skip(self, entry_id: int, why: str) -> None:
+        self.damaged.append(int(entry_id))
+        warnings.warn(f"cache {self.path}: entry {entry_id} skipped and recomputed: {why}",
+                      CacheWarning, stacklevel=3)
+
     def load_entry(self, entry_id: int) -> PrimitiveSpectrum | None:
-        """The spectrum of one row, or None (and noted in ``damaged``) if it fails its checks."""
+        """The re-derived spectrum of one row, or None (noted in ``damaged``, with a warning).
+
+        The checksum guards against accidents; :func:`certify.batch.recheck.recheck_spectrum`
+        against wrong values: power sums and L(1/2) are recomputed and the zeros re-checked.
+        """
+        if int(entry_id) in self.damaged:
+            return None
         try:
             blob, digest = self.read(entry_id)
             sp = decode(blob, digest)
-        except (KeyError, BadInput):
+            sp, seconds = recheck_spectrum(sp)
+        except KeyError:
             self.damaged.append(int(entry_id))
             return None
+        except (BadInput, ArithmeticError, ValueError) as exc:
+            self._skip(entry_id, str(exc))
+            return None
+        self.rechecked += 1
+        self.recheck_seconds += seconds
         self.loads += 1
         return sp
 
     def best_entry(self, key, height: float = 0.0, width: float = float("inf"),
                    moments: int = 0, bits: int = 0, fraction: float = 1.0) -> EntryInfo | None:
         """The entry that satisfies the request with least to spare, else the tallest."""
-        rows = self.entries(key)
+        rows = [e for e in self.entries(key) if e.id not in self.damaged]
         ok = [e for e in rows if e.satisfies(height, width, moments, bits, fraction)]
         if ok:
             return min(ok, key=lambda e: (e.height, -e.width, e.id))
@@ -248,28 +301,39 @@ class SpectrumCache:
 
         With no request, the tallest entry.  Damaged entries are skipped.
         """
-        for _ in range(3):
+        for _ in range(64):
             e = self.best_entry(key, height, width, moments, bits, fraction)
             if e is None:
                 return None
             sp = self.load_entry(e.id)
             if sp is not None:
                 return sp
-            if e.id in self.damaged:
-                # skip it and look again among the rest
-                rows = [r for r in self.entries(key) if r.id not in self.damaged]
-                if not rows:
-                    return None
+            # damaged: best_entry skips it from now on; look again among the rest
         return None
 
     def load_blob(self, key, height, width, moments, bits, fraction=0.25) -> tuple[bytes, str] | None:
-        """(blob, digest) of an entry satisfying the request, without decoding; None if none."""
+        """(blob, digest) of a re-derived entry satisfying the request; None if none.
+
+        The entry is decoded and re-derived (:meth:`load_entry`) and encoded
+        again, so what is shipped to a worker holds the re-derived power sums
+        and L(1/2), never the stored ones.
+        """
         for e in self.entries(key):
             if e.satisfies(height, width, moments, bits, fraction) and e.id not in self.damaged:
-                blob, digest = self.read(e.id)
-                if hashlib.sha256(blob).hexdigest() == digest:
-                    return blob, digest
-                self.damaged.append(e.id)
+                sp = self.load_entry(e.id)
+                if sp is not None:
+                    return encode(sp)
+        return None
+
+    def usable_start(self, key) -> tuple[bytes, str] | None:
+        """(blob, digest) of the best re-derived entry for ``key`` to extend, or None."""
+        for _ in range(64):
+            e = self.best_entry(key)
+            if e is None:
+                return None
+            sp = self.load_entry(e.id)
+            if sp is not None:
+                return encode(sp)
         return None
 
     # -- writing ------------------------------------------------------------
@@ -304,11 +368,30 @@ class SpectrumCache:
 
     def save_blob(self, sp: PrimitiveSpectrum, blob: bytes, digest: str,
                   seconds: float = 0.0) -> int | None:
+        """Store one entry; a write that fails (full disk, read-only file) warns and stores nothing.
+
+        The computation goes on without the cache: the entry is simply computed
+        again next time.
+        """
+        try:
+            return self._save_blob(sp, blob, digest, seconds)
+        except sqlite3.Error as exc:
+            warnings.warn(f"cache {self.path}: could not store the spectrum of "
+                          f"chi_{{{sp.conductor},{sp.label}}} ({exc}); going on without caching it",
+                          CacheWarning, stacklevel=2)
+            return None
+
+    def _save_blob(self, sp: PrimitiveSpectrum, blob: bytes, digest: str,
+                   seconds: float = 0.0) -> int | None:
         conn = self.connection()
         h, w = float(sp.height), float(sp.zeros.width)
         k, b, f = len(sp.power_sums), int(sp.power_sum_bits), float(sp.zeros.grid_fraction)
+        bad = [int(i) for i in self.damaged]
         conn.execute("BEGIN IMMEDIATE")
         try:
+            for eid in bad:  # entries that failed their checks are replaced, not kept beside
+                conn.execute("DELETE FROM spectra WHERE id = ? AND conductor = ? AND label = ?",
+                             (eid, sp.conductor, sp.label))
             cover = conn.execute(
                 "SELECT id FROM spectra WHERE conductor=? AND label=? AND version=? AND height>=? "
                 "AND width<=? AND moments>=? AND moment_bits>=? AND grid_fraction<=? LIMIT 1",
@@ -339,7 +422,11 @@ class SpectrumCache:
 
     # -- maintenance --------------------------------------------------------
     def check(self) -> dict:
-        """Integrity of the file and of every entry: {'integrity': str, 'damaged': [ids], 'entries': n}."""
+        """Integrity of the file and of every entry: {'integrity': str, 'damaged': [ids], 'entries': n}.
+
+        Each entry is checked against its digest and re-derived
+        (:func:`certify.batch.recheck.recheck_spectrum`).
+        """
         conn = self.connection()
         integrity = conn.execute("PRAGMA integrity_check").fetchone()[0]
         bad = []
@@ -348,10 +435,13 @@ class SpectrumCache:
             n += 1
             try:
                 blob, digest = self.read(eid)
-                decode(blob, digest)
-            except (KeyError, BadInput):
+                _, seconds = recheck_spectrum(decode(blob, digest))
+                self.recheck_seconds += seconds
+                self.rechecked += 1
+            except (KeyError, BadInput, ArithmeticError, ValueError):
                 bad.append(eid)
-        return {"integrity": integrity, "damaged": bad, "entries": n}
+        return {"integrity": integrity, "damaged": bad, "entries": n,
+                "recheck_seconds": self.recheck_seconds}
 
     def prune(self, other_versions: bool = False, damaged: bool = False,
               conductor_above: int | None = None, everything: bool = False) -> int:

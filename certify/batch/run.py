@@ -147,10 +147,11 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
             if got is not None:
                 blobs[f"{key[0]}.{key[1]}"] = got
                 continue
-            start_entry = cache.best_entry(key)
-            start = cache.read(start_entry.id) if start_entry is not None else None
-            todo.append((r, start))
+            todo.append((r, cache.usable_start(key)))
         summary["spectra"]["from_cache"] = len(blobs)
+        summary["spectra"]["recheck"] = {"entries": cache.rechecked,
+                                         "seconds": round(cache.recheck_seconds, 3),
+                                         "skipped": len(cache.damaged)}
         if pending:
             executor = make_executor(workers, scheduler)
             summary["executor"] = {"kind": executor.name, "workers": executor.workers}
@@ -173,8 +174,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                 sp_seconds = sum(res["timings"].values())
                 sp = decode(res["blob"], res["digest"])
                 cache.save_blob(sp, res["blob"], res["digest"], sp_seconds)
-                got = cache.load_blob(r.key, r.height, r.width, r.moments, r.bits)
-                blobs[f"{r.conductor}.{r.label}"] = got or (res["blob"], res["digest"])
+                # computed just now by our own worker: shipped as computed (not re-derived)
+                blobs[f"{r.conductor}.{r.label}"] = (res["blob"], res["digest"])
                 pc = per_conductor[r.conductor]
                 pc["characters"] += 1
                 pc["zeros_s"] += res["timings"]["zeros"]

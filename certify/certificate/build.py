@@ -14,10 +14,10 @@ import hashlib
 import json
 from fractions import Fraction
 
-from ..arith import certified_digits, decimal_down, decimal_up, workprec
+from ..arith import certified_digits, certified_significant, decimal_down, decimal_up, workprec
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
-from ..races import DEFAULT_DIGITS, RaceResult, certify_race
+from ..races import DEFAULT_DIGITS, PUBLISHED_RH, RaceResult, certify_race
 from ..result import CAUTION
 from ..spectrum.spectrum import SpectrumStore, residual_sums
 from .evidence import exact_ends, moment_consequences, refine_ordinate, relation_search
@@ -42,6 +42,26 @@ DEFINITION = ("delta = lim_{X -> oo} (1 / log X) * integral over {2 <= x <= X : 
               "sum_a w_a pi(x; q, a) > 0} of dx / x (logarithmic density), which equals "
               "P(X > 0) for the limit law above.")
 
+LI_NORMALISATION = ("E(x) = (log x / sqrt x) * (pi(x) - li(x)); under RH and LI for zeta, E has "
+                    "the limit law of X = -1 + sum_{gamma > 0} 2 / sqrt(1/4 + gamma^2) "
+                    "cos(Theta), Theta independent uniform, gamma over the positive ordinates "
+                    "of the zeros of zeta (the -1 comes from the prime squares). The race "
+                    "pi(x) < li(x) is the race of -E, with mean +1.")
+
+LI_DEFINITION = ("delta = lim_{X -> oo} (1 / log X) * integral over {2 <= x <= X : "
+                 "pi(x) > li(x) (resp. <)} of dx / x (logarithmic density), which equals "
+                 "P(X > 0) (resp. P(X < 0)) for the limit law above; li may be taken from 0 "
+                 "or from 2 (a constant difference does not change the density).")
+
+
+def l_name(conductor: int, label: int) -> str:
+    """How an L-function is named in texts: zeta(s) for conductor 1."""
+    return "zeta(s)" if conductor == 1 else f"L(s, chi_{{{conductor},{label}}})"
+
+
+def central_name(conductor: int, label: int) -> str:
+    return "zeta(1/2)" if conductor == 1 else f"L(1/2, chi_{{{conductor},{label}}})"
+
 
 def input_digest(question: RaceQuestion, digits: int) -> str:
     """sha256 of the canonical description of what was asked."""
@@ -52,6 +72,8 @@ def input_digest(question: RaceQuestion, digits: int) -> str:
 
 
 def reproduce_command(question: RaceQuestion, digits: int) -> str:
+    if question.is_li_race:
+        return f"certify certificate '{question.label}' --digits {digits}"
     if question.kind == "two-way":
         a, b = question.classes
         return f"certify certificate {question.modulus} {a} {b} --digits {digits}"
@@ -69,9 +91,22 @@ def question_record(question: RaceQuestion) -> dict:
         "weights": [{"class": a, "weight": str(w)} for a, w in question.weights],
         "label": question.label,
         "statement": question.statement,
-        "normalisation": NORMALISATION,
-        "definition": DEFINITION,
+        "normalisation": LI_NORMALISATION if question.is_li_race else NORMALISATION,
+        "definition": LI_DEFINITION if question.is_li_race else DEFINITION,
     }
+
+
+def small_side_record(lo: Fraction, hi: Fraction) -> dict:
+    """min(delta, 1 - delta) for the stored enclosure [lo, hi] of delta, in scientific notation.
+
+    Its certified significant digits are those common to the whole enclosure; the
+    ends are rounded outward (two digits past the certified ones).
+    """
+    name, a, b = ("delta", lo, hi) if hi < Fraction(1, 2) else ("1 - delta", 1 - hi, 1 - lo)
+    k, text = certified_significant(a, b)
+    sig = max(k + 2, 3)
+    return {"name": name, "lower": sci(a, sig, up=False), "upper": sci(b, sig, up=True),
+            "significant_digits": k, "certified": text}
 
 
 def answer_record(result: RaceResult) -> dict:
@@ -85,7 +120,8 @@ def answer_record(result: RaceResult) -> dict:
     lower = decimal_down(lo - margin, places)
     upper = decimal_up(hi + margin, places)
     flo, fhi = Fraction(lower), Fraction(upper)
-    return {
+    extra = {"small_side": small_side_record(flo, fhi)} if result.question.is_li_race else {}
+    return {**extra, 
         "enclosure": {"lower": lower, "upper": upper},
         "engine_ball": ball_record(result.ball),
         "width": sci(fhi - flo, 3, up=True),
@@ -97,6 +133,7 @@ def answer_record(result: RaceResult) -> dict:
         "target_met": bool(fhi - flo <= Fraction(1, 10**result.digits_requested)),
         "mean": str(result.mean),
         "variance": ball_record(result.variance),
+        "exact": result.exact.as_dict() if getattr(result, "exact", None) is not None else None,
     }
 
 
@@ -153,9 +190,11 @@ def _zero_count_evidence(lf: dict, zeros: list) -> dict:
 
     c, n = lf["conductor"], lf["label"]
     key = f"{c}.{n}"
+    name = l_name(c, n)
+    rh = "RH" if c == 1 else "GRH"
     ends = sorted(exact_ends(ball_of(z)) for z in zeros)
     if len(ends) < 2:
-        return {"kind": "zero-count", "l_function": key, "text": f"L(s, chi_{{{c},{n}}}): too "
+        return {"kind": "zero-count", "l_function": key, "text": f"{name}: too "
                 "few zeros for an argument-principle count", "data": {"established": False}}
     T = count_height(ends)
     found = sum(1 for lo, hi in ends if hi < T)
@@ -163,15 +202,15 @@ def _zero_count_evidence(lf: dict, zeros: list) -> dict:
         N, pieces = count_zeros(c, n, lf["parity"], T)
     except PrecisionExhausted as exc:
         return {"kind": "zero-count", "l_function": key,
-                "text": f"L(s, chi_{{{c},{n}}}): argument-principle count not established ({exc})",
+                "text": f"{name}: argument-principle count not established ({exc})",
                 "data": {"established": False, "height": _exact_decimal(T)}}
     if N == found:
-        text = (f"L(s, chi_{{{c},{n}}}): GRH verified to height {float(T):.6g}: the argument "
+        text = (f"{name}: {rh} verified to height {float(T):.6g}: the argument "
                 f"principle counts exactly {N} zeros with 0 < gamma < {float(T):.6g} in the critical "
                 f"strip, and {found} sign changes of Z were found there, so all of them lie on the "
                 "critical line and are simple")
     else:
-        text = (f"L(s, chi_{{{c},{n}}}): the argument principle counts {N} zeros with "
+        text = (f"{name}: the argument principle counts {N} zeros with "
                 f"0 < gamma < {float(T):.6g} but {found} sign changes were found: GRH is NOT "
                 "verified to this height")
     return {"kind": "zero-count", "l_function": key, "text": text,
@@ -181,6 +220,9 @@ def _zero_count_evidence(lf: dict, zeros: list) -> dict:
 
 def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
     """GRH and LI with structured evidence (each item: kind, text, data)."""
+    from ..race.question import riemann_hypothesis_name
+
+    rh = riemann_hypothesis_name(result.question)
     grh_ev, li_ev = [], []
     ordinates = []  # (height, group index, l index, zero ball) for the relation search
     for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
@@ -198,7 +240,7 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             grh_ev.append({
                 "kind": "zeros-on-critical-line",
                 "l_function": f"{c}.{n}",
-                "text": (f"L(s, chi_{{{c},{n}}}): {count} zeros on the critical line with ordinates "
+                "text": (f"{l_name(c, n)}: {count} zeros on the critical line with ordinates "
                          f"in (0, {float(g.height):.6g}], each certified by a sign change of the "
                          "Hardy Z-function at the two ends of its enclosure"),
                 "data": {"conductor": c, "label": n, "zeros": count,
@@ -210,10 +252,10 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
         grh_ev.append({
             "kind": "moment-completeness",
             "group": g.label,
-            "text": (f"{g.label}: assuming GRH, no ordinate below {float(h):.6g} is missing from "
+            "text": (f"{g.label}: assuming {rh}, no ordinate below {float(h):.6g} is missing from "
                      f"the isolated list: a missing one would exceed the exact residual power sum "
                      f"R_{cons['moment_index']} by itself (zeros off the line are not counted; "
-                     "this is not a proof of GRH)"),
+                     f"this is not a proof of {rh})"),
             "data": {"complete_below": decimal_down(h, 6), "moment_index": cons["moment_index"]},
         })
         for li, lf in enumerate(rec["l_functions"]):
@@ -222,7 +264,7 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             li_ev.append({
                 "kind": "central-value",
                 "l_function": f"{c}.{n}",
-                "text": f"L(1/2, chi_{{{c},{n}}}) = {cv.str(10)}, an enclosure excluding 0",
+                "text": f"{central_name(c, n)} = {cv.str(10)}, an enclosure excluding 0",
                 "data": {"re": lf["central_value"]["re"], "im": lf["central_value"]["im"]},
             })
         n_simple = cons["simple"]
@@ -231,7 +273,7 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             "group": g.label,
             "text": (f"{g.label}: each of the {len(g.zeros)} isolated zeros has odd order (a sign "
                      f"change in its own disjoint interval); {n_simple} of them are proven simple "
-                     "assuming GRH, since a multiple zero would leave two copies in the exact "
+                     f"assuming {rh}, since a multiple zero would leave two copies in the exact "
                      "residual power sums"),
             "data": {"isolated": len(g.zeros), "proven_simple": n_simple},
         })
@@ -278,16 +320,17 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                 "candidate": rs["candidate"],
             },
         })
-    grh_ev.append({"kind": "published-verification", "text": PUBLISHED_GRH, "data": {}})
+    grh_ev.append({"kind": "published-verification",
+                   "text": PUBLISHED_RH if rh == "RH" else PUBLISHED_GRH, "data": {}})
     by_name = {h.name: h for h in result.hypotheses}
     out = [
-        {"name": "GRH", "statement": by_name["GRH"].statement, "status": "assumed",
-         "evidence": grh_ev, "reference": by_name["GRH"].reference},
+        {"name": rh, "statement": by_name[rh].statement, "status": "assumed",
+         "evidence": grh_ev, "reference": by_name[rh].reference},
         {"name": "LI", "statement": by_name["LI"].statement, "status": "assumed",
          "evidence": li_ev, "reference": by_name["LI"].reference},
     ]
     for h in result.hypotheses:
-        if h.name not in ("GRH", "LI"):
+        if h.name not in (rh, "LI"):
             out.append({"name": h.name, "statement": h.statement, "status": h.status,
                         "evidence": [{"kind": "note", "text": e, "data": {}} for e in h.evidence],
                         "reference": h.reference})
@@ -321,7 +364,7 @@ def certificate_from_result(result: RaceResult, store: SpectrumStore,
         spectrum=spectrum,
         provenance=prov,
         references=refs,
-        caution=CAUTION + " Re-check this file with `certify verify`.",
+        caution=(getattr(result, "caution", "") or CAUTION) + " Re-check this file with `certify verify`.",
     )
 
 

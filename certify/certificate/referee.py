@@ -7,7 +7,10 @@ stands for:
   places, ``[0.99585, 0.99595]``;
 * a decimal with a trailing ``...`` -- a truncation: ``0.9959...`` stands
   for ``[0.9959, 0.9960]``;
-* an interval ``[0.9958, 0.9960]`` -- itself.
+* an interval ``[0.9958, 0.9960]`` -- itself;
+* scientific notation ``2.63e-7`` -- rounded at its last significant digit,
+  ``[2.625e-7, 2.635e-7]`` (``2.63e-7...``: truncated, ``[2.63e-7, 2.64e-7]``),
+  for the tiny densities of the race of pi(x) against li(x).
 
 With E the certified enclosure (under GRH and LI) and C the claim's set:
 E inside C -- **consistent** (every value the enclosure allows prints as the
@@ -16,8 +19,8 @@ otherwise **undecided** at this precision, and the check raises the digits
 itself (reusing the spectra) up to a limit.
 
 Claims files hold one claim per line: ``RACE = VALUE``, where RACE is
-``delta(q;a,b)``, ``delta(q;N,R)`` (non-residues against residues) or
-``weighted(q; a:w, b:w, ...)``; ``#`` starts a comment, blank lines are
+``delta(q;a,b)``, ``delta(q;N,R)`` (non-residues against residues),
+``weighted(q; a:w, b:w, ...)``, ``delta(pi>li)`` or ``delta(pi<li)``; ``#`` starts a comment, blank lines are
 skipped.  See docs/certificates.md.
 """
 
@@ -29,7 +32,8 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 
 from ..errors import BadInput, PrecisionExhausted
-from ..race.question import RaceQuestion, parse_weight_items, residue_race, two_way, weighted
+from ..race.question import (RaceQuestion, parse_weight_items, prime_vs_li, residue_race, two_way,
+                             weighted)
 from ..races import MAX_DIGITS, RaceResult, certify_race
 from ..spectrum.spectrum import SpectrumStore
 from .numbers import interval_str, sci
@@ -131,10 +135,22 @@ def parse_value(text: str) -> tuple[Fraction, Fraction, str, int]:
         if lo > hi:
             raise BadInput(f"interval {t!r} has its ends in the wrong order")
         return lo, hi, "the interval", 0
+    m = re.fullmatch(r"(" + _DEC + r")[eE]([+-]?\d{1,4})(\.\.\.|…)?", t)
+    if m:
+        num, exp = m.group(1), int(m.group(2))
+        places = len(num.split(".", 1)[1]) if "." in num else 0
+        v = Fraction(num) * Fraction(10) ** exp
+        ulp = Fraction(1, 10**places) * Fraction(10) ** exp
+        sig = len(num.lstrip("+-").replace(".", "").lstrip("0")) or 1
+        if m.group(3):
+            lo, hi = (v, v + ulp) if v >= 0 else (v - ulp, v)
+            return lo, hi, f"the truncation to {sig} significant digits", max(places - exp, 0)
+        return (v - ulp / 2, v + ulp / 2, f"the values rounding to it at {sig} significant digits",
+                max(places - exp, 0))
     m = re.fullmatch(r"(" + _DEC + r")(\.\.\.|…)?", t)
     if not m:
         raise BadInput(f"claimed value {t!r} is not a decimal (0.9959), a truncated decimal "
-                       "(0.9959...) or an interval ([0.9958, 0.9960])")
+                       "(0.9959...), scientific notation (2.63e-7) or an interval ([0.9958, 0.9960])")
     num = m.group(1)
     places = len(num.split(".", 1)[1]) if "." in num else 0
     v = Fraction(num)
@@ -149,6 +165,9 @@ def parse_value(text: str) -> tuple[Fraction, Fraction, str, int]:
 def parse_race(text: str) -> RaceQuestion:
     """A race from ``delta(q;a,b)``, ``delta(q;N,R)`` or ``weighted(q; a:w, ...)``."""
     t = text.strip().replace(" ", "")
+    m = re.fullmatch(r"(?:delta|δ)\((pi[<>]li)\)", t, flags=re.IGNORECASE)
+    if m:
+        return prime_vs_li(m.group(1).lower())
     m = re.fullmatch(r"(?:delta|δ)\((\d+);(-?\d+),(-?\d+)\)", t)
     if m:
         return two_way(int(m.group(1)), int(m.group(2)), int(m.group(3)))
@@ -159,8 +178,8 @@ def parse_race(text: str) -> RaceQuestion:
     if m:
         weights = parse_weight_items(m.group(2).split(","), ":")
         return weighted(int(m.group(1)), weights)
-    raise BadInput(f"race {text.strip()!r} is not delta(q;a,b), delta(q;N,R) or "
-                   "weighted(q; a:w, b:w, ...)")
+    raise BadInput(f"race {text.strip()!r} is not delta(q;a,b), delta(q;N,R), "
+                   "weighted(q; a:w, b:w, ...), delta(pi>li) or delta(pi<li)")
 
 
 def parse_claim_line(line: str, source: str = "") -> Claim | None:

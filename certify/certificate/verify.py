@@ -25,8 +25,8 @@ from fractions import Fraction
 from ..arith import arb, certified_digits, workprec
 from ..density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from ..errors import BadInput, CertifyError, Inconsistent
-from ..race.question import (RaceQuestion, mean_of, residue_race, spectral_groups, two_way,
-                             weighted)
+from ..race.question import (LI_KINDS, RaceQuestion, mean_of, prime_vs_li, residue_race,
+                             riemann_hypothesis_name, spectral_groups, two_way, weighted)
 from ..source.dirichlet import primitive_character
 from ..spectrum.moments import central_value, zero_power_sums
 from ..spectrum.spectrum import residual_checks, residual_sums
@@ -34,7 +34,11 @@ from ..spectrum.zeros import HardyZ
 from .evidence import exact_ends, moment_consequences, relation_search
 from .model import Certificate, ball_of
 
-REQUIRED_HYPOTHESES = ("GRH", "LI")
+REQUIRED_HYPOTHESES = ("GRH", "LI")  # for Dirichlet races; the zeta race needs RH and LI
+
+
+def required_hypotheses(question: RaceQuestion) -> tuple:
+    return (riemann_hypothesis_name(question), "LI")
 
 
 @dataclass
@@ -91,6 +95,10 @@ def question_from_record(rec) -> RaceQuestion:
         return residue_race(q)
     if kind == "weighted":
         return weighted(q, {w["class"]: w["weight"] for w in rec["weights"]})
+    if kind in LI_KINDS:
+        if q != 1 or rec.get("classes") or rec.get("weights"):
+            raise BadInput(f"the race {kind} has modulus 1 and no classes or weights")
+        return prime_vs_li(kind)
     raise BadInput(f"unknown race kind {kind!r}")
 
 
@@ -182,6 +190,13 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
     mu = mean_of(question)
     report.add("answer: mean mu = -sum w_a c(q,a)", str(mu) == cert.answer["mean"],
                f"stored {cert.answer['mean']}, recomputed {mu}")
+    ex = cert.answer.get("exact")
+    if ex is not None or mu == 0:
+        # docs/method.md, section 1b: the density is exactly 1/2 iff it is shown so for mean 0
+        ok = (mu == 0 and ex is not None and ex.get("value") == "1/2"
+              and cert.lower <= Fraction(1, 2) <= cert.upper)
+        report.add("answer: exact value 1/2 exactly when the mean is 0 (symmetric law)", ok,
+                   f"stored exact {ex.get('value') if ex else None!r}, recomputed mean {mu}")
 
     # -- spectrum: zeros, moments, residuals ---------------------------------
     stored_groups = cert.spectrum["groups"]
@@ -276,12 +291,18 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
                and s_hi - Fraction(1, 2) <= Fraction(a["gap_to_half"]["upper"]))
     report.add("answer: gaps to 1/2 and to 1 enclose the stored ones", gaps_ok,
                "a printed gap does not contain the interval it describes")
+    if question.is_li_race or "small_side" in a:
+        from .build import small_side_record
+
+        report.add("answer: the small side and its significant digits follow from the stored "
+                   "enclosure", dict(a.get("small_side", {})) == small_side_record(s_lo, s_hi),
+                   f"stored {dict(a.get('small_side', {}))}, implied {small_side_record(s_lo, s_hi)}")
     met = s_hi - s_lo <= Fraction(1, 10**digits)
     report.add("answer: target_met flag", bool(a["target_met"]) == met,
                f"stored {a['target_met']}, width {float(s_hi - s_lo):.3e} vs 1e-{digits}")
 
     # -- hypotheses ----------------------------------------------------------
-    _verify_hypotheses(cert, report, group_data, prec)
+    _verify_hypotheses(cert, report, group_data, prec, required_hypotheses(question))
 
 
 def _overlap(a: arb, b: arb) -> bool:
@@ -295,7 +316,9 @@ def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros) -> Non
     from .zerocount import count_height, count_zeros
 
     e = next((e for e in ev_grh if e["kind"] == "zero-count" and e.get("l_function") == key), None)
-    name = f"GRH evidence for L(s, chi_{{{key}}}): argument-principle count"
+    c0, n0 = (int(x) for x in key.split("."))
+    name = (f"{'RH evidence for zeta(s)' if c0 == 1 else f'GRH evidence for L(s, chi_{{{key}}})'}"
+            ": argument-principle count")
     if e is None:
         report.add(name, False, "missing")
         return
@@ -316,9 +339,10 @@ def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros) -> Non
                f"stored count {d['count']} / {d['sign_changes']} sign changes, recomputed {N} / {found}")
 
 
-def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec: int) -> None:
+def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec: int,
+                       required: tuple = REQUIRED_HYPOTHESES) -> None:
     present = {h["name"]: h for h in cert.hypotheses}
-    for name in REQUIRED_HYPOTHESES:
+    for name in required:
         h = present.get(name)
         if not report.add(f"hypothesis {name} listed", h is not None,
                           f"{name} is missing: the result is conditional on it"):
@@ -327,7 +351,7 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                    f"status {h['status']!r}: certify does not prove {name}")
     report.add("caution: conditional result stated",
                "does not prove" in cert.caution, "the caution sentence is missing")
-    grh, li = present.get("GRH"), present.get("LI")
+    grh, li = present.get(required[0]), present.get("LI")
     if grh is None or li is None:
         return
     ev_grh = [e for e in grh["evidence"]]
@@ -339,7 +363,8 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
             count = sum(1 for z in sg["zeros"] if z["l"] == li_idx)
             e = next((e for e in ev_grh if e["kind"] == "zeros-on-critical-line"
                       and e.get("l_function") == key), None)
-            report.add(f"GRH evidence for L(s, chi_{{{key}}})",
+            report.add("RH evidence for zeta(s)" if lf["conductor"] == 1
+                       else f"GRH evidence for L(s, chi_{{{key}}})",
                        e is not None and e["data"]["zeros"] == count
                        and e["data"]["isolation_height"] == sg["isolation_height"],
                        "missing, or the zero count / height differ from the stored spectrum")
@@ -350,11 +375,12 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                       and e.get("l_function") == key), None)
             ok = e is not None and not cv.contains(0) \
                 and _overlap(ball_of(e["data"]["re"]), cv.real) and _overlap(ball_of(e["data"]["im"]), cv.imag)
-            report.add(f"LI evidence: L(1/2, chi_{{{key}}}) != 0", ok,
+            report.add("LI evidence: zeta(1/2) != 0" if lf["conductor"] == 1
+                       else f"LI evidence: L(1/2, chi_{{{key}}}) != 0", ok,
                        "missing, or the recomputed enclosure disagrees / contains 0")
         e = next((e for e in ev_grh if e["kind"] == "moment-completeness"
                   and e.get("group") == g.label), None)
-        report.add(f"GRH evidence for {g.label}: completeness height",
+        report.add(f"{required[0]} evidence for {g.label}: completeness height",
                    e is not None and Fraction(e["data"]["complete_below"]) <= cons["complete_below"],
                    f"stored {e and e['data']['complete_below']}, recomputed "
                    f"{float(cons['complete_below']):.6g}")

@@ -21,6 +21,13 @@ when Lambda has no zero on C.  Along C:
   open half-plane, so on each piece the change is the principal argument of
   L(end) / L(start).  Pieces are halved until that holds.
 
+For zeta (conductor 1) Lambda has poles at s = 0 and 1; the count uses the entire
+xi(s) = s(s-1)/2 Lambda(s) instead (docs/method.md, section 2b): xi is real and
+positive on the real segment [1/2, 2], so the bottom edge adds nothing, and the
+factor s(s-1) adds exactly pi along 2 -> 2 + iT -> 1/2 + iT (arg s goes from 0
+to arctan 2T, arg(s-1) from 0 to pi - arctan 2T, both continuously in the
+closed upper half-plane).
+
 If N(T) equals the number of zeros found on the critical line below T (each a
 sign change of Z, in disjoint intervals), every zero with 0 < gamma < T lies on
 the critical line and is simple: GRH holds for L(s, chi) up to height T.
@@ -157,8 +164,13 @@ def count_zeros(conductor: int, label: int, parity: int, height: Fraction, prec:
         T = _q(height)
         a = Fraction(1, 2)
         # bottom edge 1/2 -> 2 and top edge 2 + iT -> 1/2 + iT
-        d_bottom = _horizontal_arg_change(chi, Fraction(0), a, RIGHT_EDGE, max_pieces)
-        pieces = _horizontal_arg_change.pieces
+        if conductor == 1:
+            # xi > 0 on [1/2, 2]: no change on the bottom edge; s(s-1) adds pi on the rest
+            d_bottom = arb.pi()
+            pieces = 0
+        else:
+            d_bottom = _horizontal_arg_change(chi, Fraction(0), a, RIGHT_EDGE, max_pieces)
+            pieces = _horizontal_arg_change.pieces
         d_top = _horizontal_arg_change(chi, height, RIGHT_EDGE, a, max_pieces)
         pieces += _horizontal_arg_change.pieces
         # right edge: Re L > 0 there, principal arguments

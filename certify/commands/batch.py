@@ -7,16 +7,12 @@ import shlex
 import sys
 
 from ..errors import BadInput
+from .options import (Limits, add_json, add_limits, add_out, add_progress, add_target, check_outputs,
+                      parse_int, progress_enabled, target_digits, write_json)
 
 
 def _int(text, what: str, low: int | None = None) -> int:
-    try:
-        v = int(text)
-    except (TypeError, ValueError):
-        raise BadInput(f"{what} must be an integer, got {text!r}") from None
-    if low is not None and v < low:
-        raise BadInput(f"{what} must be at least {low}, got {v}")
-    return v
+    return parse_int(text, what, low)
 
 
 def _command_line(args) -> str:
@@ -28,40 +24,77 @@ def _command_line(args) -> str:
         parts += ["--race", r]
     if args.kinds != "two-way,residues":
         parts += ["--kinds", args.kinds]
-    parts += ["--digits", str(args.digits), "--out", args.out]
+    parts += ["--digits", str(target_digits(args)), "--out", args.out]
     return " ".join(shlex.quote(x) for x in parts)
 
 
 def run_table(args) -> int:
+    from ..batch.limits import distinct_l_functions, table_estimate
     from ..batch.plan import parse_moduli, parse_race
     from ..batch.run import run_batch
 
-    moduli = parse_moduli(args.moduli) if args.moduli else []
-    extra = [parse_race(r) for r in (args.race or [])]
-    if not moduli and not extra:
-        raise BadInput("give --moduli (e.g. 3-30) or at least one --race")
-    digits = _int(args.digits, "--digits", 1)
+    check_outputs(args)
+    if args.cache is not None:
+        _check_cache_path(args.cache)
+    limits = Limits.of(args)
+    digits = target_digits(args)
     workers = _int(args.workers, "--workers", 1) if args.workers is not None else None
+    if workers is not None and workers > 256:
+        raise BadInput(f"--workers must be at most 256, got {workers}")
+    top = _int(args.top, "--top", 1)
     kinds = tuple(k.strip() for k in args.kinds.split(",") if k.strip())
+    if not kinds:
+        raise BadInput("--kinds: give two-way, residues or both")
     for k in kinds:
         if k not in ("two-way", "residues"):
             raise BadInput(f"--kinds: unknown race kind {k!r} (use two-way, residues)")
+    moduli = parse_moduli(args.moduli) if args.moduli else []
+    if args.race and len(args.race) > 10_000:
+        raise BadInput("at most 10000 --race options")
+    extra = [parse_race(r) for r in (args.race or [])]
+    if not moduli and not extra:
+        raise BadInput("give --moduli (e.g. 3-30) or at least one --race")
+    est = table_estimate(moduli, kinds, extra)
+    what = f"table of {len(est['moduli'])} moduli up to {est['conductor']}"
+    limits.require("races", est["races"], what)
+    limits.require("memory-mb", est["memory-mb"], what)
+    limits.require("l-functions", distinct_l_functions(est["moduli"]), what)
     cmd = _command_line(args)
     summary = run_batch(moduli, digits, args.out, workers=workers, scheduler=args.scheduler,
                         cache_path=args.cache, kinds=kinds, extra=extra,
-                        top=_int(args.top, "--top", 1), progress=not args.quiet,
+                        top=top, progress=progress_enabled(args) and not args.quiet,
                         command_line=cmd, use_cache=not args.no_cache)
+    if args.json:
+        write_json(summary, args.json)
+    if args.json == "-":
+        return _table_exit(summary)
     t = summary["timings_seconds"]
     sp = summary["spectra"]
     print(f"{summary['races']} races ({summary['races_run']} certified now, "
           f"{summary['races_reused']} already done) in {t['total']:.1f} s; "
           f"spectra: {sp['needed']} needed, {sp['from_cache']} from the cache, "
           f"{sp['computed']} computed")
+    rc_ = sp.get("recheck") or {}
+    if rc_.get("entries") or rc_.get("skipped"):
+        print(f"  cached spectra re-derived before use: {rc_['entries']} in {rc_['seconds']:.2f} s"
+              + (f"; {rc_['skipped']} entries failed and were recomputed" if rc_.get("skipped") else ""))
     for k, v in summary["files"].items():
         print(f"  {k:<12} {os.path.join(args.out, v)}")
     print(f"  results      {os.path.join(args.out, 'results')}/  (one JSON per race)")
     print("Every density is conditional on GRH and LI for the L-functions used; "
           "certify proves neither.")
+    return _table_exit(summary, digits)
+
+
+def _check_cache_path(path: str) -> None:
+    if not str(path).strip():
+        raise BadInput("--cache needs a file name, got an empty string")
+    if os.path.isdir(path):
+        raise BadInput(f"--cache {path}: is a folder; give the cache file's name")
+
+
+def _table_exit(summary, digits=None) -> int:
+    digits = digits if digits is not None else summary.get("digits")
     if summary["failures"] or summary["missing"]:
         for f in summary["failures"]:
             print(f"  not certified: {f['race']}: {f['error']}", file=sys.stderr)
@@ -76,9 +109,15 @@ def run_table(args) -> int:
 def _cache(args):
     from ..batch.cache import SpectrumCache, default_cache_path
 
+    if args.cache is not None:
+        _check_cache_path(args.cache)
     path = args.cache or default_cache_path()
-    if args.cache_command == "show" and not os.path.exists(path):
+    if not os.path.exists(path):
         raise BadInput(f"no cache at {path}")
+    if args.cache_command == "show":
+        return SpectrumCache(path, read_only=True)
+    if not os.access(path, os.W_OK) or not os.access(os.path.dirname(os.path.abspath(path)), os.W_OK):
+        raise BadInput(f"cache {path}: not writable; cannot prune")
     return SpectrumCache(path)
 
 
@@ -135,15 +174,16 @@ def register(sub) -> None:
         "and the residue race for each modulus, sharing each primitive L-function's spectrum "
         "through a persistent cache, and write LaTeX/CSV/Markdown tables and a ranking of the "
         "most biased races.  Resumable: run the same command again after an interruption.  "
-        "Results are conditional on GRH and LI; certify proves neither.")
+        "The number of races, L-functions and memory are estimated first and refused beyond "
+        "the limits (--limit).  Results are conditional on GRH and LI; certify proves neither.")
     p.add_argument("--moduli", "-q", metavar="LIST", help="moduli, e.g. 3-30 or 5,7,11-13")
     p.add_argument("--race", action="append", metavar="RACE",
                    help="an extra race: Q:A,B (two-way), Q:N,R (residues) or Q:A=W,B=W,... "
                    "(weighted); repeatable")
     p.add_argument("--kinds", default="two-way,residues",
                    help="race kinds for each modulus (default two-way,residues)")
-    p.add_argument("--digits", "-d", default="8", help="target width 10^-D for every race (default 8)")
-    p.add_argument("--out", "-o", required=True, metavar="DIR", help="output folder")
+    add_target(p, 8, 60)
+    add_out(p, default=None, required=True)
     p.add_argument("--workers", "-j", default=None, help="local worker processes (default: all cores)")
     p.add_argument("--scheduler", metavar="ADDR",
                    help="run on dask.distributed (e.g. tcp://host:8786); needs dask[distributed]")
@@ -152,24 +192,30 @@ def register(sub) -> None:
     p.add_argument("--no-cache", action="store_true",
                    help="keep spectra in a scratch cache inside DIR instead")
     p.add_argument("--top", default="20", help="length of the ranking of most biased races")
-    p.add_argument("--quiet", action="store_true", help="no progress line")
+    add_json(p, "the batch summary")
+    add_progress(p)
+    p.add_argument("--quiet", action="store_true", help="alias of --no-progress")
+    add_limits(p)
     p.set_defaults(func=run_table)
 
     c = sub.add_parser("cache", help="inspect or prune the cache of certified spectra",
                        description="The SQLite cache of certified spectra (zeros, power sums, "
                        "L(1/2)) shared by batch runs.")
     csub = c.add_subparsers(dest="cache_command", metavar="ACTION")
-    s = csub.add_parser("show", help="list what the cache holds")
+    s = csub.add_parser("show", help="list what the cache holds",
+                        description="List the cache's entries (read-only; works on a read-only file).")
     s.add_argument("--cache", metavar="PATH", help="cache file")
     s.add_argument("--verbose", "-v", action="store_true", help="one line per entry")
     s.add_argument("--check", action="store_true",
-                   help="verify the file's integrity and every entry's checksum")
+                   help="verify the file's integrity, every entry's checksum, and re-derive every "
+                   "entry's power sums, L(1/2) and zeros' sign changes")
     s.set_defaults(func=run_cache_show)
-    r = csub.add_parser("prune", help="remove entries")
+    r = csub.add_parser("prune", help="remove entries", description="Remove entries from the cache.")
     r.add_argument("--cache", metavar="PATH", help="cache file")
     r.add_argument("--other-versions", action="store_true",
                    help="entries written by another software version")
-    r.add_argument("--damaged", action="store_true", help="entries failing their checksum")
+    r.add_argument("--damaged", action="store_true",
+                   help="entries failing their checksum or their re-derivation")
     r.add_argument("--conductor-above", metavar="N", help="entries with conductor > N")
     r.add_argument("--all", action="store_true", help="every entry")
     r.set_defaults(func=run_cache_prune)

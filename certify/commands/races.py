@@ -2,31 +2,35 @@
 
 from __future__ import annotations
 
-import json
 import shlex
-import sys
 
-from ..errors import BadInput
 from ..race.question import parse_weight_items, residue_race, two_way, weighted
 from ..races import DEFAULT_DIGITS, MAX_DIGITS, certify_race
 from ..result import density_lines
+from .options import (Limits, add_json, add_limits, add_target, check_outputs, check_race_size,
+                      parse_int, target_digits, write_json)
 
 
 def _int(text: str, what: str) -> int:
-    try:
-        return int(text)
-    except (TypeError, ValueError):
-        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+    return parse_int(text, what)
 
 
 def _add_common(p):
-    p.add_argument("--digits", "-d", default=str(DEFAULT_DIGITS), metavar="D",
-                   help=f"target: enclosure width at most 10^-D (1..{MAX_DIGITS}; default {DEFAULT_DIGITS})")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    add_target(p, DEFAULT_DIGITS, MAX_DIGITS)
+    add_json(p)
+    add_limits(p)
 
 
 def _digits(args) -> int:
-    return _int(args.digits, "--digits")
+    return target_digits(args)
+
+
+def _prepare(args, question) -> int:
+    """Outputs and sizes checked before any work; returns the target digits."""
+    check_outputs(args)
+    d = _digits(args)
+    check_race_size(question, Limits.of(args), "race")
+    return d
 
 
 def screen(result) -> str:
@@ -64,13 +68,7 @@ def screen(result) -> str:
 
 def emit(result, args) -> int:
     if args.json:
-        text = json.dumps(result.to_dict(), indent=2)
-        if args.json == "-":
-            sys.stdout.write(text + "\n")
-        else:
-            from ..io import write_atomic
-
-            write_atomic(args.json, text + "\n")
+        write_json(result.to_dict(), args.json)
     if args.json != "-":
         print(screen(result))
     return 0 if result.target_met else 5
@@ -83,7 +81,7 @@ def _cmdline(argv_tail) -> str:
 def run_race(args) -> int:
     q = _int(args.modulus, "modulus")
     question = two_way(q, _int(args.a, "class a"), _int(args.b, "class b"))
-    d = _digits(args)
+    d = _prepare(args, question)
     result = certify_race(question, d, command_line=_cmdline(
         ["race", str(q), args.a, args.b, "--digits", str(d)]))
     return emit(result, args)
@@ -91,8 +89,9 @@ def run_race(args) -> int:
 
 def run_residues(args) -> int:
     q = _int(args.modulus, "modulus")
-    d = _digits(args)
-    result = certify_race(residue_race(q), d, command_line=_cmdline(
+    question = residue_race(q)
+    d = _prepare(args, question)
+    result = certify_race(question, d, command_line=_cmdline(
         ["residues", str(q), "--digits", str(d)]))
     return emit(result, args)
 
@@ -105,7 +104,7 @@ def parse_weights(items: list[str]) -> dict:
 def run_weighted(args) -> int:
     q = _int(args.modulus, "modulus")
     question = weighted(q, parse_weights(args.weights))
-    d = _digits(args)
+    d = _prepare(args, question)
     result = certify_race(question, d, command_line=_cmdline(
         ["weighted", str(q), *args.weights, "--digits", str(d)]))
     return emit(result, args)

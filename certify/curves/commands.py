@@ -3,41 +3,60 @@
 from __future__ import annotations
 
 import json
+import os
 import shlex
 import sys
 
+from ..commands.options import (Limits, add_json, add_limits, add_out, add_progress, add_target,
+                                check_json_path, check_outputs, parse_float, parse_int,
+                                progress, progress_enabled, target_width)
 from ..errors import BadInput
-from ..result import CAUTION
+from ..arith import interval_text
+from ..result import CAUTION, ExactValue, caution_text, headline_text
 
 
 def _float(text: str, what: str) -> float:
-    try:
-        v = float(text)
-    except (TypeError, ValueError):
-        raise BadInput(f"{what} must be a number, got {text!r}") from None
-    if not (v == v) or v in (float("inf"), float("-inf")):
-        raise BadInput(f"{what} must be finite, got {text!r}")
-    return v
+    return parse_float(text, what)
 
 
 def _int(text: str, what: str) -> int:
-    try:
-        return int(text)
-    except (TypeError, ValueError):
-        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+    return parse_int(text, what)
 
 
 def _write(text: str, path: str) -> None:
     if path == "-":
         sys.stdout.write(text + "\n")
         return
-    try:
-        from ..io import write_atomic
+    from ..io import write_atomic
 
-        write_atomic(path, text + "\n")
-    except ImportError:  # pragma: no cover
-        with open(path, "w", encoding="utf-8") as fh:
-            fh.write(text + "\n")
+    write_atomic(path, text + "\n")
+
+
+def _check_curve_size(args, what: str, twist_degree: int = 0, n: int = 1) -> None:
+    """Refuse before any work when the point counts would need too large a field.
+
+    The bound from deg A and deg B is instant; when it is over the limit and
+    the degrees are modest, the exact deg L from the conductor decides.
+    """
+    from ..batch.limits import curve_field_size, curve_l_degree_bound
+    from ..ffield.poly import parse_poly
+    from .model import _check_field, make_curve
+
+    for name in ("A", "B"):
+        if len(str(getattr(args, name))) > 5000:
+            raise BadInput(f"{name}(t) is longer than 5000 characters")
+    limits = Limits.of(args)
+    F = _check_field(args.q)
+    A, B = parse_poly(args.A, F), parse_poly(args.B, F)
+    da, db = (A.degree() if not A.is_zero() else 0), (B.degree() if not B.is_zero() else 0)
+    Q = F.q ** n
+    deg_l = curve_l_degree_bound(da, db) + (2 * twist_degree + 2 if twist_degree else 0)
+    size = curve_field_size(Q, deg_l)
+    if size > limits.values["field"] and max(da, db) <= 60:
+        deg_l = make_curve(args.q, args.A, args.B).l_degree + (2 * twist_degree + 2 if twist_degree else 0)
+        size = curve_field_size(Q, deg_l)
+    limits.require("field", size, f"{what} with deg A = {da}, deg B = {db} over F_{Q} "
+                   f"(deg L <= {deg_l}: point counts over F_{Q}^{deg_l // 2 + 1})")
 
 
 def _add_curve_args(p):
@@ -46,7 +65,8 @@ def _add_curve_args(p):
     p.add_argument("B", help="B(t)")
     p.add_argument("--mode", choices=("cumulative", "degree"), default="cumulative",
                    help="race over good places of degree <= X (cumulative) or of degree exactly X")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    add_json(p)
+    add_limits(p)
 
 
 def curve_screen(R) -> str:
@@ -62,21 +82,20 @@ def curve_screen(R) -> str:
         f"  L(E, u) = {L.as_text()}",
         f"  from point counts of degree <= {L.degrees_used}, confirmed by degrees {list(L.degrees_confirmed)}",
         f"race ({R.mode}): {R.statement()}",
-        (f"  density = {d.lower} (exact" + (": the limit is periodic in X and never 0)"
-                                            if str(R.parameters.get("engine", "")).startswith("exact") else ")")
-         if d.width == 0 else
-         f"  density = {d.digits()[:42] or '(no digit certified)'}   enclosure [{d.lower_str(places)}, "
-         f"{d.upper_str(places)}]   width {float(d.width):.2e}"),
+        "  " + headline_text("density", d, ExactValue(d.lower, f"an enclosure of width 0: "
+                                                             f"{R.parameters.get('engine')}")
+                             if d.width == 0 else None),
+        f"  enclosure {d.interval_text(places)}   width <= {d.width_text()}",
         f"  mean of the limit law {R.mean().str(8)} (period {R.variable.period} in X); "
         f"{len(R.variable.weights)} non-torsion angle(s)",
         "  error budget:",
     ]
     for e in R.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
     lines.append("  hypotheses:")
     for h in R.hypotheses:
         lines.append(f"    [{h.status}] {h.name}: {h.statement}")
-    lines.append(f"  {CAUTION}")
+    lines.append(f"  {caution_text(R.hypotheses)}")
     return "\n".join(lines)
 
 
@@ -85,15 +104,15 @@ def run_curve(args) -> int:
     from .model import make_curve
     from .race import trace_race
 
-    width = _float(args.width, "--width")
-    if not (0 < width < 1):
-        raise BadInput("--width must lie in (0, 1)")
-    observe = _int(args.observe, "--observe")
-    if observe < 0 or observe > 12:
-        raise BadInput("--observe must be between 0 and 12")
+    check_outputs(args)
+    width = target_width(args)
+    observe = parse_int(args.observe, "--observe", 0, 12)
+    confirm = parse_int(args.confirm, "--confirm", 0, 6)
+    max_boxes = parse_int(args.max_boxes, "--max-boxes", 1, 10**7)
+    _check_curve_size(args, "curve")
     E = make_curve(args.q, args.A, args.B)
-    L = l_polynomial(E, confirm=_int(args.confirm, "--confirm"))
-    R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=_int(args.max_boxes, "--max-boxes"))
+    L = l_polynomial(E, confirm=confirm)
+    R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=max_boxes)
     d = R.to_dict()
     d["parameters"]["command"] = "certify " + " ".join(shlex.quote(a) for a in getattr(args, "_argv", []) or [])
     if args.json:
@@ -108,8 +127,7 @@ def family_screen(results, c: float) -> str:
     for r in results:
         s = r.summary()
         mean = f"[{s['mean']['lower']}, {s['mean']['upper']}]" if s["mean"] else "-"
-        within = s["share_within_c_over_d_of_half"]
-        w = f"[{within['lower']:.3f}, {within['upper']:.3f}]" if within else "-"
+        w = interval_text(r.within[0], r.within[1], 3) if r.within is not None else "-"
         lines.append(
             f"d = {r.twist_degree}: {s['certified']}/{s['members']} members certified "
             f"({'sample of ' + str(s['members']) + ' from ' if r.sampled else 'whole family of '}{s['population']}); "
@@ -118,31 +136,44 @@ def family_screen(results, c: float) -> str:
             f"{s['relation_case']} with relations among the angles ({s['wide_enclosures_over_0.01']} enclosures "
             f"wider than 0.01); {s['seconds']:.1f} s")
     lines.append("  hypotheses: RH for every L(E_f, u) [theorem]; LI for each member [assumed, LLL evidence]")
-    lines.append(f"  {CAUTION}")
+    lines.append(f"  {caution_text(results[-1].hypotheses) if results else CAUTION}")
     return "\n".join(lines)
 
 
 def run_twists(args) -> int:
     from .family import plot_families, twist_family
 
+    from ..batch.limits import twist_members
+    from .model import _check_field
+
+    check_outputs(args)
+    check_json_path(args.table)
+    check_json_path(args.plot)
     degrees = []
-    for part in str(args.degrees).split(","):
+    for part in str(args.degrees).split(",")[:100]:
         part = part.strip()
         if not part:
             continue
         degrees.append(_int(part, "--degrees"))
     if not degrees or any(d < 1 or d > 12 for d in degrees):
         raise BadInput("--degrees must list twist degrees between 1 and 12, e.g. 1,2,3")
-    n = _int(args.extension, "--extension")
-    sample = None if args.sample is None else _int(args.sample, "--sample")
+    n = parse_int(args.extension, "--extension", 1, 12)
+    sample = None if args.sample is None else parse_int(args.sample, "--sample", 1)
     seed = _int(args.seed, "--seed")
-    c = _float(args.c, "--c")
-    width = _float(args.width, "--width")
-    if not (0 < width < 1):
-        raise BadInput("--width must lie in (0, 1)")
-    max_boxes = _int(args.max_boxes, "--max-boxes")
-    results = [twist_family(args.q, args.A, args.B, d, n=n, sample=sample, seed=seed, mode=args.mode,
-                            target_width=width, c=c, max_boxes=max_boxes) for d in degrees]
+    c = parse_float(args.c, "--c", 0.0, 1e6, open_low=True)
+    width = target_width(args)
+    max_boxes = parse_int(args.max_boxes, "--max-boxes", 1, 10**7)
+    q = _check_field(args.q).q
+    limits = Limits.of(args)
+    members = sum(min(twist_members(q, n, d), sample or twist_members(q, n, d)) for d in degrees)
+    limits.require("members", members, f"twists of degrees {','.join(map(str, degrees))} over F_{q ** n}")
+    _check_curve_size(args, "a twist", max(degrees), n=n)
+    results = []
+    with progress(len(degrees), "twist degrees", progress_enabled(args), "degrees") as bar:
+        for d in degrees:
+            results.append(twist_family(args.q, args.A, args.B, d, n=n, sample=sample, seed=seed,
+                                        mode=args.mode, target_width=width, c=c, max_boxes=max_boxes))
+            bar.update(1)
     out = {
         "question": {"kind": f"quadratic-twist families, trace race ({args.mode})",
                      "base_curve": results[0].base_curve.describe(), "twist_degrees": degrees},
@@ -154,14 +185,18 @@ def run_twists(args) -> int:
                        "seed": seed, "c": c, "mode": args.mode, "width": width},
         "caution": CAUTION,
     }
-    if args.plot:
-        if plot_families(results, args.plot):
-            out["figure"] = args.plot
+    if args.out:
+        os.makedirs(args.out, exist_ok=True)
+    plot_path = args.plot or (os.path.join(args.out, "twists-histogram.png") if args.out else None)
+    table_path = args.table or (os.path.join(args.out, "twists-table.md") if args.out else None)
+    if plot_path:
+        if plot_families(results, plot_path):
+            out["figure"] = plot_path
         else:
             print("certify: matplotlib is not installed; no figure written", file=sys.stderr)
-    if args.table:
+    if table_path:
         text = "\n\n".join(f"## twist degree {r.twist_degree}\n\n{r.table()}" for r in results)
-        _write(text, args.table)
+        _write(text, table_path)
     if args.json:
         _write(json.dumps(out, indent=2, default=str), args.json)
     if args.json != "-":
@@ -174,7 +209,7 @@ def register(sub) -> None:
                        description="Point counts give L(E, u) exactly; the density of the sign of the normalised "
                                    "Frobenius trace sum is certified under LI (assumed, with LLL evidence).")
     _add_curve_args(p)
-    p.add_argument("--width", default="1e-8", help="target width of the density enclosure (default 1e-8)")
+    add_target(p, 8, 30)
     p.add_argument("--observe", default="0", help="also list the exact trace sums for X <= this (0..12)")
     p.add_argument("--confirm", default="1", help="extra degrees of point counts that confirm L (default 1)")
     p.add_argument("--max-boxes", default="100000",
@@ -189,9 +224,11 @@ def register(sub) -> None:
     p.add_argument("--sample", default=None, help="a random sample of this many twists per degree (default: all)")
     p.add_argument("--seed", default="0", help="seed of the random sample (default 0)")
     p.add_argument("--c", default="1", help="report the share of densities within c/d of 1/2 (default 1)")
-    p.add_argument("--width", default="1e-3", help="target width of each member's enclosure (default 1e-3)")
+    add_target(p, 3, 12, "each member's enclosure")
+    add_out(p, default=None, what="write twists-table.md and twists-histogram.png into this folder")
     p.add_argument("--table", metavar="PATH", help="write a Markdown table of every member (- for stdout)")
     p.add_argument("--plot", metavar="PATH", help="write a histogram figure (PNG; needs matplotlib)")
+    add_progress(p)
     p.add_argument("--max-boxes", default="3000",
                    help="box budget per residue class for members whose angles satisfy relations (default 3000)")
     p.set_defaults(func=run_twists)

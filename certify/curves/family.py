@@ -26,6 +26,7 @@ from fractions import Fraction
 
 import numpy as np
 
+from ..arith import decimal_down, decimal_up, sci_up
 from ..errors import BadInput, CertifyError, Inconsistent
 from ..ffield.poly import finite_field, poly_from_index, poly_str
 from ..result import CAUTION, Enclosure, Hypothesis
@@ -175,7 +176,7 @@ class FamilyResult:
             "members": [m.as_dict() for m in self.members],
             "hypotheses": [h.as_dict() for h in self.hypotheses],
             "error_budget": [
-                {"name": "member enclosures", "bound": f"{max((float(m.density.width) for m in self.certified), default=0.0):.3e}",
+                {"name": "member enclosures", "bound": sci_up(max((m.density.width for m in self.certified), default=Fraction(0)), 3),
                  "description": "largest width of a member's density enclosure (each from the density engine)"}
             ],
             "parameters": self.parameters,
@@ -202,7 +203,8 @@ class FamilyResult:
             "mean": None if self.mean is None else {"lower": self.mean.lower_str(10), "upper": self.mean.upper_str(10)},
             "spread": self.spread, "c": self.c,
             "share_within_c_over_d_of_half": None if self.within is None else
-            {"radius": self.c / self.twist_degree, "lower": float(self.within[0]), "upper": float(self.within[1])},
+            {"radius": self.c / self.twist_degree, "lower": decimal_down(self.within[0], 6),
+             "upper": decimal_up(self.within[1], 6)},
             "rank_counts": {str(k): v for k, v in sorted(self.rank_counts.items())},
             "histogram": {"edges": list(self.histogram[0]), "counts": list(self.histogram[1])},
             "seconds": round(self.seconds, 3),

@@ -248,7 +248,7 @@ class TraceRaceResult:
                          "curve": self.curve.describe()},
             "density": {
                 "lower": d.lower_str(places), "upper": d.upper_str(places),
-                "width": f"{float(d.width):.3e}", "certified_digits": d.digits()[:40],
+                "width": d.width_text(), "certified_digits": d.digits()[:40],
                 **({"exact": f"{d.lower.numerator}/{d.lower.denominator}"} if d.width == 0 else {}),
             },
             "mean": {"averaged": self.mean().str(15, radius=True),

@@ -14,11 +14,11 @@ its prime field is written ``z`` (see ``certify.ffield.poly``).
 
 from __future__ import annotations
 
-import json
-import sys
 
+from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
+                                target_width, write_json)
 from ..errors import BadInput
-from ..result import CAUTION
+from ..result import ExactValue, caution_text, headline_text
 
 NAME_RACE = "ffrace"
 NAME_LPOLY = "fflpoly"
@@ -26,20 +26,30 @@ MAX_DIGITS = 30
 
 
 def _int(text, what: str) -> int:
-    try:
-        return int(str(text))
-    except (TypeError, ValueError):
-        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+    return parse_int(text, what)
+
+
+def _check_group(args, what: str) -> None:
+    """Refuse before any work when q^deg m (the size of the tables) exceeds the limit."""
+    from .poly import finite_field, parse_field_order, parse_monic
+
+    q = parse_field_order(args.q)
+    if len(str(args.modulus)) > 2000:
+        raise BadInput("the modulus is longer than 2000 characters")
+    m = parse_monic(args.modulus, finite_field(q), "modulus")
+    Limits.of(args).require("group", q ** m.degree(), f"{what} modulo a polynomial of degree "
+                            f"{m.degree()} over F_{q} (q^deg m)")
 
 
 def screen(res) -> str:
     """One screen of text for a function-field race result."""
     d = res.density
-    places = min(d.places(), 30)
+    exact = (ExactValue(d.lower, f"an enclosure of width 0: {res.parameters.get('method')}")
+             if d.width == 0 else None)
     lines = [
-        f"{res.question.label} = {d.digits() or '(no digit certified)'}",
+        headline_text(res.question.label, d, exact, res.target_met, f"{res.target_width:.0e}"),
         f"  {res.question.statement}",
-        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        f"  enclosure  {d.interval_text(min(d.places(), 30))}   width <= {d.width_text()}"
         + ("" if res.target_met else f"   (target {res.target_width:.0e} NOT met)"),
         f"  case: {res.case}; {res.closure.describe()}; method: {res.parameters.get('method')}",
         f"  {len(res.l_data)} L-polynomials, {len(res.points)} distinct roots of modulus sqrt(q) "
@@ -50,7 +60,7 @@ def screen(res) -> str:
                      + "; ".join(str(list(r)) for r in res.relations))
     lines.append("  error budget:")
     for e in res.budget:
-        lines.append(f"    {e.name:<40} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<40} <= {e.bound_text()}")
     lines.append("  hypotheses:")
     for h in res.hypotheses:
         lines.append(f"    {h.name} [{h.status}]: {h.statement}")
@@ -59,30 +69,20 @@ def screen(res) -> str:
         led = ", ".join(f"{k}: {len(v)}" for k, v in L.degrees_led.items())
         lines.append(f"  exact counts to degree {L.bound} ({L.mode}): first leader change at "
                      f"{L.first_change if L.first_change else 'none'}; degrees led: {led}")
-    lines.append(f"  {CAUTION} Here Weil's theorem is proven; LI or the completeness of the "
-                 "listed relations is assumed.")
+    lines.append(f"  {caution_text(res.hypotheses)}")
     return "\n".join(lines)
 
 
 def _emit_json(obj: dict, path: str) -> None:
-    text = json.dumps(obj, indent=2, default=str)
-    if path == "-":
-        sys.stdout.write(text + "\n")
-    else:
-        try:
-            from ..io import write_atomic
-            write_atomic(path, text + "\n")
-        except ImportError:  # pragma: no cover - older trees without certify.io
-            with open(path, "w", encoding="utf-8") as fh:
-                fh.write(text + "\n")
+    write_json(obj, path)
 
 
 def run_race(args) -> int:
     from .race import certify_ffrace, parse_race, residue_race
 
-    digits = _int(args.digits, "--digits")
-    if not (1 <= digits <= MAX_DIGITS):
-        raise BadInput(f"--digits must be between 1 and {MAX_DIGITS} (got {digits})")
+    check_outputs(args)
+    width = target_width(args)
+    _check_group(args, NAME_RACE)
     leaders = _int(args.leaders, "--leaders")
     if not (0 <= leaders <= 2000):
         raise BadInput(f"--leaders must be between 0 and 2000 (got {leaders})")
@@ -94,7 +94,7 @@ def run_race(args) -> int:
         qn, G, wd = residue_race(args.q, args.modulus, args.mode)
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
-    res = certify_ffrace(qn, G, wd, target_width=10.0 ** (-digits), leader_bound=leaders)
+    res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
     if args.json:
         _emit_json(res.to_dict(), args.json)
     if args.json != "-":
@@ -107,13 +107,15 @@ def run_lpoly(args) -> int:
     from .lpoly import l_polynomial, weil_check
     from .poly import finite_field, parse_field_order, parse_monic, poly_str
 
+    check_outputs(args)
+    _check_group(args, NAME_LPOLY)
     q = parse_field_order(args.q)
     F = finite_field(q)
     m = parse_monic(args.modulus, F, "modulus")
     if q ** m.degree() > 10**6:
         raise BadInput("fflpoly lists every character: use a modulus with q^deg m <= 10^6")
     G = character_group(F, m)
-    limit = _int(args.limit, "--limit")
+    limit = parse_int(args.max_characters, "--max-characters", 0, 10**6)
     out = []
     lines = [G.describe(), f"  field: {F.describe()}"]
     for i, chi in enumerate(G.characters()):
@@ -153,10 +155,11 @@ def register(subparsers) -> None:
     p.add_argument("--residues", action="store_true", help="race non-residues against residues")
     p.add_argument("--mode", default="cumulative", choices=["cumulative", "degree"],
                    help="cumulative: primes of degree <= X; degree: primes of degree exactly X")
-    p.add_argument("--digits", "-d", default="10", metavar="D", help="target width 10^-D (default 10)")
+    add_target(p, 10, MAX_DIGITS)
     p.add_argument("--leaders", default="60", metavar="N",
                    help="report leaders from exact counts up to degree N (0: skip; default 60)")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    add_json(p)
+    add_limits(p)
     p.set_defaults(func=run_race)
 
     p2 = subparsers.add_parser(
@@ -165,6 +168,8 @@ def register(subparsers) -> None:
                     "inverse roots and the check against Weil's theorem.")
     p2.add_argument("q", help="field order (a prime power)")
     p2.add_argument("modulus", help="monic modulus m")
-    p2.add_argument("--limit", default="50", help="at most this many characters (default 50)")
-    p2.add_argument("--json", metavar="PATH", help="write JSON (- for stdout)")
+    p2.add_argument("--max-characters", default="50", metavar="N",
+                    help="list at most this many characters (default 50)")
+    add_json(p2, "the characters and L-polynomials")
+    add_limits(p2)
     p2.set_defaults(func=run_lpoly)

@@ -499,7 +499,7 @@ class FFRaceResult:
                          "label": self.question.label, "statement": self.question.statement},
             "case": self.case,
             "density": {"lower": d.lower_str(places), "upper": d.upper_str(places),
-                        "width": f"{float(d.width):.3e}", "certified_digits": d.digits(),
+                        "width": d.width_text(), "certified_digits": d.digits(),
                         "target_width": f"{self.target_width:.0e}", "target_met": self.target_met},
             "hypotheses": [h.as_dict() for h in self.hypotheses],
             "error_budget": [e.as_dict() for e in self.budget],

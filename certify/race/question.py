@@ -9,6 +9,11 @@ the residue race takes w_a = 1/#N on non-residues and -1/#R on residues
 Under GRH and LI the normalised race has the limit law of
 X = mu + sum_{chi != chi_0} sum_{gamma_chi > 0} 2 |W(chi)| / |rho| cos Theta,
 with mu = -sum_a w_a c(q, a) and W(chi) = sum_a w_a chi(a) (docs/method.md, section 1).
+
+The race of pi(x) against li(x) is a question of "modulus 1" (kinds
+``pi>li`` and ``pi<li``): under RH and LI for zeta, (log x / sqrt x)(pi(x) - li(x))
+has the law of X = -1 + sum_{gamma > 0} (2 / |rho|) cos Theta over the zeros
+of zeta (docs/method.md, section 9); ``pi<li`` asks for P(-X > 0).
 """
 
 from __future__ import annotations
@@ -38,8 +43,15 @@ class RaceQuestion:
     classes: tuple[int, ...] = ()
 
     @property
+    def is_li_race(self) -> bool:
+        """Whether this is the race of pi(x) against li(x) (the zeta race)."""
+        return self.kind in LI_KINDS
+
+    @property
     def label(self) -> str:
         q = self.modulus
+        if self.is_li_race:
+            return f"delta({self.kind})"
         if self.kind == "two-way":
             a, b = self.classes
             return f"delta({q};{a},{b})"
@@ -51,6 +63,9 @@ class RaceQuestion:
     @property
     def statement(self) -> str:
         q = self.modulus
+        if self.is_li_race:
+            rel = ">" if self.kind == "pi>li" else "<"
+            return f"the logarithmic density of the set of x >= 2 with pi(x) {rel} li(x)"
         if self.kind == "two-way":
             a, b = self.classes
             return (f"the logarithmic density of the set of x >= 2 with "
@@ -70,6 +85,8 @@ class RaceQuestion:
         variable is built from the normalised weights, so that a race and any
         positive multiple of it are computed identically.
         """
+        if self.is_li_race:
+            return Fraction(1)  # no weights: the race variable is fixed (docs/method.md, section 9)
         total = sum((abs(w) for _, w in self.weights), Fraction(0))
         if total == 0:
             raise BadInput("all weights are zero: there is no race")
@@ -86,6 +103,26 @@ class RaceQuestion:
             if c == a:
                 return w
         return Fraction(0)
+
+
+LI_KINDS = ("pi>li", "pi<li")
+
+
+def prime_vs_li(direction: str = "pi<li") -> RaceQuestion:
+    """The race pi(x) > li(x) (``"pi>li"``) or its reverse pi(x) < li(x) (``"pi<li"``).
+
+    li(x) is the logarithmic integral; its density does not depend on whether li
+    is taken from 0 (principal value) or from 2, which differ by a constant.
+    """
+    d = str(direction).strip().replace(" ", "").lower()
+    if d not in LI_KINDS:
+        raise BadInput(f"direction must be one of {', '.join(LI_KINDS)} (got {direction!r})")
+    return RaceQuestion(1, d, ())
+
+
+def riemann_hypothesis_name(question: RaceQuestion) -> str:
+    """"RH" for the zeta race (pi against li), "GRH" for races of Dirichlet L-functions."""
+    return "RH" if question.is_li_race else "GRH"
 
 
 def _as_fraction(w) -> Fraction:
@@ -140,7 +177,10 @@ def weighted(q, weights: dict) -> RaceQuestion:
 
 
 def mean_of(question: RaceQuestion) -> Fraction:
-    """mu = -sum_a w_a c(q, a), for the normalised weights (docs/method.md, section 1c)."""
+    """mu = -sum_a w_a c(q, a), for the normalised weights (docs/method.md, section 1c);
+    -1 for pi(x) > li(x) (the prime squares), +1 for the reverse."""
+    if question.is_li_race:
+        return Fraction(-1) if question.kind == "pi>li" else Fraction(1)
     return -sum((w * c_value(question.modulus, a) for a, w in question.normalised_weights),
                 Fraction(0))
 
@@ -187,11 +227,20 @@ class SpectralGroup:
 
     @property
     def label(self) -> str:
+        if self.primitive_keys == ((1, 1),):
+            return "zeta"
         return " & ".join(str(c) for c in self.characters)
 
 
 def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
-    """The groups of characters with W(chi) != 0, with their scales 2|W(chi)|."""
+    """The groups of characters with W(chi) != 0, with their scales 2|W(chi)|.
+
+    The li race has one group: zeta (the trivial character, conductor 1), scale 2.
+    """
+    if question.is_li_race:
+        from ..source.dirichlet import primitive_character
+
+        return [SpectralGroup((primitive_character(1, 1),), ((1, 1),), 0, True, arb(2))]
     out = []
     seen = set()
     for chi in characters(question.modulus):

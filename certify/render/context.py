@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from ..arith import ball_from_strings
+from ..arith import ball_from_strings, decimal_down
 from ..certificate.model import Certificate, ball_of
 from ..certificate.numbers import sci
 
@@ -24,6 +24,13 @@ def tiny_gaps(cert: Certificate) -> list[dict]:
     lo, hi = cert.lower, cert.upper
     a = cert.answer
     out = []
+    small = a.get("small_side")
+    if small is not None:
+        # the li race: its small side, with the significant digits common to the enclosure
+        certified = f" (certified: {small['certified']})" if small.get("certified") else ""
+        out.append({"what": small["name"] + certified, "lower": small["lower"],
+                    "upper": small["upper"]})
+        return out
     if lo > Fraction(99, 100):
         out.append({"what": "1 - delta", "lower": a["gap_to_one"]["lower"],
                     "upper": a["gap_to_one"]["upper"]})
@@ -35,17 +42,30 @@ def tiny_gaps(cert: Certificate) -> list[dict]:
     return out
 
 
+def _digits_text(a: dict) -> str:
+    """What the answer's digits line shows: the exact value, certified decimals, or "(none)".
+
+    An integer part alone ("0" for [0.4999.., 0.5000..]) is not shown as digits.
+    """
+    ex = a.get("exact")
+    if ex:
+        return f"{ex['value']} exactly ({ex['reason']})"
+    d = a["certified_digits"]
+    return d if "." in d and d.split(".", 1)[1] else "(none)"
+
+
 def certificate_context(cert: Certificate, file_name: str = "certificate.json") -> dict:
     """Everything the templates show, as strings and lists (no computation in templates)."""
     a = cert.answer
     q = cert.question
     groups = []
     for g in cert.spectrum["groups"]:
-        ls = [f"L(s, chi_{{{lf['conductor']},{lf['label']}}})" for lf in g["l_functions"]]
+        ls = ["zeta(s)" if lf["conductor"] == 1 else f"L(s, chi_{{{lf['conductor']},{lf['label']}}})"
+              for lf in g["l_functions"]]
         first = [ball_from_strings(z["mid"], z["rad"]).str(15, radius=False) for z in g["zeros"][:3]]
         groups.append({
             "label": g["label"], "l_functions": ", ".join(ls), "zeros": len(g["zeros"]),
-            "height": f"{float(g['isolation_height']):.6g}", "moments": g["moments"]["count"],
+            "height": decimal_down(Fraction(g["isolation_height"]), 4), "moments": g["moments"]["count"],
             "scale": _short_ball(g["scale"], 10), "first_zeros": ", ".join(first),
         })
     hyps = []
@@ -57,7 +77,8 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = ", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
+    weights = (", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
+               or "none (pi(x) against li(x): zeta alone)")
     prov = cert.provenance
     params = [(k, v if not isinstance(v, (list, tuple)) else ", ".join(map(str, v)))
               for k, v in cert.parameters.items()]
@@ -67,7 +88,7 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
                      "weights": weights, "definition": q["definition"],
                      "normalisation": q["normalisation"]},
         "answer": {"lower": a["enclosure"]["lower"], "upper": a["enclosure"]["upper"],
-                   "width": a["width"], "digits": a["certified_digits"] or "(none)",
+                   "width": a["width"], "digits": _digits_text(a),
                    "target": a["target_width"], "target_met": a["target_met"],
                    "mean": a["mean"], "variance": _short_ball(a["variance"], 15)},
         "gaps": tiny_gaps(cert),

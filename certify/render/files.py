@@ -14,7 +14,8 @@ TEXT_FORMATS = ("json", "md", "tex", "fragment")
 
 
 def base_name(label: str) -> str:
-    """A file name from a race label: delta(4;3,1) -> delta_4_3_1."""
+    """A file name from a race label: delta(4;3,1) -> delta_4_3_1, delta(pi<li) -> delta_pi_lt_li."""
+    label = label.replace("<", "_lt_").replace(">", "_gt_")
     s = re.sub(r"[^A-Za-z0-9]+", "_", label).strip("_")
     return s[:80] or "certificate"
 

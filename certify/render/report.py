@@ -33,14 +33,15 @@ def claims_rows(verdicts, certificate_paths: dict | None = None) -> list[dict]:
 
 
 def claims_report_markdown(title: str, source: str, verdicts, max_digits: int,
-                           certificate_paths: dict | None = None) -> str:
+                           certificate_paths: dict | None = None, errors=()) -> str:
+    """The report: one row per claim (each claim shown once), then the lines not checked."""
     rows = claims_rows(verdicts, certificate_paths)
     counts = {k: sum(1 for v in verdicts if v.verdict == k)
               for k in ("consistent", "refuted", "undecided")}
     return render_template("claims_report.md.j2", {
         "title": title, "source": source, "rows": rows, "counts": counts,
         "date": time.strftime("%Y-%m-%dT%H:%M:%SZ", time.gmtime()), "version": __version__,
-        "caution": CAUTION, "max_digits": max_digits,
+        "caution": CAUTION, "max_digits": max_digits, "errors": list(errors),
     })
 
 

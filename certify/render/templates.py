@@ -38,7 +38,7 @@ def template_dir() -> Path:
 def _latex_escape(text) -> str:
     import re
 
-    s = str(text)
+    s = _one_line(text)  # a blank line in a field must not end a paragraph or break a table
     repl = {"\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "_": r"\_", "^": r"\^{}",
             "#": r"\#", "$": r"\$", "%": r"\%", "&": r"\&", "~": r"\~{}"}
     s = "".join(repl.get(ch, ch) for ch in s)
@@ -70,8 +70,32 @@ def environment(kind: str):
         env.filters["tex"] = _latex_escape
     else:
         env = jinja2.Environment(**common)
-        env.filters["cell"] = lambda t: str(t).replace("|", "\\|")
+        env.filters["md"] = md_escape
+        env.filters["cell"] = lambda t: md_escape(t).replace("|", "\\|")
+        env.filters["code"] = md_code
     return env
+
+
+def _one_line(text) -> str:
+    """Every run of whitespace (newlines, blank lines, tabs) as one space."""
+    return " ".join(str(text).split())
+
+
+def md_escape(text) -> str:
+    """Text for Markdown: one line, no raw HTML (``<`` and entity-like ``&`` become entities).
+
+    ``>`` alone cannot open a tag and stays readable (``x >= 2``).
+    """
+    import re
+
+    s = re.sub(r"&(?=#?\w+;)", "&amp;", _one_line(text))
+    s = s.replace("<=", "≤").replace(">=", "≥").replace("!=", "≠")
+    return s.replace("<", "&lt;")
+
+
+def md_code(text) -> str:
+    """Text inside a Markdown code span: one line, backticks replaced (code spans show HTML literally)."""
+    return _one_line(text).replace("`", "'")
 
 
 def render_template(name: str, context: dict, kind: str = "text") -> str:

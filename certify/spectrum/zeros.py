@@ -39,17 +39,17 @@ class ZCounter:
 class HardyZ:
     """Rigorous Z(t) of an analytic L-function, with sign decisions.
 
-    ``HardyZ(conductor, label)`` is the primitive Dirichlet L(s, chi_{conductor,label});
-    ``HardyZ.of(L)`` wraps any :class:`certify.spectrum.lfunction.AnalyticL`.
+    ``HardyZ(conductor, label)`` is the primitive Dirichlet L(s, chi_{conductor,label})
+    (zeta for conductor 1); ``HardyZ.of(L)`` wraps any :class:`certify.spectrum.lfunction.AnalyticL`.
     """
 
     def __init__(self, conductor, label: int | None = None):
         if label is None:
             self.lfun = conductor
         else:
-            from .moments import DirichletL
+            from .moments import analytic_l
 
-            self.lfun = DirichletL(conductor, label)
+            self.lfun = analytic_l(conductor, label)
         self.conductor = self.lfun.conductor
         self.label = getattr(self.lfun, "label", 0)
         self.counter = ZCounter()

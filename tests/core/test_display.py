@@ -248,10 +248,10 @@ def _check_tables(result, data, tmp_path):
         assert "1/2$ (exact)" in tex and "1/2 (exact)" in md
 
 
-@pytest.mark.parametrize("seed", range(5))
+@pytest.mark.parametrize("seed", range(6))
 def test_every_printed_number_contains_the_proof(seed, store, tmp_path):
     rng = random.Random(seed)
-    for _ in range(3):
+    for _ in range(4):
         question = _random_question(rng)
         result = certify_race(question, rng.randint(3, 8), store=store)
         _check_screen(result)
@@ -287,3 +287,77 @@ def test_cli_race_3_2_1_one_minus_delta(capsys):
     (a, b), = _intervals(line)
     # the proven 1 - delta(3;2,1) of issue 9, [9.3680846740e-4, 9.3680849046e-4], overlaps ours
     assert a < b and a <= Fraction("9.3680849046e-4") and Fraction("9.3680846740e-4") <= b
+
+
+def _check_certificate(result, cert):
+    """The certificate's answer and budget (and its rendering) contain the engine's numbers."""
+    d = result.density
+    a = cert.answer
+    lo, hi = Fraction(a["enclosure"]["lower"]), Fraction(a["enclosure"]["upper"])
+    assert lo <= d.lower and d.upper <= hi and Fraction(a["width"]) >= hi - lo
+    assert Fraction(a["gap_to_half"]["lower"]) <= d.lower - HALF <= d.upper - HALF \
+        <= Fraction(a["gap_to_half"]["upper"])
+    assert Fraction(a["gap_to_one"]["lower"]) <= 1 - d.upper <= 1 - d.lower \
+        <= Fraction(a["gap_to_one"]["upper"])
+    bounds = {e["name"]: Fraction(e["bound"]) for e in cert.error_budget}
+    for e in result.budget:
+        assert bounds[e.name] >= upper_fraction(e.bound)
+    from certify.render import render_markdown as cert_markdown
+    md = cert_markdown(cert, "c.json")
+    for line in md.splitlines():
+        if "∈ [" in line and result.question.label in line:
+            assert _contains(_intervals(line)[0], d.lower, d.upper)
+        if line.startswith("- Certified digits"):
+            if result.exact is not None:
+                assert "1/2 exactly" in line
+            else:
+                assert "`0`" not in line
+    for e in result.budget:
+        m = re.search(rf"{re.escape(e.name)}\s*\|\s*({NUM})", md)
+        if m:
+            assert Fraction(m.group(1)) >= upper_fraction(e.bound)
+    return md
+
+
+@pytest.mark.parametrize("question", [two_way(5, 2, 3), two_way(7, 3, 1)],
+                         ids=["mean-0", "mean-2"])
+def test_certificates_show_numbers_outward_and_exact_values(question):
+    import copy
+
+    from certify.certificate.build import certify_with_certificate
+    from certify.certificate.model import Certificate
+    from certify.certificate.verify import verify_certificate
+    result, cert = certify_with_certificate(question, 5)
+    _check_certificate(result, cert)
+    rep = verify_certificate(cert)
+    assert rep.ok, [(c.name, c.detail) for c in rep.failures]
+    assert "GRH and LI" in cert.caution
+    data = cert.to_dict()
+    if result.exact is not None:
+        assert data["answer"]["exact"]["value"] == "1/2"
+        # a copy that drops the exact value, or claims another one, fails verification
+        for bad in (None, {"value": "1/3", "reason": "x", "error_budget": "none"}):
+            d2 = copy.deepcopy(data)
+            d2["answer"]["exact"] = bad
+            assert not verify_certificate(Certificate.from_dict(d2)).ok
+    else:
+        d2 = copy.deepcopy(data)
+        d2["answer"]["exact"] = {"value": "1/2", "reason": "x", "error_budget": "none"}
+        assert not verify_certificate(Certificate.from_dict(d2)).ok
+
+
+def test_target_not_met_says_so_with_the_reason(store):
+    import dataclasses
+    r = certify_race(two_way(4, 3, 1), 4, store=store)
+    params = dict(r.parameters, not_met_reason="largest error term: frequency truncation (1.2e-5)")
+    bad = dataclasses.replace(r, target_met=False, digits_requested=9, parameters=params)
+    text = screen(bad)
+    head = text.splitlines()[0]
+    assert "NOT met" in head and "1e-9" in head
+    assert "not certified to the target 1e-9: largest error term: frequency truncation" in text
+    _check_screen(bad)
+    # an enclosure like [0.50, 0.83] is never shown as "= 0"
+    wide = dataclasses.replace(bad, density=Enclosure(Fraction("0.50"), Fraction("0.83")))
+    head = screen(wide).splitlines()[0]
+    assert head.startswith("delta(4;3,1) in [0.5000, 0.8300]") and "NOT met" in head
+    assert "NOT met" in repr(wide) or "TARGET NOT MET" in repr(wide)

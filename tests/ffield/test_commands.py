@@ -39,7 +39,7 @@ def test_ffrace_json_stdout(capsys):
 
 
 def test_fflpoly(capsys):
-    rc = main(["fflpoly", "4", "t^2+z", "--limit", "6"])
+    rc = main(["fflpoly", "4", "t^2+z", "--max-characters", "6"])
     assert rc == 0
     out = capsys.readouterr().out
     assert "0 undecided" in out and "F_4 = F_2[z]" in out

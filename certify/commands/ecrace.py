@@ -1,0 +1,110 @@
+"""``certify ecrace``: the bias of the Frobenius traces of an elliptic curve over Q."""
+
+from __future__ import annotations
+
+import json
+import shlex
+import sys
+
+from ..errors import BadInput
+
+
+def _int(text, what):
+    try:
+        return int(str(text).replace("_", ""))
+    except (TypeError, ValueError):
+        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+
+
+def screen(result, obs=None) -> str:
+    d = result.density
+    places = d.places()
+    E = result.curve
+    lines = [
+        f"E = {list(E.minimal)}  (given {list(E.ainvs)})   conductor {E.conductor}   "
+        f"j = {E.j}" + (f"   CM by discriminant {E.cm_discriminant}" if E.has_cm else ""),
+        "  local data: " + ", ".join(f"p={ld.p} {ld.kodaira} f={ld.conductor_exponent} "
+                                     f"{ld.reduction} w={'?' if ld.root_number is None else f'{ld.root_number:+d}'}"
+                                     for ld in E.local),
+        f"  root number {result.rank.root_number:+d}; {result.rank.statement()}",
+        f"  P[ sum_(p<=x) a_p/sqrt(p) > 0 ] = {d.digits() or '(no digit certified)'}",
+        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        + ("" if result.target_met else f"   (target 1e-{result.digits_requested} NOT met)"),
+        f"  limit law: mean 1 - 2r = {result.mean}, variance {result.variance.str(8)}; "
+        f"{result.parameters['zeros_used']} zeros to height {result.height:.1f}; "
+        f"{result.timings.get('total', 0):.1f} s",
+        "  error budget:",
+    ]
+    for e in result.budget:
+        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+    lines.append("  hypotheses:")
+    for h in result.hypotheses:
+        lines.append(f"    {h.name} ({h.status}): {h.statement}")
+    if obs is not None:
+        lines.append(f"  observed to x = {obs.bound:.3g} (an observation, not certified): "
+                     f"normalised sum {obs.final_value:+.4f}, positive on "
+                     f"{100 * obs.share_positive:.2f}% of log-scale [2, X] "
+                     f"({100 * obs.share_positive_late:.2f}% of [1000, X]), {obs.sign_changes} sign changes")
+    lines.append("  the count race #{a_p > 0} vs #{a_p < 0} is out of reach of this method "
+                 "(docs/elliptic_curves_q.md, section 7)")
+    lines.append(f"  {result.caution}")
+    return "\n".join(lines)
+
+
+def run_ecrace(args) -> int:
+    from ..ecrace import MAX_DIGITS, certify_ec_race
+    from ..ecobserve import observe, plot_observation
+    from ..source.ellcurve import curve_from_ainvs
+
+    E = curve_from_ainvs(args.ainvs)
+    digits = _int(args.digits, "--digits")
+    if not (1 <= digits <= MAX_DIGITS):
+        raise BadInput(f"--digits must be between 1 and {MAX_DIGITS} (got {digits})")
+    bound = _int(args.observe, "--observe")
+    obs = None
+    if bound:
+        from ..ecobserve import MAX_OBSERVE
+
+        if not (10 <= bound <= MAX_OBSERVE):
+            raise BadInput(f"--observe must be 0 or between 10 and {MAX_OBSERVE} (got {bound})")
+    cmd = "certify " + " ".join(shlex.quote(a) for a in sys.argv[1:])
+    result = certify_ec_race(E, digits, command_line=cmd)
+    if bound:
+        obs = observe(E, bound)
+    if args.plot:
+        if obs is None:
+            raise BadInput("--plot needs --observe X > 0 (the observed race to plot)")
+        plot_observation(obs, result, args.plot)
+    if args.json:
+        d = result.to_dict()
+        if obs is not None:
+            d["observed"] = obs.as_dict()
+        text = json.dumps(d, indent=2)
+        if args.json == "-":
+            sys.stdout.write(text + "\n")
+        else:
+            from ..io import write_atomic
+
+            write_atomic(args.json, text + "\n")
+    if args.json != "-":
+        print(screen(result, obs))
+    return 0 if result.target_met else 5
+
+
+def register(sub) -> None:
+    p = sub.add_parser(
+        "ecrace", help="certified bias of sum a_p/sqrt(p) for an elliptic curve over Q",
+        description="E: y^2 + a1 xy + a3 y = x^3 + a2 x^2 + a4 x + a6 given as [a1,a2,a3,a4,a6]. "
+                    "Certifies the limiting logarithmic density of {x : sum_(p<=x) a_p/sqrt(p) > 0} "
+                    "under GRH for L(E,s) and LI (assumed, listed with evidence), with the analytic "
+                    "rank certified (r <= 1) or bounded. The count race #{a_p>0} vs #{a_p<0} is "
+                    "out of reach of this method.")
+    p.add_argument("ainvs", metavar="[a1,a2,a3,a4,a6]",
+                   help="integral a-invariants, e.g. [0,-1,1,-10,-20] (brackets keep a leading minus sign)")
+    p.add_argument("--digits", "-d", default="10", metavar="D",
+                   help="target: enclosure width at most 10^-D (default 10)")
+    p.add_argument("--observe", default="1000000", metavar="X",
+                   help="also compute the observed race from the a_p up to X (default 10^6; 0 to skip)")
+    p.add_argument("--plot", metavar="PATH", help="figure of the observed race beside the limit law (PNG)")
+    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.set_defaults(func=run_ecrace)

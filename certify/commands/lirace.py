@@ -1,0 +1,122 @@
+"""``certify lirace``: the race of pi(x) against li(x), planned for significant digits.
+
+    certify lirace                      # delta(pi<li), 10 significant digits of 1 - delta
+    certify lirace 'pi>li' --sig-digits 20 --json out.json
+    certify lirace gt --digits 17       # an absolute width 1e-17 instead
+
+Certificates, verify and the referee check take the same race as
+``'delta(pi<li)'`` / ``'delta(pi>li)'`` (``certify certificate 'delta(pi<li)'``,
+``certify check 'delta(pi<li)' --claim 0.99999973...``, claims files).
+"""
+
+from __future__ import annotations
+
+import json
+import shlex
+import sys
+
+from ..errors import BadInput
+
+ALIASES = {"pi<li": "pi<li", "lt": "pi<li", "pi>li": "pi>li", "gt": "pi>li"}
+
+
+def direction_of(text: str) -> str:
+    d = str(text).strip().replace(" ", "").lower()
+    if d.startswith("delta(") and d.endswith(")"):
+        d = d[len("delta("):-1]
+    if d not in ALIASES:
+        raise BadInput(f"direction must be pi<li (or lt) or pi>li (or gt), got {text!r}")
+    return ALIASES[d]
+
+
+def screen(result) -> str:
+    """The one-screen summary of an li race."""
+    from ..lirace import small_side_text
+
+    d = result.density
+    places = d.places()
+    k, text = result.significant
+    lines = [
+        f"{result.question.label}: {result.question.statement}",
+        f"  delta      in [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}",
+        f"  {small_side_text(result)}",
+    ]
+    if result.sig_digits_requested and not result.sig_target_met:
+        lines.append(f"  TARGET NOT MET: {result.sig_digits_requested} significant digits asked, "
+                     f"{k} certified ({result.parameters.get('not_met_reason', '')})")
+    elif not result.sig_digits_requested and not result.target_met:
+        lines.append(f"  TARGET NOT MET: width 1e-{result.digits_requested} asked "
+                     f"({result.parameters.get('not_met_reason', '')})")
+    rounds = ", ".join(f"{dd} digits: {s:.2f} s, {z} zeros" for dd, s, z in result.rounds)
+    lines.append(f"  mean {result.mean}, variance {result.variance.str(10)} "
+                 f"(exact: 2 + gamma_E - log 4 pi)")
+    lines.append(f"  {result.parameters['zeros_used']} zeros of zeta; rounds: {rounds}; "
+                 f"total {result.timings.get('total', 0):.2f} s")
+    lines.append("  error budget (absolute, on delta):")
+    for e in result.budget:
+        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+    lines.append("  hypotheses (assumed, not proven):")
+    for h in result.hypotheses:
+        lines.append(f"    {h.name}: {h.statement}")
+        for ev in h.evidence[:2]:
+            lines.append(f"      - {ev}")
+    lines.append(f"  {result.caution}")
+    return "\n".join(lines)
+
+
+def _int(text, what: str) -> int:
+    try:
+        return int(text)
+    except (TypeError, ValueError):
+        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+
+
+def run_lirace(args) -> int:
+    from ..lirace import certify_li_race
+
+    direction = direction_of(args.direction)
+    if args.digits is not None and args.sig_digits is not None:
+        raise BadInput("give either --sig-digits or --digits, not both")
+    tail = ["lirace", direction]
+    if args.digits is not None:
+        digits, sig = _int(args.digits, "--digits"), None
+        tail += ["--digits", str(digits)]
+    else:
+        digits = None
+        sig = _int(args.sig_digits, "--sig-digits") if args.sig_digits is not None else None
+        if sig is not None:
+            tail += ["--sig-digits", str(sig)]
+    result = certify_li_race(direction, sig_digits=sig, digits=digits,
+                             command_line="certify " + " ".join(shlex.quote(a) for a in tail))
+    if args.json:
+        text = json.dumps(result.to_dict(), indent=2)
+        if args.json == "-":
+            sys.stdout.write(text + "\n")
+        else:
+            from ..io import write_atomic
+
+            write_atomic(args.json, text + "\n")
+    if args.json != "-":
+        print(screen(result))
+    return 0 if result.sig_target_met else 5
+
+
+def register(sub) -> None:
+    from ..lirace import DEFAULT_SIG_DIGITS, MAX_SIG_DIGITS
+    from ..races import MAX_DIGITS
+
+    p = sub.add_parser(
+        "lirace", help="density of pi(x) < li(x) (or >), to significant digits of the tiny side",
+        description="Certify the logarithmic density of x with pi(x) < li(x) (pi<li, the default) "
+        "or pi(x) > li(x) (pi>li), under RH and LI for zeta. The small side, 1 - delta(pi<li) = "
+        "delta(pi>li) ~ 2.6e-7, is reported in scientific notation with the significant digits "
+        "common to its whole enclosure; the computation is planned for --sig-digits of it.")
+    p.add_argument("direction", nargs="?", default="pi<li",
+                   help="pi<li (or lt; default) or pi>li (or gt); quote it in a shell")
+    p.add_argument("--sig-digits", "-s", default=None, metavar="S",
+                   help=f"significant digits of the small side (1..{MAX_SIG_DIGITS}; "
+                   f"default {DEFAULT_SIG_DIGITS})")
+    p.add_argument("--digits", "-d", default=None, metavar="D",
+                   help=f"instead: an absolute width 10^-D for delta (1..{MAX_DIGITS})")
+    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.set_defaults(func=run_lirace)

@@ -1,0 +1,131 @@
+"""Cached spectra are data, not proof: a forged entry with a valid checksum is re-derived or refused.
+
+The forgery: one stored power sum changed (or a zero moved) and the entry's
+SHA-256 recomputed, so the checksum alone accepts it.  Before the change to
+re-derivation, such an entry made ``certify table`` print disjoint
+"certified" enclosures; now it is skipped with a warning naming the cache
+file and recomputed, and the enclosure contains the published value.
+"""
+
+import json
+import sqlite3
+import zlib
+import hashlib
+import warnings
+from fractions import Fraction
+
+import pytest
+
+from certify.arith import arb
+from certify.batch.cache import CacheWarning, CachedStore, SpectrumCache
+from certify.batch.recheck import RecheckFailed, recheck_spectrum
+from certify.batch.serial import decode
+from certify.cli import main
+from certify.race.question import two_way
+from certify.races import certify_race
+from certify.spectrum.spectrum import SpectrumStore
+
+# delta(4;3,1) = 0.9959... ("Chebyshev's bias", Experimental Mathematics 3 (1994), 4 digits)
+PUBLISHED = (Fraction("0.99585"), Fraction("0.99595"))
+
+
+def _meets(enc, lo, hi):
+    return enc.lower <= hi and enc.upper >= lo
+
+
+def _forge(path, conductor, edit):
+    """Apply ``edit`` to the JSON of every entry of ``conductor`` and recompute its digest."""
+    con = sqlite3.connect(path)
+    rows = con.execute("SELECT id, data FROM spectra WHERE conductor=?", (conductor,)).fetchall()
+    assert rows
+    for eid, data in rows:
+        d = json.loads(zlib.decompress(bytes(data)))
+        edit(d)
+        blob = zlib.compress(json.dumps(d, separators=(",", ":"), sort_keys=True).encode(), 6)
+        con.execute("UPDATE spectra SET data=?, digest=? WHERE id=?",
+                    (blob, hashlib.sha256(blob).hexdigest(), eid))
+    con.commit()
+    con.close()
+
+
+def _shift_power_sum(d):
+    mid, rad = d["power_sums"][0]
+    d["power_sums"][0] = [str(float(mid) * 1.01), rad]
+
+
+def _move_zero(d):
+    mid, rad = d["zeros"]["balls"][2]
+    d["zeros"]["balls"][2] = [str(float(mid) + 0.05), rad]
+
+
+def _shift_central(d):
+    (mid, rad), im = d["central"]
+    d["central"] = [[str(float(mid) + 0.1), rad], im]
+
+
+@pytest.fixture(scope="module")
+def clean_4():
+    st = SpectrumStore()
+    r = certify_race(two_way(4, 3, 1), 6, store=st)
+    assert _meets(r.density, *PUBLISHED) and r.density.upper - r.density.lower < 1e-6
+    return st.spectra[(4, 3)], r
+
+
+@pytest.mark.parametrize("edit", [_shift_power_sum, _move_zero, _shift_central],
+                         ids=["power-sum", "zero", "central-value"])
+def test_recheck_refuses_a_forged_spectrum(tmp_path, clean_4, edit):
+    sp, _ = clean_4
+    path = str(tmp_path / "c.sqlite")
+    cache = SpectrumCache(path)
+    cache.save(sp)
+    cache.close()
+    _forge(path, 4, edit)
+    cache = SpectrumCache(path)
+    blob, digest = cache.read(cache.entries((4, 3))[0].id)
+    forged = decode(blob, digest)  # the checksum accepts it ...
+    with pytest.raises(RecheckFailed):  # ... the re-derivation does not
+        recheck_spectrum(forged)
+    with pytest.warns(CacheWarning, match=path.replace(".", r"\.")):
+        assert cache.load((4, 3)) is None
+    cache.close()
+
+
+def test_recheck_of_a_clean_spectrum_keeps_it_and_is_cheap(clean_4):
+    sp, _ = clean_4
+    again, seconds = recheck_spectrum(sp)
+    assert len(again.power_sums) == len(sp.power_sums)
+    for a, b in zip(again.power_sums, sp.power_sums):
+        assert a.overlaps(b) and float(arb(a.rad())) <= float(arb(b.rad())) * 2 + 1e-300
+    assert again.zeros.zeros == sp.zeros.zeros
+    assert seconds < 5  # measured 0.014 s idle; only a guard against a runaway
+
+
+def test_forged_power_sum_never_gives_a_disjoint_enclosure(tmp_path, clean_4, capsys):
+    """The audit's scenario end to end: forged S_1 with a valid digest, then the driver and the table."""
+    sp, clean = clean_4
+    path = str(tmp_path / "c.sqlite")
+    c = SpectrumCache(path)
+    c.save(sp)
+    c.close()
+    _forge(path, 4, _shift_power_sum)
+    # the driver's store over the cache: skipped with a warning, recomputed, enclosure sound
+    with pytest.warns(CacheWarning, match="power sum"):
+        r = certify_race(two_way(4, 3, 1), 6, store=CachedStore(backend=SpectrumCache(path)))
+    assert _meets(r.density, *PUBLISHED) and _meets(r.density, clean.density.lower, clean.density.upper)
+    # the table (coordinator path): exit 0, warning naming the file, enclosure sound
+    _forge(path, 4, _shift_power_sum)  # the recomputed entry replaced the forged one: forge again
+    out = tmp_path / "t"
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        rc = main(["table", "--race", "4:3,1", "--kinds", "two-way", "--digits", "6", "--cache", path,
+                   "--out", str(out), "--workers", "1", "--quiet"])
+    assert rc == 0
+    assert any(issubclass(w.category, CacheWarning) and path in str(w.message) for w in caught)
+    res = json.loads(next((out / "results").rglob("*.json")).read_text())
+    assert res["question"]["label"] in ("delta(4;3,1)", "delta(4;1,3)")
+    lo, hi = Fraction(res["density"]["lower"]), Fraction(res["density"]["upper"])
+    if res["question"]["label"] == "delta(4;1,3)":  # the table lists a < b: delta(4;1,3) = 1 - delta(4;3,1)
+        lo, hi = 1 - hi, 1 - lo
+    assert lo <= PUBLISHED[1] and hi >= PUBLISHED[0] and lo <= clean.density.upper and hi >= clean.density.lower
+    summary = json.loads((out / "batch.json").read_text())
+    assert summary["spectra"]["recheck"]["skipped"] >= 1

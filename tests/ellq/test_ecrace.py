@@ -1,0 +1,58 @@
+"""The trace race of a curve over Q: density, rank, hypotheses, CLI, observation."""
+
+import json
+
+import pytest
+
+from certify.cli import main
+from certify.ecobserve import observe
+from certify.ecrace import certify_ec_race
+from certify.source.ellcurve import curve_from_ainvs
+
+
+def test_rank0_density_conductor_11():
+    r = certify_ec_race([0, -1, 1, -10, -20], 3)
+    assert r.target_met and r.mean == 1 and r.rank.certified and r.rank.rank == 0
+    # under the limit law X = 1 + sum (2/|rho|) cos: Chebyshev's inequality with the exact
+    # variance bounds P(X <= 0) <= Var/(Var + 1) (one-sided, Cantelli): an independent bound
+    v = float(r.variance.upper())
+    assert float(r.density.lower) >= 1 - v / (v + 1) - 1e-3
+    assert r.density.width <= 1e-3
+    names = [h.name for h in r.hypotheses]
+    assert names == ["GRH", "LI"]  # rank 0 is certified, so no rank hypothesis
+    d = r.to_dict()
+    assert d["analytic_rank"]["certified"] and "symmetric power" in d["count_race"]
+    # the residual sums are consistent (non-negative)
+    assert not any(x < 0 for x in r.residual) and r.residual[0] > 0
+
+
+def test_cli_bad_inputs(capsys):
+    assert main(["ecrace", "[0,0,0,0,0]"]) == 2
+    assert main(["ecrace", "[1,2,x,4,5]"]) == 2
+    assert main(["ecrace", "[0,0,1,-1,0]", "--digits", "99"]) == 2
+    assert main(["ecrace", "[0,0,1,-1,0]", "--observe", "10000000000000"]) == 2
+    assert main(["ecrace", "[10000000000000000000000000000000000000000000000,0,0,0,1]"]) == 2
+    err = capsys.readouterr().err
+    assert all(line.startswith("certify: error:") for line in err.strip().splitlines())
+
+
+def test_observation_is_an_observation():
+    E = curve_from_ainvs([0, -1, 1, -10, -20])
+    o = observe(E, 20000)
+    d = o.as_dict()
+    assert "not certified" in d["kind"]
+    assert 0 <= o.share_positive <= 1 and o.primes == 2262  # pi(20000)
+    # the share on [1000, X] of a rank-0 curve: the sum is mostly positive there
+    assert o.share_positive_late > 0.8
+
+
+@pytest.mark.slow
+def test_cli_json_plot(tmp_path, capsys):
+    js, fig = tmp_path / "e.json", tmp_path / "e.png"
+    rc = main(["ecrace", "[0,-1,1,-10,-20]", "-d", "4", "--observe", "30000",
+               "--json", str(js), "--plot", str(fig)])
+    assert rc == 0
+    d = json.loads(js.read_text())
+    assert {"hypotheses", "error_budget", "parameters", "density", "observed"} <= set(d)
+    assert fig.read_bytes()[:4] == b"\x89PNG"
+    assert "out of reach" in capsys.readouterr().out
