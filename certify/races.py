@@ -190,8 +190,15 @@ def _model_ordinates(conductor: int, height: float) -> tuple[float, ...]:
         k += 1
 
 
-def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
+def plan_frequency_range(groups, V: float, mu: float, tau: float,
+                         height_factor: float | None = None) -> float:
     """Frequency range where the truncation bound falls below tau/8, on model zeros.
+
+    With ``height_factor`` h, a group of scale s is taken to isolate only its
+    zeros below h s xi / j_{0,1} (what the Rayleigh condition on its largest
+    residual weight asks at the frequency xi, docs/method.md section 5b), so
+    groups of small weight isolate few or no zeros and rely on their moments;
+    without it every zero counts (the old, optimistic plan).
 
     Planning only (floating point): the engine later evaluates the bound rigorously
     on the certified zeros.
@@ -206,16 +213,26 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float) -> float:
         s = float(g.scale.mid())
         for (qs, _) in g.primitive_keys:
             gam = np.asarray(_model_ordinates(qs, 2000.0))
-            parts.append(s / np.hypot(0.5, gam))
-    weights = np.concatenate(parts) if parts else np.zeros(0)
+            parts.append((s, gam, s / np.hypot(0.5, gam)))
     xi = eps
     while xi < 1e4:
+        if height_factor is None:
+            weights = np.concatenate([w for _, _, w in parts]) if parts else np.zeros(0)
+        else:
+            sel = [w[: int(np.searchsorted(gam, height_factor * s * xi / J01, side="right"))]
+                   for s, gam, w in parts]
+            weights = np.concatenate(sel) if sel else np.zeros(0)
         f = 2 / (math.pi * weights * xi)
         small = f[f < 1]
         if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
             return xi
         xi *= 1.15
     return xi
+
+
+def planned_zero_count(conductor: int, height: float) -> int:
+    """Model count of positive ordinates below ``height`` (planning only)."""
+    return len(_model_ordinates(conductor, float(height))) if height > 0 else 0
 
 
 _plan_xi_max = plan_frequency_range  # former private name
@@ -282,11 +299,17 @@ class RacePlan:
     moments: int
     width: float
     height_factor: float = 2.6
+    few_zeros: bool = True  # plan heights from each group's weight (no floor)
 
     def request(self, group) -> tuple[float, float, int, int]:
         """(height, zero width, moments, moment accuracy bits) for a spectral group."""
         s = float(group.scale.mid())
-        height = max(MIN_HEIGHT, self.height_factor * s * self.xi_max / J01)
+        # the Rayleigh condition asks |rho| > s xi / j01 of every residual zero at the
+        # largest frequency; below that height the group's zeros are isolated, above it
+        # its moments carry them (a group of small weight may isolate none)
+        height = self.height_factor * s * self.xi_max / J01
+        if height < MIN_HEIGHT and not self.few_zeros:
+            height = MIN_HEIGHT
         # R_k is multiplied by about (s xi / j01)^(2k) in the engine
         grow = max(2.0, 2 * s * self.xi_max / J01)
         bits = int(self.digits * 3.33 + 2 * self.moments * math.log2(grow) + 40)
@@ -312,13 +335,15 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
     moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
     with workprec(prec):
         groups = spectral_groups(question)
+        store.prefetch([(c, n, 1, prec) for g in groups for (c, n) in g.primitive_keys[:1]])
         V = arb(0)
         for g in groups:
             c, n = g.primitive_keys[0]
             sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
             T1 = sp.power_sums[0] / (2 if g.is_real else 1)
             V += g.scale * g.scale * T1 / 2
-    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau)
+    xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
+                                  height_factor=RacePlan.height_factor)
     width = min(1e-6, tau / (50 * (1 + xi_max)))
     return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
 
@@ -366,6 +391,7 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         residuals = []
         with workprec(prec):
             groups = spectral_groups(question)
+            store.prefetch([(c, n, k, b) for (c, n, _, _, _, k, b) in plan.spectrum_requests(groups)])
             for g in groups:
                 height, width, moments, bits = plan.request(g)
                 fraction = 0.25

@@ -107,9 +107,43 @@ def parse_race(text: str) -> RaceQuestion:
     raise BadInput(f"race {text!r} is not of the form Q:A,B or Q:N,R or Q:A=W,B=W,...")
 
 
-def races_for(moduli: list[int], kinds=("two-way", "residues"), extra=()) -> list[RaceItem]:
-    """The races of a batch, in a stable order (by modulus, then kind, then classes)."""
+def table_equivalences(moduli: list[int], kinds=("two-way", "residues")) -> list:
+    """One :class:`certify.batch.symmetry.Equivalence` per table row.
+
+    Rows: the residue race and every ordered pair a != b of reduced classes, for each
+    modulus; each names the computed race it equals and why (exact symmetries).
+    """
+    from .symmetry import canonical_residue, canonical_two_way
+
+    out = []
+    for q in moduli:
+        if "residues" in kinds:
+            try:
+                residue_race(q)
+                out.append(canonical_residue(q))
+            except BadInput:
+                pass
+        if "two-way" in kinds:
+            for a, b in itertools.permutations(reduced_residues(q), 2):
+                out.append(canonical_two_way(q, a, b))
+    return out
+
+
+def races_for(moduli: list[int], kinds=("two-way", "residues"), extra=(),
+              symmetries: bool = False) -> list[RaceItem]:
+    """The races of a batch, in a stable order (by modulus, then kind, then classes).
+
+    With ``symmetries`` only one race per distinct law is listed (the
+    representative named by :func:`table_equivalences`; its modulus may be q/2).
+    """
     items: dict[str, RaceItem] = {}
+    if symmetries:
+        for e in table_equivalences(moduli, kinds):
+            qn = (residue_race(e.target_q) if e.target_a is None
+                  else two_way(e.target_q, e.target_a, e.target_b))
+            it = RaceItem(qn)
+            items.setdefault(it.slug, it)
+        moduli = []
     for q in moduli:
         if "residues" in kinds:
             try:

@@ -31,7 +31,7 @@ from ..race.question import spectral_groups
 from ..source.dirichlet import reduced_residues
 from .cache import SOFTWARE_VERSION, CachedStore, SpectrumCache
 from .execute import Progress, make_executor, race_task, run_all, spectrum_task
-from .plan import RaceItem, races_for, spectrum_requests
+from .plan import RaceItem, races_for, spectrum_requests, table_equivalences
 from .serial import decode
 
 CHUNK = 6
@@ -81,7 +81,8 @@ def _keys_of(item: RaceItem) -> list[tuple[int, int]]:
 def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = None,
               scheduler: str | None = None, cache_path: str | None = None,
               kinds=("two-way", "residues"), extra=(), top: int = 20, progress: bool = True,
-              command_line: str = "", chunk: int = CHUNK, use_cache: bool = True) -> dict:
+              command_line: str = "", chunk: int = CHUNK, use_cache: bool = True,
+              symmetries: bool = False) -> dict:
     """Certify every race of the batch and write its tables; returns the summary dict.
 
     Parameters
@@ -99,6 +100,10 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
         The spectra cache (default :func:`certify.batch.cache.default_cache_path`).
     use_cache : bool
         False keeps spectra in a throw-away cache inside ``out``.
+    symmetries : bool
+        Certify one race per distinct law (exact symmetries,
+        :mod:`certify.batch.symmetry`) and read every table row from the race it
+        equals, saying why.
     """
     from .tables import write_tables
 
@@ -110,7 +115,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
         cache_path = os.path.join(out, "spectra-scratch.sqlite")
     cache = SpectrumCache(cache_path)
     cache.connection()
-    items = races_for(moduli, kinds, extra)
+    items = races_for(moduli, kinds, extra, symmetries=symmetries)
+    equivalences = table_equivalences(moduli, kinds) if symmetries else None
     if not items:
         raise BadInput("the batch has no race (no modulus with two reduced classes?)")
     done: dict[str, dict] = {}
@@ -121,6 +127,7 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
     pending = [it for it in items if it.slug not in done]
     summary = {
         "moduli": moduli, "digits": digits, "races": len(items),
+        "table_rows": len(equivalences) if equivalences is not None else None,
         "races_reused": len(done), "races_run": len(pending),
         "software": SOFTWARE_VERSION, "cache": cache.path,
         "spectra": {"needed": 0, "from_cache": 0, "computed": 0, "extended_by_races": 0},
@@ -245,7 +252,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
     # ---- outputs ----------------------------------------------------------
     t0 = time.time()
     ordered = [(it, done.get(it.slug)) for it in items]
-    files = write_tables(out, ordered, digits, top=top, command_line=command_line)
+    files = write_tables(out, ordered, digits, top=top, command_line=command_line,
+                         equivalences=equivalences)
     summary["timings_seconds"]["tables"] = round(time.time() - t0, 3)
     summary["timings_seconds"]["total"] = round(time.time() - t_start, 3)
     summary["files"] = files

@@ -55,6 +55,8 @@ class Row:
     derived: bool = False
     error: str = ""
     exact: Fraction | None = None  # the density when known exactly (e.g. 1/2 for mean 0)
+    equals: str = ""  # the computed race this row equals (by an exact symmetry)
+    relation: str = ""  # why
 
     @property
     def certified(self) -> bool:
@@ -74,6 +76,55 @@ def _file_digest(path: str) -> str:
     with open(path, "rb") as fh:
         h.update(fh.read())
     return h.hexdigest()
+
+
+def rows_from_equivalences(out: str, ordered, equivalences) -> list[Row]:
+    """One row per :class:`certify.batch.symmetry.Equivalence`, from the computed results.
+
+    A row equal to a computed race by an exact symmetry carries that race's
+    enclosure (or 1 minus it, endpoints swapped, for a reversed race), its result
+    file and digest, and says which race it equals and why.  Computed races that
+    no row names (extra races) get their own rows as before.
+    """
+    from ..race.question import residue_race, two_way
+    from .plan import RaceItem
+    from .run import result_path
+
+    by_slug = {it.slug: (it, d) for it, d in ordered}
+    rows = []
+    named = set()
+    digests: dict = {}
+    for e in equivalences:
+        tq = (residue_race(e.target_q) if e.target_a is None
+              else two_way(e.target_q, e.target_a, e.target_b))
+        slug = RaceItem(tq).slug
+        named.add(slug)
+        it, d = by_slug.get(slug, (RaceItem(tq), None))
+        kind = "residues" if e.a is None else "two-way"
+        label = f"delta({e.q};N,R)" if e.a is None else f"delta({e.q};{e.a},{e.b})"
+        path = result_path(out, it)
+        rel = os.path.relpath(path, out)
+        if d is None:
+            rows.append(Row(e.q, kind, e.a, e.b, label, None, None, False, "", rel, "",
+                            derived=not e.is_identity, error="not certified (see batch.json)",
+                            equals=e.target_label, relation=e.reason))
+            continue
+        lo, hi = Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"])
+        mean = Fraction(d["mean"]) if d.get("mean") else None
+        ex = (d["density"].get("exact") or {}).get("value")
+        exact = Fraction(ex) if ex else None
+        if e.flip:
+            lo, hi = 1 - hi, 1 - lo
+            mean = -mean if mean is not None else None
+            exact = None if exact is None else 1 - exact
+        if path not in digests:
+            digests[path] = _file_digest(path) if os.path.exists(path) else ""
+        rows.append(Row(e.q, kind, e.a, e.b, label, lo, hi, bool(d["density"]["target_met"]),
+                        str(mean) if mean is not None else "", rel, digests[path],
+                        derived=not e.is_identity, exact=exact, equals=e.target_label,
+                        relation=e.reason))
+    rest = [(it, d) for it, d in ordered if it.slug not in named]
+    return rows + rows_from_results(out, rest)
 
 
 def rows_from_results(out: str, ordered, reverse: bool = True) -> list[Row]:
@@ -103,7 +154,8 @@ def rows_from_results(out: str, ordered, reverse: bool = True) -> list[Row]:
             mean = str(-Fraction(d["mean"])) if d.get("mean") else ""
             rows.append(Row(qn.modulus, qn.kind, b, a, f"delta({qn.modulus};{b},{a})", 1 - hi,
                             1 - lo, met, mean, rel, digest, derived=True,
-                            exact=None if exact is None else 1 - exact))
+                            exact=None if exact is None else 1 - exact, equals=qn.label,
+                            relation=f"reverse race: 1 - {qn.label}"))
     return rows
 
 
@@ -264,7 +316,7 @@ def render_markdown(rows: list[Row], digits: int, title: str) -> str:
 
 CSV_FIELDS = ["q", "kind", "a", "b", "race", "lower", "upper", "width", "certified_digits",
               "one_minus_delta", "target_met", "mean", "derived", "result_file", "result_sha256",
-              "status", "exact"]
+              "status", "exact", "equals", "relation"]
 
 
 def render_csv(rows: list[Row]) -> str:
@@ -281,23 +333,42 @@ def render_csv(rows: list[Row]) -> str:
                         certified_digits(r.lower, r.upper), one_minus_text(r, False),
                         "yes" if r.target_met else "no", r.mean, "yes" if r.derived else "no",
                         r.source, r.sha256, "certified",
-                        fraction_text(r.exact) if r.exact is not None else ""])
+                        fraction_text(r.exact) if r.exact is not None else "", r.equals, r.relation])
         else:
             w.writerow([r.q, r.kind, r.a or "", r.b or "", r.label, "", "", "", "", "", "no", "",
-                        "no", r.source, "", r.error, ""])
+                        "yes" if r.derived else "no", r.source, "", r.error, "", r.equals,
+                        r.relation])
     return buf.getvalue()
 
 
 def ranking(rows: list[Row], top: int) -> list[Row]:
-    """The ``top`` races with the largest certified lower bound for delta (all orientations)."""
+    """The ``top`` races with the largest certified lower bound for delta (all orientations).
+
+    Rows that are one law (one result file read in one orientation) are listed once.
+    """
     ok = [r for r in rows if r.certified]
     ok.sort(key=lambda r: (-r.lower, r.q, r.label))
-    return ok[:top]
+    # the same law read several times (symmetric classes, or the same race at q and 2q)
+    # is one result file in one orientation: list it once, by its row of least modulus
+    seen = set()
+    out = []
+    for r in ok:
+        key = (r.source, r.lower, r.upper)
+        if key not in seen:
+            seen.add(key)
+            out.append(r)
+    return out[:top]
 
 
-def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: str = "") -> dict:
-    """Write table.{tex,csv,md} and ranking.{tex,md,csv}; returns {kind: path}."""
-    rows = rows_from_results(out, ordered)
+def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: str = "",
+                 equivalences=None) -> dict:
+    """Write table.{tex,csv,md} and ranking.{tex,md,csv}; returns {kind: path}.
+
+    With ``equivalences`` (:func:`certify.batch.plan.table_equivalences`) every row is
+    read from the computed race it equals by an exact symmetry.
+    """
+    rows = (rows_from_equivalences(out, ordered, equivalences) if equivalences is not None
+            else rows_from_results(out, ordered))
     shown = leader_first(rows)
     best = ranking(rows, top)
     files = {

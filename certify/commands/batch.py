@@ -24,6 +24,8 @@ def _command_line(args) -> str:
         parts += ["--race", r]
     if args.kinds != "two-way,residues":
         parts += ["--kinds", args.kinds]
+    if getattr(args, "symmetries", False):
+        parts += ["--symmetries"]
     parts += ["--digits", str(target_digits(args)), "--out", args.out]
     return " ".join(shlex.quote(x) for x in parts)
 
@@ -63,7 +65,8 @@ def run_table(args) -> int:
     summary = run_batch(moduli, digits, args.out, workers=workers, scheduler=args.scheduler,
                         cache_path=args.cache, kinds=kinds, extra=extra,
                         top=top, progress=progress_enabled(args) and not args.quiet,
-                        command_line=cmd, use_cache=not args.no_cache)
+                        command_line=cmd, use_cache=not args.no_cache,
+                        symmetries=args.symmetries)
     if args.json:
         write_json(summary, args.json)
     if args.json == "-":
@@ -192,6 +195,10 @@ def register(sub) -> None:
     p.add_argument("--no-cache", action="store_true",
                    help="keep spectra in a scratch cache inside DIR instead")
     p.add_argument("--top", default="20", help="length of the ranking of most biased races")
+    p.add_argument("--symmetries", action="store_true",
+                   help="certify one race per distinct law (r a square: (ra,rb) ~ (a,b); "
+                   "(1/a,1/b) ~ (a,b); (b,a) = 1 - (a,b); q = 2m, m odd ~ m) and read every "
+                   "row from the race it equals, saying why")
     add_json(p, "the batch summary")
     add_progress(p)
     p.add_argument("--quiet", action="store_true", help="alias of --no-progress")

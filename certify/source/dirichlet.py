@@ -149,6 +149,8 @@ def _primitive_label(q: int, n: int, cond: int) -> int:
     """
     if cond == 1:
         return 1
+    if cond == q:
+        return n  # chi_{q,n} is itself primitive
     lifts = []
     for a in range(1, cond):
         if math.gcd(a, cond) != 1:

@@ -15,7 +15,7 @@ The Riemann zeta function is the character of conductor 1 (label 1, even):
 there Lambda is replaced by the entire function
 xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), whose zeros are exactly the
 non-trivial zeros of zeta, and the same formula holds with c_k the (real)
-coefficients of log xi(1 + x) (docs/method.md, section 2b).
+coefficients of log xi(1 + x) (docs/method.md, section 2c).
 
 The coefficients come from python-flint's power series of L(s, chi) (for
 zeta: of the deflated series zeta(s) - 1/(s - 1)) and of log Gamma; the alternating sum loses about m * log2(m) bits, so the
@@ -24,9 +24,12 @@ working precision is raised accordingly and the output radii checked.
 
 from __future__ import annotations
 
-from flint import acb_series, dirichlet_char
+import math
+
+from flint import acb_series, dirichlet_char, dirichlet_group
 
 from ..arith import acb, arb, series_cap, workprec
+from ..errors import PrecisionExhausted
 from .lfunction import AnalyticL, power_sums, zero_power_sums_of
 
 
@@ -128,7 +131,7 @@ class ZetaL(AnalyticL):
     """The Riemann zeta function as an :class:`AnalyticL` (the character of conductor 1).
 
     Lambda is xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), entire of order 1
-    with xi(1 - s) = xi(s) (docs/method.md, section 2b); Z(t) is Arb's Hardy
+    with xi(1 - s) = xi(s) (docs/method.md, section 2c); Z(t) is Arb's Hardy
     Z-function of the trivial character mod 1, e^{i theta(t)} zeta(1/2 + i t).
     """
 
@@ -180,3 +183,195 @@ def central_value(conductor: int, label: int, prec: int = 64) -> acb:
     """An enclosure of L(1/2, chi) (zeta(1/2) for conductor 1: Arb's L of the trivial character)."""
     with workprec(prec):
         return dirichlet_char(conductor, label).l(acb(1) / 2)
+
+
+# --- every character of a conductor at once (docs/method.md, section 2c) ---------------
+
+def _group_axes(q: int):
+    """The unit group mod q as a product of cyclic axes.
+
+    Returns (axes, logs): ``axes`` is a list of (generator mod q, order) and
+    ``logs`` maps each reduced class a to its exponent vector, so that
+    a = prod g_j^{l_j} mod q.  The axes are the cyclic factors of the prime
+    powers of q (two for 2^e with e >= 3: -1 and 5), generators lifted by CRT.
+    """
+    from sympy import factorint, primitive_root
+
+    parts = []  # (p^e, [(generator mod p^e, order)])
+    for p, e in sorted(factorint(q).items()):
+        pe = p ** e
+        if p == 2:
+            if e == 1:
+                continue
+            gens = [(pe - 1, 2)] + ([(5, 2 ** (e - 2))] if e >= 3 else [])
+        else:
+            gens = [(int(primitive_root(pe)), pe // p * (p - 1))]
+        parts.append((pe, gens))
+    axes = []
+    tables = []  # per prime power: dict residue -> exponent tuple (over its own gens)
+    for pe, gens in parts:
+        rest = q // pe
+        for g, n in gens:
+            # lift g mod pe to q: g mod pe, 1 mod rest
+            lift = (g * rest * pow(rest, -1, pe) + pe * pow(pe, -1, rest)) % q if rest > 1 else g % q
+            axes.append((lift, n))
+        table = {}
+        if len(gens) == 1:
+            g, n = gens[0]
+            x = 1
+            for l in range(n):
+                table[x] = (l,)
+                x = x * g % pe
+        else:
+            (g0, n0), (g1, n1) = gens
+            y = 1
+            for l1 in range(n1):
+                table[y] = (0, l1)
+                table[(pe - y) % pe] = (1, l1)
+                y = y * g1 % pe
+        tables.append((pe, table))
+    logs = {}
+    for a in range(1, q):
+        if math.gcd(a, q) != 1:
+            continue
+        vec = []
+        for pe, table in tables:
+            vec.extend(table[a % pe])
+        logs[a] = tuple(vec)
+    return axes, logs
+
+
+def _group_dft(vectors: list, axes) -> list:
+    """Multi-dimensional DFT of arrays indexed by exponent vectors (mixed radix).
+
+    ``vectors`` is a list of flat lists in mixed-radix order (first axis
+    slowest); returns transformed lists: entry k holds
+    sum_l prod_j exp(-2 pi i k_j l_j / n_j) v_l.
+    """
+    orders = [n for _, n in axes]
+    out = []
+    for v in vectors:
+        v = list(v)
+        stride = 1
+        for n in reversed(orders):
+            block = stride * n
+            for start in range(0, len(v), block):
+                for off in range(stride):
+                    idx = [start + off + stride * i for i in range(n)]
+                    w = acb.dft([v[i] for i in idx]) if n > 1 else [v[idx[0]]]
+                    for i, val in zip(idx, w):
+                        v[i] = val
+            stride = block
+        out.append(v)
+    return out
+
+
+def conductor_jets(conductor: int, count: int, prec: int, labels=None) -> dict:
+    """Taylor data at s = 1 and central values of every primitive character mod ``conductor``.
+
+    L(s, chi) = q^{-s} sum_a chi(a) zeta(s, a/q) for chi mod q (a over reduced
+    classes).  For non-principal chi the pole of zeta(s, a/q) at s = 1 cancels
+    (sum_a chi(a) = 0), so the deflated Hurwitz series zeta(s, a/q) - 1/(s-1)
+    may be used; one Hurwitz jet per class and one DFT over the character
+    group give every L(1 + x, chi) at once (docs/method.md, section 2c).
+
+    Returns {label: (c_1..c_count of log Lambda(1 + x, chi), L(1/2, chi))} for
+    the primitive labels (all of them, or those in ``labels``).
+    """
+    q = conductor
+    axes, logs = _group_axes(q)
+    orders = [n for _, n in axes]
+    size = 1
+    for n in orders:
+        size *= n
+    with workprec(prec), series_cap(count + 1):
+        x = acb_series([acb(1), acb(1)])
+        flat = [[acb(0)] * size for _ in range(count + 2)]
+        for a, vec in logs.items():
+            idx = 0
+            for l, n in zip(vec, orders):
+                idx = idx * n + l
+            z = acb_series.zeta(x, acb(a) / q, deflate=1).coeffs()
+            z = z + [acb(0)] * (count + 1 - len(z))
+            for k in range(count + 1):
+                flat[k][idx] = z[k]
+            flat[count + 1][idx] = acb_series.zeta(acb_series([acb(1) / 2]), acb(a) / q).coeffs()[0]
+        trans = _group_dft(flat, axes)
+        g = dirichlet_group(q)
+        expo = int(g.exponent())
+        wanted = None if labels is None else set(labels)
+        out = {}
+        mlog = arb(q).log()
+        # q^{-(1+x)} = q^{-1} exp(-x log q)
+        qfac = acb_series([acb(0), acb(-mlog)]).exp() / q
+        for n in range(1, q):
+            if math.gcd(n, q) != 1 or (wanted is not None and n not in wanted):
+                continue
+            chi = dirichlet_char(q, n)
+            if not chi.is_primitive():
+                continue
+            idx = 0
+            for (gen, order) in axes:
+                m = int(chi.chi_exponent(gen)) * order // expo
+                idx = idx * order + (-m) % order
+            lser = qfac * acb_series([trans[k][idx] for k in range(count + 1)])
+            central = trans[count + 1][idx] / arb(q).sqrt()
+            out[n] = (_log_lambda_from_l(lser, q, int(chi.parity()), count), central)
+        return out
+
+
+def _log_lambda_from_l(l_series, conductor: int, parity: int, count: int) -> list:
+    """c_1..c_count of log Lambda(1 + x) from the series L(1 + x, chi) (current precision)."""
+    log_l = l_series.log()
+    half = acb_series([acb(1 + parity) / 2, acb(1) / 2])
+    log_g = half.lgamma()
+    lin = (arb(conductor) / arb.pi()).log() / 2
+    cl, cg = log_l.coeffs(), log_g.coeffs()
+    out = []
+    for k in range(1, count + 1):
+        ck = cl[k] + cg[k]
+        if k == 1:
+            ck += lin
+        out.append(ck)
+    return out
+
+
+def conductor_power_sums(conductor: int, labels, count: int, abs_accuracy_bits: int = 100,
+                         max_prec: int = 20000) -> dict:
+    """{label: (S_1..S_count, L(1/2, chi))} for primitive characters mod ``conductor``, batched.
+
+    Same accuracy contract as :func:`zero_power_sums`: precision is doubled
+    until every S_m of every requested label has radius below 2^-abs_accuracy_bits.
+    """
+    labels = sorted(set(labels))
+    need = abs_accuracy_bits
+    prec = need + 3 * count + 64 + int(math.log2(conductor + 1))
+    while prec <= max_prec:
+        with workprec(prec):
+            data = conductor_jets(conductor, count, prec, labels)
+            out = {}
+            ok = True
+            for n in labels:
+                cs, cv = data[n]
+                sums = power_sums_from_coefficients([c.real for c in cs], count)
+                if not all(s.is_finite() and s.rad() < arb(2) ** (-need) for s in sums):
+                    ok = False
+                    break
+                out[n] = (sums, cv)
+            if ok:
+                return out
+        prec *= 2
+    raise PrecisionExhausted(
+        f"not certified: zero power sums of the characters mod {conductor} "
+        f"could not be enclosed to 2^-{need} below {max_prec} bits")
+
+
+# measured crossover (bench/bench_moments.py): the batch costs about phi(q) Hurwitz
+# jets and one DFT, a single character about the same Hurwitz work; batching pays
+# as soon as a few characters of one conductor are wanted.
+BATCH_MIN_CHARACTERS = 2
+
+
+def prefer_batch(conductor: int, wanted: int) -> bool:
+    """Whether to compute ``wanted`` characters of ``conductor`` by the batched path."""
+    return conductor >= 3 and wanted >= BATCH_MIN_CHARACTERS
