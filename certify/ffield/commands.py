@@ -14,6 +14,8 @@ its prime field is written ``z`` (see ``certify.ffield.poly``).
 
 from __future__ import annotations
 
+import sys
+
 
 from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
                                 target_width, write_json)
@@ -94,7 +96,10 @@ def run_race(args) -> int:
         qn, G, wd = residue_race(args.q, args.modulus, args.mode)
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
-    res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
+    def say(msg: str) -> None:
+        print(f"ffrace: {msg}", file=sys.stderr, flush=True)
+
+    res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders, progress=say)
     if args.json:
         _emit_json(res.to_dict(), args.json)
     if args.json != "-":

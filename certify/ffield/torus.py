@@ -12,10 +12,11 @@ Relations.  With x_0 = 1/2 (the angle pi) and x_j = theta_j / 2 pi for the
 angles theta_j in (0, pi) of distinct roots, a relation is k in Z^(J+1) with
 k . x in Z, i.e. prod_j (alpha_j / sqrt q)^(k_j) = (-1)^(k_0).  Candidates come
 from LLL on the lattice [I | round(C x)] + [0 | C]; each is confirmed exactly:
-beta = prod_{k_j > 0} alpha_j^(2 k_j) prod_{k_j < 0} conj(alpha_j)^(2|k_j|) is a
-root of an integer polynomial P built by resultants (powers and products of
-the minimal polynomials); beta = q^S (S = sum |k_j|) exactly when P(q^S) = 0
-and P / (y - q^S)^v does not vanish on beta's ball.  Then
+beta = prod_{k_j > 0} alpha_j^(2 k_j) prod_{k_j < 0} conj(alpha_j)^(2|k_j|) is an
+algebraic integer of degree <= D (the product of the minimal polynomials' degrees)
+whose conjugates all have modulus q^S (S = sum |k_j|), so beta != q^S forces
+|beta - q^S| >= (2 q^S)^-(D-1); a ball of beta - q^S that excludes 0 refutes the
+relation, one inside that radius proves beta = q^S (:func:`confirm_relation`).  Then
 gamma = prod (alpha_j / sqrt q)^(k_j) satisfies gamma^2 = 1 exactly, and a ball
 decides gamma = 1 or -1, hence k_0 mod 2.
 
@@ -37,13 +38,13 @@ import math
 from dataclasses import dataclass
 from fractions import Fraction
 
-from flint import acb, fmpz, fmpz_mat, fmpz_mpoly_ctx, fmpz_poly
+from flint import acb, fmpz, fmpz_mat, fmpz_poly
 
 from ..arith import arb, workprec
 from ..errors import Inconsistent, PrecisionExhausted
 from .characters import smith_normal_form
 
-__all__ = ["ExactRoot", "identify_root", "find_relations", "confirm_relation", "REFUTED", "relation_cost",
+__all__ = ["ExactRoot", "identify_root", "root_kind", "find_relations", "confirm_relation", "REFUTED", "relation_degree_bound",
            "OrbitClosure", "orbit_closure", "density_on_closure", "TrigFunction", "vanishing_coset"]
 
 
@@ -96,6 +97,33 @@ class ExactRoot:
     def is_plus_minus_sqrt(self, q: int) -> bool:
         """Exactly: is this root equal to +sqrt(q) or -sqrt(q)?"""
         return (fmpz_poly([-q, 0, 1]) % self.poly()).is_zero()
+
+
+def root_kind(root: ExactRoot, q: int) -> str:
+    """Exactly which kind of inverse root of an F_q[t] L-function ``root`` is.
+
+    "unit" (|alpha| = 1): its minimal polynomial g is cyclotomic (Kronecker: an algebraic
+    integer all of whose conjugates have modulus 1 is a root of unity; the roots of modulus
+    1 of L(u, chi) are roots of unity, from the factors 1 - u and 1 - chi*(P) u^deg P);
+    "plus" / "minus" (alpha = +sqrt q / -sqrt q): g divides y^2 - q; when g = y^2 - q itself
+    (q not a square), the sign of the real part of the isolated root decides which (a certain
+    comparison of a ball of radius << sqrt q, never a width test);
+    "complex": anything else, which by Weil's theorem has modulus sqrt q and is not real.
+    This is the one place in certify.ffield where a root is classified.
+    """
+    g = root.poly()
+    if g.is_cyclotomic():
+        return "unit"
+    if not (fmpz_poly([-q, 0, 1]) % g).is_zero():
+        return "complex"
+    if g.degree() == 1:  # g = g1 y + g0, root -g0/g1
+        return "plus" if (int(g[0]) > 0) != (int(g[1]) > 0) else "minus"
+    b = root.ball(CANONICAL_PREC).real
+    if b > 0:
+        return "plus"
+    if b < 0:
+        return "minus"
+    raise PrecisionExhausted("not certified: cannot tell sqrt(q) from -sqrt(q)")  # pragma: no cover
 
 
 def identify_root(alpha: acb, norm_rev: fmpz_poly, prec: int = 128) -> ExactRoot:
@@ -159,127 +187,70 @@ def find_relations(x: list[arb], coeff_bound: int = 60, prec: int = 256) -> list
     return out
 
 
-def _power_poly(g: fmpz_poly, k: int) -> fmpz_poly:
-    """A Z-polynomial whose roots are the k-th powers of the roots of g (resultant)."""
-    if k == 1:
-        return g
-    ctx = fmpz_mpoly_ctx.get(("x", "y"), "lex")
-    X, Y = ctx.gens()
-    G = sum((int(c) * X**i for i, c in enumerate(g.coeffs()) if int(c)), 0 * X)
-    res = G.resultant(Y - X**k, "x")
-    return _to_upoly(res, 1)
-
-
-def _product_poly(p1: fmpz_poly, p2: fmpz_poly) -> fmpz_poly:
-    """A Z-polynomial whose roots are the products of a root of p1 and a root of p2."""
-    ctx = fmpz_mpoly_ctx.get(("x", "y"), "lex")
-    X, Y = ctx.gens()
-    A = sum((int(c) * X**i for i, c in enumerate(p1.coeffs()) if int(c)), 0 * X)
-    d2 = p2.degree()
-    # x^d2 p2(y/x) = sum c_i y^i x^(d2-i)
-    Bp = sum((int(c) * Y**i * X**(d2 - i) for i, c in enumerate(p2.coeffs()) if int(c)), 0 * X)
-    res = A.resultant(Bp, "x")
-    return _to_upoly(res, 1)
-
-
-def _to_upoly(mp, var: int) -> fmpz_poly:
-    d = mp.to_dict()
-    deg = max((k[var] for k in d), default=0)
-    cs = [0] * (deg + 1)
-    for k, v in d.items():
-        cs[k[var]] += int(v)
-    return fmpz_poly(cs)
-
-
 #: ``confirm_relation`` returns this when the candidate is proved false (beta != q^S exactly).
 REFUTED = -1
 
-
-def _minimal_factor(P: fmpz_poly, ball_of, precs=(256, 512, 1024, 2048)) -> fmpz_poly | None:
-    """The irreducible factor of P having the number z as a root, where ``ball_of(prec)`` encloses z.
-
-    z is a root of P, hence of exactly one of its distinct irreducible factors; a factor
-    whose value on z's ball excludes 0 is not that one.  When exactly one factor's value
-    contains 0, it is the minimal polynomial of z (up to sign).  None if the precisions
-    tried do not separate the factors.
-    """
-    _, facs = P.factor()
-    gs = [g for g, _ in facs if g.degree() >= 1]
-    if len(gs) == 1:
-        return gs[0]
-    for prec in precs:
-        with workprec(prec):
-            z = ball_of(prec)
-            hits = [g for g in gs if _eval_acb(g, z).contains(0)]
-        if len(hits) == 1:
-            return hits[0]
-        if not hits:
-            raise Inconsistent("a number is not a root of the polynomial built for it")
-    return None
+#: Largest working precision (bits) :func:`confirm_relation` uses for the separation bound.
+MAX_CONFIRM_BITS = 16_384
 
 
-def relation_cost(roots: list, k: list[int]) -> int:
-    """Product of the degrees of the minimal polynomials a relation involves (an upper bound
-    on every resultant degree :func:`confirm_relation` can meet)."""
+def relation_degree_bound(roots: list, k: list[int]) -> int:
+    """D = product of the degrees of the minimal polynomials of the roots a relation involves:
+    an upper bound on [Q(alpha_j : k_j != 0) : Q], hence on the degree of beta."""
     return math.prod(r.poly().degree() for r, kj in zip(roots, k[1:]) if kj)
 
 
 def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
-                     max_degree: int = 4000) -> int | None:
+                     max_bits: int = MAX_CONFIRM_BITS) -> int | None:
     """Decide prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly: k_0 mod 2 if it holds, REFUTED if not,
-    None if undecided within the budget.
+    None if undecided within ``max_bits``.
 
-    ``roots[j]`` are :class:`ExactRoot` for j = 1..J (index 0 of k is the pi coordinate
-    and is ignored here).  beta = prod_{k_j>0} alpha_j^(2k_j) prod_{k_j<0} conj(alpha_j)^(2|k_j|)
-    is built one factor at a time, keeping only the *minimal polynomial* of each partial
-    product: the resultant polynomial (powers, then products of roots) is factored over Z and
-    the unique irreducible factor vanishing on the partial product's ball is kept
-    (:func:`_minimal_factor`).  So the degrees stay those of the minimal polynomials, not their
-    product.  Finally beta = q^S (S = sum |k_j|) iff its minimal polynomial is y - q^S: an
-    exact yes or no.  If yes, gamma = prod (alpha_j/sqrt q)^(k_j) has gamma^2 = 1 and a ball
-    decides gamma = +1 or -1.  A resultant of degree above ``max_degree`` is not attempted
-    (None: not confirmed, the caller refuses).
+    ``roots[j]`` are :class:`ExactRoot` for j = 1..J (index 0 of k is the pi coordinate and is
+    ignored here); every root of each minimal polynomial has modulus sqrt(q) (Weil: the
+    conjugates of alpha are inverse roots of conjugate L-functions, and a minimal polynomial
+    with a root of modulus sqrt q is not cyclotomic, so none of its roots has modulus 1).
+    Put beta = prod_{k_j>0} alpha_j^(2k_j) prod_{k_j<0} conj(alpha_j)^(2|k_j|) and S = sum |k_j|;
+    the relation holds iff beta = q^S.
+
+    * If a ball of beta - q^S excludes 0, the relation is false (REFUTED).
+    * Separation bound: beta is an algebraic integer (conj(alpha) = q / alpha is one too) of
+      degree d <= D (:func:`relation_degree_bound`; beta lies in Q(alpha_j : k_j != 0)), and each
+      conjugate sigma(beta) is the same product of conjugates of the alpha_j, so |sigma(beta)| = q^S.
+      If beta != q^S, its minimal polynomial P (monic, in Z[y]) has P(q^S) a non-zero integer, so
+      1 <= |P(q^S)| = prod_sigma |q^S - sigma(beta)| <= |beta - q^S| (2 q^S)^(d-1), i.e.
+      |beta - q^S| >= (2 q^S)^-(D-1).  A ball of beta - q^S inside that radius proves beta = q^S.
+    Then gamma = prod (alpha_j / sqrt q)^(k_j) has gamma^2 = 1 and a ball decides gamma = +-1.
     """
     parts = [(r, kj) for r, kj in zip(roots, k[1:]) if kj]
     if not parts:
         return k[0] % 2
     S = sum(abs(kj) for _, kj in parts)
-    Q = fmpz(q) ** S
+    D = relation_degree_bound(roots, k)
+    log_sep = (D - 1) * (1 + S * math.log2(q))      # log2 of (2 q^S)^(D-1)
+    need = int(log_sep + S * math.log2(q)) + 64
 
-    def factor_ball(r, kj, p):
-        a = r.ball(p)
-        a = a if kj > 0 else a.conjugate()
-        return a ** (2 * abs(kj))
+    def beta_minus(p: int) -> acb:
+        with workprec(p + 32):
+            beta = acb(1)
+            for r, kj in parts:
+                a = r.ball(p + 32)
+                a = a if kj > 0 else a.conjugate()
+                beta *= a ** (2 * abs(kj))
+            return beta - arb(fmpz(q) ** S)
 
-    cur = None
-    done: list = []
-    for r, kj in parts:
-        g = r.poly()
-        if cur is not None and cur.degree() * g.degree() > max_degree:
+    p = prec
+    while True:
+        diff = beta_minus(p)
+        if not diff.contains(0):
+            return REFUTED
+        if p >= need:
+            break
+        if need > max_bits:
             return None
-        Pj = _power_poly(g, 2 * abs(kj))
-        Pj = _minimal_factor(Pj, lambda p, r=r, kj=kj: factor_ball(r, kj, p))
-        if Pj is None:
-            return None
-        done.append((r, kj))
-        if cur is None:
-            cur = Pj
-            continue
-        if cur.degree() * Pj.degree() > max_degree:
-            return None
-
-        def partial(p, items=tuple(done)):
-            z = acb(1)
-            for rr, kk in items:
-                z *= factor_ball(rr, kk, p)
-            return z
-
-        cur = _minimal_factor(_product_poly(cur, Pj), partial)
-        if cur is None:
-            return None
-    if cur.degree() != 1 or int(cur[0]) != -Q * int(cur[1]):
-        return REFUTED
-    with workprec(prec):
+        p = min(4 * p, need)
+    with workprec(p + 32):
+        if not (diff.abs_upper() < arb(2) ** (-int(math.ceil(log_sep)) - 1)):
+            return None  # pragma: no cover - the precision was chosen for this
         gamma = acb(1)
         sq = arb(q).sqrt()
         for r, kj in parts:
@@ -290,14 +261,7 @@ def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
             return 0
         if (gamma + 1).abs_upper() < 1:
             return 1
-    return None  # pragma: no cover - gamma^2 = 1 exactly, so a 256-bit ball decides
-
-
-def _eval_acb(P: fmpz_poly, z: acb) -> acb:
-    s = acb(0)
-    for c in reversed(P.coeffs()):
-        s = s * z + int(c)
-    return s
+    return None  # pragma: no cover - gamma^2 = 1 exactly, so a ball decides
 
 
 # ---------------------------------------------------------------- orbit closure

@@ -19,6 +19,7 @@ import math
 
 import pytest
 
+from certify.errors import PrecisionExhausted
 from certify.ffield.race import (
     certify_ffrace, empirical_frequency, exact_race_values, parse_race, residue_race,
 )
@@ -140,9 +141,7 @@ def test_leaders_from_exact_counts():
 def test_degenerate_race_fails_closed():
     # q = 9, m = t^2 + t: these two classes see no root of modulus 3 and c_2 = 0, so the
     # limit function vanishes identically; nothing can be certified and the output says so
-    qn, G, wd = parse_race(9, "t^2+t", ["z*t + (2*z+1)", "(2*z+2)*t + (z+2)"], None, "cumulative")
-    res = certify_ffrace(qn, G, wd, target_width=1e-6, leader_bound=0)
-    assert res.case == "no angles"
-    assert res.density.lower == 0 and res.density.upper == 1
-    assert not res.target_met
-    assert [h.name for h in res.hypotheses] == ["Weil"]
+    for mode in ("cumulative", "degree"):
+        qn, G, wd = parse_race(9, "t^2+t", ["z*t + (2*z+1)", "(2*z+2)*t + (z+2)"], None, mode)
+        with pytest.raises(PrecisionExhausted, match="vanishes identically"):
+            certify_ffrace(qn, G, wd, target_width=1e-6, leader_bound=0)

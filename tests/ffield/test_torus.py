@@ -29,8 +29,9 @@ def test_true_relation_confirmed_false_one_rejected():
     # theta_1 - theta_2 is not a rational multiple of pi: proved false exactly
     assert confirm_relation(roots, [0, 1, -1], 3) == REFUTED
     assert confirm_relation(roots, [0, 2, 1], 3) == REFUTED
-    # a budget too small for the resultant: undecided, never assumed
-    assert confirm_relation(roots, [0, 1, -1], 3, max_degree=0) is None
+    # a precision budget too small for the separation bound: undecided, never assumed
+    assert confirm_relation(roots, [0, 5, 5], 3, max_bits=0) is None
+    assert confirm_relation(roots, [0, 5, 5], 3) == 1
 
 
 def test_weil_check_detects_a_perturbed_polynomial():
