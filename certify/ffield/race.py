@@ -434,27 +434,21 @@ def race_counter(G: CharacterGroup, wd: dict[int, int], question: FFRaceQuestion
 
 
 def residue_leader_report(G: CharacterGroup, wd: dict[int, int], bound: int, mode: str) -> LeaderReport:
-    """Leaders between non-residues and residues: from R(n) and the exact total count."""
-    A = max(wd.values())
-    B = -min(wd.values())
+    """Leaders between non-residues and residues by the certified statistic: the sign of the
+    weighted count R(n) = A pi(n; non-residues) - B pi(n; residues) (or of its cumulative sum),
+    the same weighted race whose density is certified (A = #squares, B = #non-squares, divided by
+    their gcd, so that each *class* weighs the same).  Raw counts of primes would favour the side
+    with more classes."""
     rc = RaceCounter(G, wd, characters=quadratic_characters(G), period=2)
     names = ("non-residues", "residues")
     leaders, led = [], {n: [] for n in names}
     cum_r = 0
-    cum_t = 0
-    bad = [P.degree() for P, _ in G.factors]
     for n, r in rc.run(bound):
-        from .poly import irreducible_count
-        tot = irreducible_count(G.F.q, n) - sum(1 for d in bad if d == n)
         cum_r += r
-        cum_t += tot
-        rr, tt = (cum_r, cum_t) if mode == "cumulative" else (r, tot)
-        # R = A*pi_non - B*pi_sq and T = pi_non + pi_sq; compare pi_non with pi_sq
-        pi_non = Fraction(rr + B * tt, A + B)
-        pi_sq = tt - pi_non
-        if pi_non > pi_sq:
+        rr = cum_r if mode == "cumulative" else r
+        if rr > 0:
             leaders.append(names[0]); led[names[0]].append(n)
-        elif pi_sq > pi_non:
+        elif rr < 0:
             leaders.append(names[1]); led[names[1]].append(n)
         else:
             leaders.append("tie")
