@@ -30,3 +30,16 @@ def weighted_race(q: int, weights: dict, digits: int = DEFAULT_DIGITS,
                   store: SpectrumStore | None = None) -> RaceResult:
     """Density of x with sum_a w_a pi(x;q,a) > 0 (rational weights summing to zero)."""
     return certify_race(weighted(q, weights), digits, store=store)
+
+
+def li_race(direction: str = "pi<li", sig_digits: int | None = 10, digits: int | None = None,
+            store: SpectrumStore | None = None):
+    """Density of x with pi(x) < li(x) (or ``"pi>li"``), under RH and LI for zeta.
+
+    Planned for ``sig_digits`` significant digits of the small side
+    (1 - delta(pi<li) = delta(pi>li) ~ 2.63e-7), or for an absolute width
+    10^-digits; returns a LiRaceResult (a RaceResult with the small side).
+    """
+    from .lirace import certify_li_race
+
+    return certify_li_race(direction, sig_digits=sig_digits, digits=digits, store=store)

@@ -180,7 +180,7 @@ class ECRaceResult:
             "curve": self.curve.as_dict(),
             "density": {
                 "lower": d.lower_str(places), "upper": d.upper_str(places),
-                "width": f"{float(d.width):.3e}", "certified_digits": d.digits(),
+                "width": d.width_text(), "certified_digits": d.digits(),
                 "target_width": f"1e-{self.digits_requested}", "target_met": self.target_met,
             },
             "negative_density": {"lower": neg.lower_str(places), "upper": neg.upper_str(places)},

@@ -7,6 +7,7 @@ import shlex
 import sys
 
 from ..errors import BadInput
+from ..result import headline_text
 
 
 def _int(text, what):
@@ -27,8 +28,8 @@ def screen(result, obs=None) -> str:
                                      f"{ld.reduction} w={'?' if ld.root_number is None else f'{ld.root_number:+d}'}"
                                      for ld in E.local),
         f"  root number {result.rank.root_number:+d}; {result.rank.statement()}",
-        f"  P[ sum_(p<=x) a_p/sqrt(p) > 0 ] = {d.digits() or '(no digit certified)'}",
-        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        "  " + headline_text("P[ sum_(p<=x) a_p/sqrt(p) > 0 ]", d),
+        f"  enclosure  {d.interval_text(places)}   width <= {d.width_text()}"
         + ("" if result.target_met else f"   (target 1e-{result.digits_requested} NOT met)"),
         f"  limit law: mean 1 - 2r = {result.mean}, variance {result.variance.str(8)}; "
         f"{result.parameters['zeros_used']} zeros to height {result.height:.1f}; "
@@ -36,7 +37,7 @@ def screen(result, obs=None) -> str:
         "  error budget:",
     ]
     for e in result.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
     lines.append("  hypotheses:")
     for h in result.hypotheses:
         lines.append(f"    {h.name} ({h.status}): {h.statement}")
@@ -56,6 +57,12 @@ def run_ecrace(args) -> int:
     from ..ecobserve import observe, plot_observation
     from ..source.ellcurve import curve_from_ainvs
 
+    from .options import check_json_path
+
+    check_json_path(args.json)
+    check_json_path(args.plot)
+    if len(str(args.ainvs)) > 400:
+        raise BadInput("the a-invariants are longer than 400 characters")
     E = curve_from_ainvs(args.ainvs)
     digits = _int(args.digits, "--digits")
     if not (1 <= digits <= MAX_DIGITS):

@@ -3,6 +3,7 @@
     certify lirace                      # delta(pi<li), 10 significant digits of 1 - delta
     certify lirace 'pi>li' --sig-digits 20 --json out.json
     certify lirace gt --digits 17       # an absolute width 1e-17 instead
+    certify lirace -s 20 --certificate reports/   # and the certificate of the final round
 
 Certificates, verify and the referee check take the same race as
 ``'delta(pi<li)'`` / ``'delta(pi>li)'`` (``certify certificate 'delta(pi<li)'``,
@@ -38,7 +39,7 @@ def screen(result) -> str:
     k, text = result.significant
     lines = [
         f"{result.question.label}: {result.question.statement}",
-        f"  delta      in [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}",
+        f"  delta      in {d.interval_text(places)}   width <= {d.width_text()}",
         f"  {small_side_text(result)}",
     ]
     if result.sig_digits_requested and not result.sig_target_met:
@@ -54,7 +55,7 @@ def screen(result) -> str:
                  f"total {result.timings.get('total', 0):.2f} s")
     lines.append("  error budget (absolute, on delta):")
     for e in result.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
     lines.append("  hypotheses (assumed, not proven):")
     for h in result.hypotheses:
         lines.append(f"    {h.name}: {h.statement}")
@@ -73,7 +74,9 @@ def _int(text, what: str) -> int:
 
 def run_lirace(args) -> int:
     from ..lirace import certify_li_race
+    from .options import check_json_path
 
+    check_json_path(args.json)  # before any work: an empty or folder --json is refused at once
     direction = direction_of(args.direction)
     if args.digits is not None and args.sig_digits is not None:
         raise BadInput("give either --sig-digits or --digits, not both")
@@ -86,7 +89,15 @@ def run_lirace(args) -> int:
         sig = _int(args.sig_digits, "--sig-digits") if args.sig_digits is not None else None
         if sig is not None:
             tail += ["--sig-digits", str(sig)]
-    result = certify_li_race(direction, sig_digits=sig, digits=digits,
+    from ..spectrum.spectrum import SpectrumStore
+
+    formats = None
+    if args.certificate:
+        from ..render.files import parse_formats
+
+        formats = parse_formats(args.formats)
+    store = SpectrumStore()
+    result = certify_li_race(direction, sig_digits=sig, digits=digits, store=store,
                              command_line="certify " + " ".join(shlex.quote(a) for a in tail))
     if args.json:
         text = json.dumps(result.to_dict(), indent=2)
@@ -98,6 +109,18 @@ def run_lirace(args) -> int:
             write_atomic(args.json, text + "\n")
     if args.json != "-":
         print(screen(result))
+    if args.certificate:
+        from ..certificate.build import certificate_from_result, reproduce_command
+        from ..render.files import write_files
+
+        # the certificate of the final round (its absolute target), re-checkable by verify
+        cert = certificate_from_result(result, store)
+        paths = write_files(cert, args.certificate, formats)
+        out = sys.stderr if args.json == "-" else sys.stdout
+        print(f"  certificate of the final round (reproduce: "
+              f"{reproduce_command(result.question, result.digits_requested)}):", file=out)
+        for f, p in paths.items():
+            print(f"  wrote {f:<9} {p}", file=out)
     return 0 if result.sig_target_met else 5
 
 
@@ -119,4 +142,9 @@ def register(sub) -> None:
     p.add_argument("--digits", "-d", default=None, metavar="D",
                    help=f"instead: an absolute width 10^-D for delta (1..{MAX_DIGITS})")
     p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--certificate", metavar="DIR",
+                   help="also write the certificate of the final round into DIR (certify verify "
+                   "re-checks it)")
+    p.add_argument("--formats", default="json,md",
+                   help="certificate formats: json, md, tex, fragment, plots, all (default json,md)")
     p.set_defaults(func=run_lirace)

@@ -62,7 +62,7 @@ def _check_curve_size(args, what: str, twist_degree: int = 0, n: int = 1) -> Non
 def _add_curve_args(p):
     p.add_argument("q", help="the order of the constant field F_q (a prime power, characteristic >= 5)")
     p.add_argument("A", help="A(t), e.g. 't^3 + 2*t + 1' (for q = p^k, 'z' is the generator of F_q)")
-    p.add_argument("B", help="B(t)")
+    p.add_argument("B", help="B(t), the constant coefficient, e.g. 't^3 + 2'")
     p.add_argument("--mode", choices=("cumulative", "degree"), default="cumulative",
                    help="race over good places of degree <= X (cumulative) or of degree exactly X")
     add_json(p)
@@ -113,10 +113,14 @@ def run_curve(args) -> int:
     E = make_curve(args.q, args.A, args.B)
     L = l_polynomial(E, confirm=confirm)
     R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=max_boxes)
-    d = R.to_dict()
-    d["parameters"]["command"] = "certify " + " ".join(shlex.quote(a) for a in getattr(args, "_argv", []) or [])
     if args.json:
-        _write(json.dumps(d, indent=2, default=str), args.json)
+        # --json writes the certificate: the one shape of every certify document
+        from fractions import Fraction
+
+        from ..certificate.curves import curve_certificate
+
+        cert = curve_certificate(R, Fraction(repr(width)), confirm, max_boxes)
+        _write(cert.to_json().rstrip("\n"), args.json)
     if args.json != "-":
         print(curve_screen(R))
     return 0

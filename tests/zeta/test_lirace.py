@@ -182,3 +182,11 @@ def test_engine_against_quadrature_random_means():
         q = _quadrature_density(float(mu), g, R)
         assert float(d.enclosure.lower) - 1e-13 <= q <= float(d.enclosure.upper) + 1e-13
         assert d.enclosure.width < Fraction(1, 10**12)
+
+
+def test_notebook_api():
+    from certify import li_race
+
+    r = li_race("pi>li", sig_digits=4, store=STORE)
+    assert r.small_name == "delta" and r.significant[0] >= 4
+    assert Fraction("2.6299e-7") <= r.small_lower <= r.small_upper <= Fraction("2.6300e-7")

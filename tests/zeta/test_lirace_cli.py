@@ -117,3 +117,14 @@ def test_claims_file_with_li_lines(tmp_path, capsys):
     assert "delta(pi<li)" in report and "delta(pi>li)" in report
     claims.write_text("delta(pi<li) = 0.9999997\ndelta(pi<>li) = 0.5\n")
     assert main(["claims", str(claims), "--out", str(tmp_path)]) == 2
+
+
+def test_lirace_writes_a_certificate_that_verifies(tmp_path, capsys):
+    assert main(["lirace", "-s", "12", "--certificate", str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    path = tmp_path / "delta_pi_lt_li.json"
+    assert f"wrote json      {path}" in out
+    d = json.loads(path.read_text())
+    assert d["answer"]["small_side"]["significant_digits"] >= 12
+    assert main(["verify", str(path)]) == 0
+    assert main(["lirace", "--certificate", str(tmp_path), "--formats", "pdf"]) == 2
