@@ -6,7 +6,8 @@ root of the reversed norm polynomial, which factors exactly over Z; an
 irreducible factor g has simple roots, isolated by ``fmpz_poly.complex_roots``.
 If alpha's ball meets exactly one of those root balls, alpha *is* that root:
 :class:`ExactRoot` = (g, index).  Equality of two roots is then exact, and
-``alpha = +-sqrt(q)`` holds exactly when g divides y^2 - q.
+:func:`root_kind` reads the kind of root (modulus 1 iff g is cyclotomic, +-sqrt(q)
+iff g divides y^2 - q, otherwise non-real of modulus sqrt q) from g exactly.
 
 Relations.  With x_0 = 1/2 (the angle pi) and x_j = theta_j / 2 pi for the
 angles theta_j in (0, pi) of distinct roots, a relation is k in Z^(J+1) with
@@ -93,10 +94,6 @@ class ExactRoot:
 
     def poly(self) -> fmpz_poly:
         return fmpz_poly(list(self.g))
-
-    def is_plus_minus_sqrt(self, q: int) -> bool:
-        """Exactly: is this root equal to +sqrt(q) or -sqrt(q)?"""
-        return (fmpz_poly([-q, 0, 1]) % self.poly()).is_zero()
 
 
 def root_kind(root: ExactRoot, q: int) -> str:
