@@ -39,7 +39,7 @@ import math
 from dataclasses import dataclass
 from fractions import Fraction
 
-from flint import acb, fmpz, fmpz_mat, fmpz_poly
+from flint import acb, fmpz, fmpz_mat, fmpz_mpoly_ctx, fmpz_poly
 
 from ..arith import arb, workprec
 from ..errors import Inconsistent, PrecisionExhausted
@@ -184,6 +184,110 @@ def find_relations(x: list[arb], coeff_bound: int = 60, prec: int = 256) -> list
     return out
 
 
+def _power_poly(g: fmpz_poly, k: int) -> fmpz_poly:
+    """A Z-polynomial whose roots are the k-th powers of the roots of g (resultant)."""
+    if k == 1:
+        return g
+    ctx = fmpz_mpoly_ctx.get(("x", "y"), "lex")
+    X, Y = ctx.gens()
+    G = sum((int(c) * X**i for i, c in enumerate(g.coeffs()) if int(c)), 0 * X)
+    res = G.resultant(Y - X**k, "x")
+    return _to_upoly(res, 1)
+
+
+def _product_poly(p1: fmpz_poly, p2: fmpz_poly) -> fmpz_poly:
+    """A Z-polynomial whose roots are the products of a root of p1 and a root of p2."""
+    ctx = fmpz_mpoly_ctx.get(("x", "y"), "lex")
+    X, Y = ctx.gens()
+    A = sum((int(c) * X**i for i, c in enumerate(p1.coeffs()) if int(c)), 0 * X)
+    d2 = p2.degree()
+    # x^d2 p2(y/x) = sum c_i y^i x^(d2-i)
+    Bp = sum((int(c) * Y**i * X**(d2 - i) for i, c in enumerate(p2.coeffs()) if int(c)), 0 * X)
+    res = A.resultant(Bp, "x")
+    return _to_upoly(res, 1)
+
+
+def _to_upoly(mp, var: int) -> fmpz_poly:
+    d = mp.to_dict()
+    deg = max((k[var] for k in d), default=0)
+    cs = [0] * (deg + 1)
+    for k, v in d.items():
+        cs[k[var]] += int(v)
+    return fmpz_poly(cs)
+
+
+def _minimal_factor(P: fmpz_poly, ball_of, precs=(256, 512, 1024, 2048)) -> fmpz_poly | None:
+    """The irreducible factor of P having the number z as a root, where ``ball_of(prec)`` encloses z.
+
+    z is a root of P, hence of exactly one of its distinct irreducible factors; a factor
+    whose value on z's ball excludes 0 is not that one.  When exactly one factor's value
+    contains 0, it is the minimal polynomial of z (up to sign).  None if the precisions
+    tried do not separate the factors.
+    """
+    _, facs = P.factor()
+    gs = [g for g, _ in facs if g.degree() >= 1]
+    if len(gs) == 1:
+        return gs[0]
+    for prec in precs:
+        with workprec(prec):
+            z = ball_of(prec)
+            hits = [g for g in gs if _eval_acb(g, z).contains(0)]
+        if len(hits) == 1:
+            return hits[0]
+        if not hits:
+            raise Inconsistent("a number is not a root of the polynomial built for it")
+    return None
+
+
+def _eval_acb(P: fmpz_poly, z: acb) -> acb:
+    s = acb(0)
+    for c in reversed(P.coeffs()):
+        s = s * z + int(c)
+    return s
+
+
+def _minimal_polynomial_of_beta(parts, max_degree: int) -> fmpz_poly | None:
+    """The minimal polynomial of beta = prod alpha_j^(2k_j) (conj for k_j < 0), or None.
+
+    Built one factor at a time: the resultant polynomial of the powers, then of the products
+    of roots, is factored over Z and only the irreducible factor vanishing on the partial
+    product's ball is kept (:func:`_minimal_factor`), so the degrees stay those of minimal
+    polynomials.  None when a resultant would exceed ``max_degree`` or a ball does not
+    single out a factor.
+    """
+    def factor_ball(r, kj, p):
+        a = r.ball(p)
+        a = a if kj > 0 else a.conjugate()
+        return a ** (2 * abs(kj))
+
+    cur = None
+    done: list = []
+    for r, kj in parts:
+        g = r.poly()
+        if cur is not None and cur.degree() * g.degree() > max_degree:
+            return None
+        Pj = _minimal_factor(_power_poly(g, 2 * abs(kj)), lambda p, r=r, kj=kj: factor_ball(r, kj, p))
+        if Pj is None:
+            return None
+        done.append((r, kj))
+        if cur is None:
+            cur = Pj
+            continue
+        if cur.degree() * Pj.degree() > max_degree:
+            return None
+
+        def partial(p, items=tuple(done)):
+            z = acb(1)
+            for rr, kk in items:
+                z *= factor_ball(rr, kk, p)
+            return z
+
+        cur = _minimal_factor(_product_poly(cur, Pj), partial)
+        if cur is None:
+            return None
+    return cur
+
+
 #: ``confirm_relation`` returns this when the candidate is proved false (beta != q^S exactly).
 REFUTED = -1
 
@@ -198,7 +302,7 @@ def relation_degree_bound(roots: list, k: list[int]) -> int:
 
 
 def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
-                     max_bits: int = MAX_CONFIRM_BITS) -> int | None:
+                     max_bits: int = MAX_CONFIRM_BITS, max_resultant_degree: int = 256) -> int | None:
     """Decide prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly: k_0 mod 2 if it holds, REFUTED if not,
     None if undecided within ``max_bits``.
 
@@ -216,6 +320,9 @@ def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
       If beta != q^S, its minimal polynomial P (monic, in Z[y]) has P(q^S) a non-zero integer, so
       1 <= |P(q^S)| = prod_sigma |q^S - sigma(beta)| <= |beta - q^S| (2 q^S)^(d-1), i.e.
       |beta - q^S| >= (2 q^S)^-(D-1).  A ball of beta - q^S inside that radius proves beta = q^S.
+    * When that precision exceeds ``max_bits``, beta's minimal polynomial is computed instead
+      (:func:`_minimal_polynomial_of_beta`, resultants of degree <= ``max_resultant_degree``):
+      beta = q^S iff it is y - q^S.  Otherwise None (undecided; the caller refuses).
     Then gamma = prod (alpha_j / sqrt q)^(k_j) has gamma^2 = 1 and a ball decides gamma = +-1.
     """
     parts = [(r, kj) for r, kj in zip(roots, k[1:]) if kj]
@@ -243,10 +350,16 @@ def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
         if p >= need:
             break
         if need > max_bits:
-            return None
+            # the bound is out of reach: compute beta's minimal polynomial instead (exact)
+            mp = _minimal_polynomial_of_beta(parts, max_resultant_degree)
+            if mp is None:
+                return None
+            if mp.degree() != 1 or int(mp[0]) != -int(fmpz(q) ** S) * int(mp[1]):
+                return REFUTED
+            break
         p = min(4 * p, need)
-    with workprec(p + 32):
-        if not (diff.abs_upper() < arb(2) ** (-int(math.ceil(log_sep)) - 1)):
+    with workprec(prec + 32):
+        if p >= need and not (diff.abs_upper() < arb(2) ** (-int(math.ceil(log_sep)) - 1)):
             return None  # pragma: no cover - the precision was chosen for this
         gamma = acb(1)
         sq = arb(q).sqrt()

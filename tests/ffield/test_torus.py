@@ -30,7 +30,10 @@ def test_true_relation_confirmed_false_one_rejected():
     assert confirm_relation(roots, [0, 1, -1], 3) == REFUTED
     assert confirm_relation(roots, [0, 2, 1], 3) == REFUTED
     # a precision budget too small for the separation bound: undecided, never assumed
-    assert confirm_relation(roots, [0, 5, 5], 3, max_bits=0) is None
+    assert confirm_relation(roots, [0, 5, 5], 3, max_bits=0, max_resultant_degree=0) is None
+    # beyond the bits budget, the minimal polynomial of beta decides (exactly) instead
+    assert confirm_relation(roots, [0, 5, 5], 3, max_bits=0) == 1
+    assert confirm_relation(roots, [0, 1, -1], 3, max_bits=0) == REFUTED
     assert confirm_relation(roots, [0, 5, 5], 3) == 1
 
 
