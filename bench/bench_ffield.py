@@ -39,7 +39,7 @@ DENSITIES = [
     ("relation, real roots: q=9, t^2+t, z vs 1", lambda: parse_race(9, "t^2+t", ["z", "1"], None, "cumulative")),
     ("relation, rational angle: q=3, t^3+2t+1, residues, cumulative",
      lambda: residue_race(3, "t^3+2*t+1", "cumulative")),
-    # G vanishes at points of this finite closure: the enclosure stays wide (fail closed)
+    # G vanishes at a point of this finite closure: refused (the sign there is not decided)
     ("relation, rational angle: q=3, t^3+2t+1, residues, degree",
      lambda: residue_race(3, "t^3+2*t+1", "degree")),
     ("LI: q=5, t^7+t+3, residues, cumulative", lambda: residue_race(5, "t^7+t+3", "cumulative")),

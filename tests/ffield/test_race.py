@@ -88,6 +88,10 @@ def test_relation_example_rational_angle_exact_density():
     emp = empirical_frequency(vals, "cumulative")
     assert abs(emp - dens) <= 0.01
     assert dens.denominator in (1, 2, 3, 4, 6, 12)
+    # the prescribed-degree race has G = 0 at a point of this finite closure: refused
+    qn, G, wd = residue_race(3, "t^3+2*t+1", "degree")
+    with pytest.raises(PrecisionExhausted, match="vanishes identically"):
+        certify_ffrace(qn, G, wd, target_width=1e-10, leader_bound=0)
 
 
 def test_relation_example_real_roots():
