@@ -22,6 +22,7 @@ from .errors import BadInput, CertifyError
 # installation (an optional part not yet built) is skipped.
 COMMAND_MODULES = [
     "certify.commands.races",
+    "certify.commands.orders",
     "certify.commands.documents",
     "certify.commands.batch",
     "certify.commands.lirace",

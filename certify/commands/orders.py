@@ -1,0 +1,117 @@
+"""``certify order Q A1 A2 A3 ...``: densities of orderings of three or more classes mod q."""
+
+from __future__ import annotations
+
+import json
+import shlex
+import sys
+
+from ..errors import BadInput
+from ..race.order import ordering
+
+
+def _int(text: str, what: str) -> int:
+    try:
+        return int(text)
+    except (TypeError, ValueError):
+        raise BadInput(f"{what} must be an integer, got {text!r}") from None
+
+
+def screen(result) -> str:
+    """One-screen summary of an ordering's density."""
+    d = result.density
+    places = d.places()
+    lines = [
+        f"{result.question.label} = {d.digits() or '(no digit certified)'}",
+        f"  {result.question.statement}",
+        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        + ("" if result.target_met else f"   (target 1e-{result.digits_requested} NOT met)"),
+        f"  mean vector ({', '.join(map(str, result.mean))}); "
+        f"{result.parameters['zeros_used']} zeros of {len(result.parameters['primitive_l_functions'])} "
+        f"L-functions; {result.parameters['frequency_vectors']} frequency vectors; "
+        f"{result.timings.get('total', 0):.2f} s",
+        "  error budget:",
+    ]
+    for e in result.budget:
+        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+    lines.append("  hypotheses (assumed, not proven):")
+    for h in result.hypotheses:
+        lines.append(f"    {h.name}: {h.statement}")
+    if not result.target_met:
+        lines.append(f"  not certified to the target: {result.parameters.get('not_met_reason', '')}")
+    lines.append(f"  {result.caution}")
+    return "\n".join(lines)
+
+
+def family_screen(fam) -> str:
+    lines = [f"every ordering of the classes {', '.join(map(str, fam.classes))} mod {fam.modulus}:"]
+    for r in fam.results:
+        d = r.density
+        p = d.places()
+        lines.append(f"  {r.question.label:<24} [{d.lower_str(p)}, {d.upper_str(p)}]  "
+                     f"width {float(d.width):.1e}" + ("" if r.target_met else "  (target NOT met)"))
+    lines.append("consistency checks (exact identities; each interval must contain its reference):")
+    for c in fam.checks:
+        lines.append(f"  {'ok  ' if c.ok else 'FAIL'} {c.name}: [{float(c.lower):.10f}, "
+                     f"{float(c.upper):.10f}] vs {c.reference}")
+    lines.append(f"  {fam.caution}")
+    return "\n".join(lines)
+
+
+def _write(payload: dict, path: str) -> None:
+    text = json.dumps(payload, indent=2)
+    if path == "-":
+        sys.stdout.write(text + "\n")
+    else:
+        from ..io import write_atomic
+
+        write_atomic(path, text + "\n")
+
+
+def run_order(args) -> int:
+    from ..orders import MAX_DIGITS, certify_order, certify_orderings
+
+    q = _int(args.modulus, "modulus")
+    classes = [_int(a, "class") for a in args.classes]
+    question = ordering(q, *classes)
+    if len(question.classes) < 3:
+        raise BadInput("an ordering race needs at least three classes "
+                       "(for two, use `certify race Q A B`)")
+    d = _int(args.digits, "--digits")
+    if not 1 <= d <= MAX_DIGITS:
+        raise BadInput(f"--digits must lie in 1..{MAX_DIGITS} (got {d})")
+    cmd = "certify " + " ".join(shlex.quote(a) for a in
+                                ["order", str(q), *map(str, classes), "--digits", str(d)]
+                                + (["--all"] if args.all else []))
+    if args.all:
+        fam = certify_orderings(q, question.classes, d, command_line=cmd)
+        if args.json:
+            _write(fam.to_dict(), args.json)
+        if args.json != "-":
+            print(family_screen(fam))
+        if not fam.ok:
+            return 4
+        return 0 if all(r.target_met for r in fam.results) else 5
+    result = certify_order(question, d, command_line=cmd)
+    if args.json:
+        _write(result.to_dict(), args.json)
+    if args.json != "-":
+        print(screen(result))
+    return 0 if result.target_met else 5
+
+
+def register(sub) -> None:
+    from ..orders import DEFAULT_ORDER_DIGITS
+
+    p = sub.add_parser("order", help="density of pi(x;q,a1) > pi(x;q,a2) > ... (three or more classes)",
+                       description="Certify delta(q;a1,...,ar), the logarithmic density of x with "
+                       "pi(x;q,a1) > ... > pi(x;q,ar), under GRH and LI. With --all, every "
+                       "ordering of the classes, with the consistency checks (the r! densities "
+                       "sum to 1; pairwise marginals against the two-way densities).")
+    p.add_argument("modulus", help="the modulus q >= 3")
+    p.add_argument("classes", nargs="+", help="three or more distinct classes, leader first")
+    p.add_argument("--digits", "-d", default=str(DEFAULT_ORDER_DIGITS), metavar="D",
+                   help=f"target: width at most 10^-D (default {DEFAULT_ORDER_DIGITS})")
+    p.add_argument("--all", action="store_true", help="every ordering of the classes, with checks")
+    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.set_defaults(func=run_order)
