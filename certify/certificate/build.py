@@ -23,7 +23,7 @@ from ..result import CAUTION
 from ..spectrum.spectrum import SpectrumStore, residual_sums
 from .evidence import exact_ends, moment_consequences, refine_ordinate, relation_search
 from .model import Certificate, ball_of, ball_record
-from .numbers import exact_decimal as _exact_decimal, places_for, sci, sci_bound
+from .numbers import places_for, sci, sci_bound
 
 #: Ordinates used in the integer-relation search, their enclosure width and the lattice scale.
 RELATION_SIZE = 10
@@ -42,6 +42,7 @@ NORMALISATION = ("E(x) = (log x / sqrt x) * phi(q) * sum_a w_a pi(x; q, a); unde
 DEFINITION = ("delta = lim_{X -> oo} (1 / log X) * integral over {2 <= x <= X : "
               "sum_a w_a pi(x; q, a) > 0} of dx / x (logarithmic density), which equals "
               "P(X > 0) for the limit law above.")
+
 
 LI_NORMALISATION = ("E(x) = (log x / sqrt x) * (pi(x) - li(x)); under RH and LI for zeta, E has "
                     "the limit law of X = -1 + sum_{gamma > 0} 2 / sqrt(1/4 + gamma^2) "
@@ -122,19 +123,27 @@ def answer_record(result: RaceResult) -> dict:
     upper = decimal_up(hi + margin, places)
     flo, fhi = Fraction(lower), Fraction(upper)
     extra = {"small_side": small_side_record(flo, fhi)} if result.question.is_li_race else {}
-    return {**extra, 
+    return {
+        **extra,
         "enclosure": {"lower": lower, "upper": upper},
         "engine_ball": ball_record(result.ball),
+        **answer_fields(flo, fhi, result.digits_requested),
+        "mean": str(result.mean),
+        "variance": ball_record(result.variance),
+        "exact": result.exact.as_dict() if getattr(result, "exact", None) is not None else None,
+    }
+
+
+def answer_fields(flo: Fraction, fhi: Fraction, digits: int) -> dict:
+    """The answer's derived fields, from the stored enclosure ends and the target alone."""
+    return {
         "width": sci(fhi - flo, 3, up=True),
         "certified_digits": certified_digits(flo, fhi),
         "gap_to_half": {"lower": sci(flo - Fraction(1, 2), 4, up=False),
                         "upper": sci(fhi - Fraction(1, 2), 4, up=True)},
         "gap_to_one": {"lower": sci(1 - fhi, 4, up=False), "upper": sci(1 - flo, 4, up=True)},
-        "target_width": f"1e-{result.digits_requested}",
-        "target_met": bool(fhi - flo <= Fraction(1, 10**result.digits_requested)),
-        "mean": str(result.mean),
-        "variance": ball_record(result.variance),
-        "exact": result.exact.as_dict() if getattr(result, "exact", None) is not None else None,
+        "target_width": f"1e-{digits}",
+        "target_met": bool(fhi - flo <= Fraction(1, 10**digits)),
     }
 
 
@@ -185,44 +194,139 @@ def _spectrum_record(result: RaceResult, store: SpectrumStore) -> dict:
     return {"groups": groups}
 
 
-def _zero_count_evidence(lf: dict, zeros: list) -> dict:
-    """GRH to a height for one L-function: argument-principle count against the sign changes."""
-    from .zerocount import count_height, count_zeros
+# ---------------------------------------------------------------- canonical texts
+# Every sentence a document shows is a function of stored data: the builder and
+# ``verify`` call the same functions, so a rewritten sentence cannot pass verify,
+# and renderers show the regenerated text, never the stored one.
+
+LI_STATEMENT = ("The positive ordinates of the zeros of these L-functions (one ordinate set per "
+                "character, conjugates counted apart) are linearly independent over Q.")
+
+LATTICE_REFERENCE = ("Lattice reduction: Factoring polynomials with rational coefficients, "
+                     "Mathematische Annalen 261 (1982).")
+
+
+ZETA_RH_STATEMENT = "The Riemann hypothesis: every non-trivial zero of zeta(s) has real part 1/2."
+ZETA_LI_STATEMENT = ("The positive ordinates of the non-trivial zeros of zeta(s) are linearly "
+                     "independent over Q.")
+
+
+def certificate_caution(rh: str = "GRH") -> str:
+    """The fixed caution of a race certificate over Q: it rests on (G)RH and LI, assumed."""
+    from ..result import Hypothesis, caution_text
+
+    hyps = (Hypothesis(rh, "", "assumed"), Hypothesis("LI", "", "assumed"))
+    return caution_text(hyps) + " Re-check this file with `certify verify`."
+
+
+def hypothesis_statements(spectrum, rh: str = "GRH") -> dict:
+    """{name: statement} of the two hypotheses a race over Q rests on, from its L-functions."""
+    if rh == "RH":
+        return {"RH": ZETA_RH_STATEMENT, "LI": ZETA_LI_STATEMENT}
+    keys = sorted({(lf["conductor"], lf["label"]) for g in spectrum["groups"]
+                   for lf in g["l_functions"]})
+    names = ", ".join(f"L(s, chi_{{{c},{n}}})" for (c, n) in keys)
+    return {"GRH": f"The generalised Riemann hypothesis for {names}: every non-trivial zero has "
+                   "real part 1/2.",
+            "LI": LI_STATEMENT}
+
+
+def grh_statement(spectrum) -> str:
+    return hypothesis_statements(spectrum)["GRH"]
+
+
+def _g(x) -> str:
+    """A height or lower bound in a sentence: rounded down (the sentence then claims less)."""
+    return decimal_down(Fraction(str(x)), 4)
+
+
+def evidence_text(item, rh: str = "GRH") -> str:
+    """The sentence of one evidence item, regenerated from its kind, keys and data only
+    (``rh`` is "RH" for the zeta race, "GRH" otherwise: the question says which)."""
+    kind, d = item["kind"], item["data"]
+    key = item.get("l_function", "")
+    c, _, n = key.partition(".")
+    L = l_name(int(c), int(n)) if c.isdigit() and n.isdigit() else f"L(s, chi_{{{c},{n}}})"
+    if kind == "zeros-on-critical-line":
+        return (f"{L}: {d['zeros']} zeros on the critical line with ordinates in "
+                f"(0, {_g(d['isolation_height'])}], each certified by a sign change of the "
+                "Hardy Z-function at the two ends of its enclosure")
+    if kind == "zero-count":
+        if not d.get("established"):
+            return f"{L}: argument-principle count to the isolation height not established"
+        T, Tx = _g(d["height"]), str(d["height"])
+        if d["verified"]:
+            return (f"{L}: {rh} verified to height {T}: the argument principle counts exactly "
+                    f"{d['count']} zeros with 0 < gamma < {Tx} in the critical strip, and "
+                    f"{d['sign_changes']} sign changes of Z were found there, so all of them lie "
+                    "on the critical line, are simple, and none is missing from the list")
+        return (f"{L}: the argument principle counts {d['count']} zeros with 0 < gamma < {Tx} but "
+                f"{d['sign_changes']} sign changes were found: {rh} is NOT verified to this height")
+    if kind == "moment-completeness":
+        return (f"{item['group']}: assuming {rh}, no ordinate below {_g(d['complete_below'])} is "
+                f"missing from the isolated list: a missing one would exceed the exact residual "
+                f"power sum R_{d['moment_index']} by itself (zeros off the line are not counted; "
+                f"this is not a proof of {rh})")
+    if kind == "published-verification":
+        return PUBLISHED_RH if rh == "RH" else PUBLISHED_GRH
+    if kind == "central-value":
+        from ..arith import acb
+
+        v = acb(ball_of(d["re"]), ball_of(d["im"]))
+        return f"{central_name(int(c), int(n))} = {v.str(10)}, an enclosure excluding 0"
+    if kind == "simple-zeros":
+        return (f"{item['group']}: each of the {d['isolated']} isolated zeros has odd order (a sign "
+                f"change in its own disjoint interval); {d['proven_simple']} of them are proven "
+                f"simple assuming {rh}, since a multiple zero would leave two copies in the exact "
+                "residual power sums")
+    if kind == "integer-relation-search":
+        K = d["size"]
+        if d["candidate"] is None:
+            text = (f"integer-relation search (LLL) among the first {K} ordinates: none found; "
+                    f"every integer relation among them has Euclidean norm >= "
+                    f"{sci_down(Fraction(d['norm_lower_bound']), 6)}, so none has all |k_i| <= "
+                    f"{d['coefficient_bound']}")
+            if d["linear_form_lower_bound"] is not None:
+                text += (f"; |sum k_i gamma_i| >= {sci_down(Fraction(d['linear_form_lower_bound']), 3)} "
+                         "for every such non-zero k")
+            return text
+        return (f"integer-relation search (LLL) among the first {K} ordinates: candidate "
+                f"relation {list(d['candidate'])} at this precision (not confirmed, not refuted)")
+    raise ValueError(f"unknown evidence kind {kind!r}")
+
+
+def _item(kind: str, data: dict, rh: str = "GRH", **keys) -> dict:
+    item = {"kind": kind, **keys, "data": data}
+    item["text"] = evidence_text(item, rh)
+    return {"kind": kind, **keys, "text": item["text"], "data": data}
+
+
+def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH") -> dict:
+    """GRH to the isolation height for one L-function: argument-principle count against the
+    sign changes (so no zero below the height is missing, on or off the line)."""
+    from .zerocount import count_zeros
 
     c, n = lf["conductor"], lf["label"]
     key = f"{c}.{n}"
-    name = l_name(c, n)
-    rh = "RH" if c == 1 else "GRH"
+    T = Fraction(height)
     ends = sorted(exact_ends(ball_of(z)) for z in zeros)
-    if len(ends) < 2:
-        return {"kind": "zero-count", "l_function": key, "text": f"{name}: too "
-                "few zeros for an argument-principle count", "data": {"established": False}}
-    T = count_height(ends)
     found = sum(1 for lo, hi in ends if hi < T)
-    try:
-        N, pieces = count_zeros(c, n, lf["parity"], T)
-    except PrecisionExhausted as exc:
-        return {"kind": "zero-count", "l_function": key,
-                "text": f"{name}: argument-principle count not established ({exc})",
-                "data": {"established": False, "height": _exact_decimal(T)}}
-    if N == found:
-        text = (f"{name}: {rh} verified to height {decimal_down(Fraction(T), 4)}: the argument "
-                f"principle counts exactly {N} zeros with 0 < gamma < {_exact_decimal(Fraction(T))} "
-                "in the critical "
-                f"strip, and {found} sign changes of Z were found there, so all of them lie on the "
-                "critical line and are simple")
-    else:
-        text = (f"{name}: the argument principle counts {N} zeros with "
-                f"0 < gamma < {_exact_decimal(Fraction(T))} but {found} sign changes were found: "
-                "GRH is NOT "
-                "verified to this height")
-    return {"kind": "zero-count", "l_function": key, "text": text,
-            "data": {"established": True, "height": _exact_decimal(T), "count": N,
-                     "sign_changes": found, "verified": N == found}}
+    N = None
+    for prec in (64, 128, 256):
+        try:
+            N, _ = count_zeros(c, n, lf["parity"], T, prec=prec)
+            break
+        except PrecisionExhausted:
+            continue
+    if N is None:
+        return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
+    return _item("zero-count", {"established": True, "height": height, "count": N,
+                                "sign_changes": found, "verified": N == found}, rh,
+                 l_function=key)
 
 
 def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
-    """GRH and LI with structured evidence (each item: kind, text, data)."""
+    """GRH (RH for zeta) and LI with structured evidence (each item: kind, text, data)."""
     from ..race.question import riemann_hypothesis_name
 
     rh = riemann_hypothesis_name(result.question)
@@ -240,48 +344,23 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
         for li, lf in enumerate(rec["l_functions"]):
             c, n = lf["conductor"], lf["label"]
             count = sum(1 for z in rec["zeros"] if z["l"] == li)
-            grh_ev.append({
-                "kind": "zeros-on-critical-line",
-                "l_function": f"{c}.{n}",
-                "text": (f"{l_name(c, n)}: {count} zeros on the critical line with ordinates "
-                         f"in (0, {decimal_up(Fraction(g.height), 4)}], each certified by a sign "
-                         "change of the "
-                         "Hardy Z-function at the two ends of its enclosure"),
-                "data": {"conductor": c, "label": n, "zeros": count,
-                         "isolation_height": rec["isolation_height"]},
-            })
+            grh_ev.append(_item("zeros-on-critical-line",
+                                {"conductor": c, "label": n, "zeros": count,
+                                 "isolation_height": rec["isolation_height"]},
+                                rh, l_function=f"{c}.{n}"))
         for li, lf in enumerate(rec["l_functions"]):
-            grh_ev.append(_zero_count_evidence(lf, [z for z in rec["zeros"] if z["l"] == li]))
-        h = cons["complete_below"]
-        grh_ev.append({
-            "kind": "moment-completeness",
-            "group": g.label,
-            "text": (f"{g.label}: assuming {rh}, no ordinate below {decimal_down(Fraction(h), 4)} "
-                     "is missing from "
-                     f"the isolated list: a missing one would exceed the exact residual power sum "
-                     f"R_{cons['moment_index']} by itself (zeros off the line are not counted; "
-                     f"this is not a proof of {rh})"),
-            "data": {"complete_below": decimal_down(h, 6), "moment_index": cons["moment_index"]},
-        })
+            grh_ev.append(_zero_count_evidence(lf, [z for z in rec["zeros"] if z["l"] == li],
+                                               rec["isolation_height"], rh))
+        grh_ev.append(_item("moment-completeness",
+                            {"complete_below": decimal_down(cons["complete_below"], 6),
+                             "moment_index": cons["moment_index"]}, rh, group=g.label))
         for li, lf in enumerate(rec["l_functions"]):
             c, n = lf["conductor"], lf["label"]
-            cv = g.central_values[li]
-            li_ev.append({
-                "kind": "central-value",
-                "l_function": f"{c}.{n}",
-                "text": f"{central_name(c, n)} = {cv.str(10)}, an enclosure excluding 0",
-                "data": {"re": lf["central_value"]["re"], "im": lf["central_value"]["im"]},
-            })
-        n_simple = cons["simple"]
-        li_ev.append({
-            "kind": "simple-zeros",
-            "group": g.label,
-            "text": (f"{g.label}: each of the {len(g.zeros)} isolated zeros has odd order (a sign "
-                     f"change in its own disjoint interval); {n_simple} of them are proven simple "
-                     f"assuming {rh}, since a multiple zero would leave two copies in the exact "
-                     "residual power sums"),
-            "data": {"isolated": len(g.zeros), "proven_simple": n_simple},
-        })
+            li_ev.append(_item("central-value", {"re": lf["central_value"]["re"],
+                                                 "im": lf["central_value"]["im"]},
+                               rh, l_function=f"{c}.{n}"))
+        li_ev.append(_item("simple-zeros", {"isolated": len(g.zeros),
+                                            "proven_simple": cons["simple"]}, rh, group=g.label))
         for z in rec["zeros"]:
             ordinates.append((Fraction(z["mid"]), gi, z["l"], z))
     ordinates.sort(key=lambda t: t[0])
@@ -299,56 +378,49 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                                                   RELATION_WIDTH_BITS))
             refined.append((lf, rec, ball_of(rec)))
         rs = relation_search([b for _, _, b in refined], RELATION_SCALE_BITS)
-        K = rs["size"]
-        if rs["candidate"] is None:
-            text = (f"integer-relation search (LLL) among the first {K} ordinates: none found; "
-                    f"every integer relation among them has Euclidean norm >= "
-                    f"{sci_down(Fraction(rs['norm_lower_bound']), 6)}, so none has all |k_i| <= "
-                    f"{rs['coefficient_bound']}")
-            if rs["linear_form_lower_bound"] is not None:
-                text += (f"; |sum k_i gamma_i| >= {sci_down(Fraction(rs['linear_form_lower_bound']), 3)} "
-                         "for every such non-zero k")
-        else:
-            text = (f"integer-relation search (LLL) among the first {K} ordinates: candidate "
-                    f"relation {rs['candidate']} at this precision (not confirmed, not refuted)")
-        li_ev.append({
-            "kind": "integer-relation-search",
-            "text": text,
-            "data": {
-                "size": K, "scale_bits": rs["scale_bits"],
-                "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **rec}
-                              for lf, rec, _ in refined],
-                "norm_lower_bound": decimal_down(rs["norm_lower_bound"], 6),
-                "coefficient_bound": rs["coefficient_bound"],
-                "linear_form_lower_bound": (None if rs["linear_form_lower_bound"] is None
-                                            else sci(rs["linear_form_lower_bound"], 4, up=False)),
-                "candidate": rs["candidate"],
-            },
-        })
-    grh_ev.append({"kind": "published-verification",
-                   "text": PUBLISHED_RH if rh == "RH" else PUBLISHED_GRH, "data": {}})
-    by_name = {h.name: h for h in result.hypotheses}
-    out = [
-        {"name": rh, "statement": by_name[rh].statement, "status": "assumed",
-         "evidence": grh_ev, "reference": by_name[rh].reference},
-        {"name": "LI", "statement": by_name["LI"].statement, "status": "assumed",
-         "evidence": li_ev, "reference": by_name["LI"].reference},
+        li_ev.append(_item("integer-relation-search", {
+            "size": rs["size"], "scale_bits": rs["scale_bits"],
+            "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **rec}
+                          for lf, rec, _ in refined],
+            "norm_lower_bound": decimal_down(rs["norm_lower_bound"], 6),
+            "coefficient_bound": rs["coefficient_bound"],
+            "linear_form_lower_bound": (None if rs["linear_form_lower_bound"] is None
+                                        else sci(rs["linear_form_lower_bound"], 4, up=False)),
+            "candidate": rs["candidate"],
+        }))
+    grh_ev.append(_item("published-verification", {}, rh))
+    st = hypothesis_statements(spectrum, rh)
+    return [
+        {"name": rh, "statement": st[rh], "status": "assumed", "evidence": grh_ev, "reference": ""},
+        {"name": "LI", "statement": st["LI"], "status": "assumed", "evidence": li_ev,
+         "reference": ""},
     ]
-    for h in result.hypotheses:
-        if h.name not in (rh, "LI"):
-            out.append({"name": h.name, "statement": h.statement, "status": h.status,
-                        "evidence": [{"kind": "note", "text": e, "data": {}} for e in h.evidence],
-                        "reference": h.reference})
-    return out
+
+
+def certificate_parameters(result: RaceResult) -> dict:
+    params = {k: v for k, v in result.parameters.items()}
+    params["digits_requested"] = result.digits_requested
+    params["density_target_width"] = repr(10.0 ** (-result.digits_requested))
+    return params
+
+
+def certificate_references() -> list:
+    from ..races import REFERENCES
+
+    return list(REFERENCES) + [LATTICE_REFERENCE]
+
+
+def riemann_hypothesis_name(question) -> str:
+    from ..race.question import riemann_hypothesis_name as name
+
+    return name(question)
 
 
 def certificate_from_result(result: RaceResult, store: SpectrumStore,
                             relation_size: int = RELATION_SIZE) -> Certificate:
     """The certificate of a race result computed with ``store``."""
     spectrum = _spectrum_record(result, store)
-    params = {k: v for k, v in result.parameters.items()}
-    params["digits_requested"] = result.digits_requested
-    params["density_target_width"] = repr(10.0 ** (-result.digits_requested))
+    params = certificate_parameters(result)
     prov = dict(result.provenance)
     if not prov.get("command_line"):
         prov["command_line"] = reproduce_command(result.question, result.digits_requested)
@@ -356,10 +428,7 @@ def certificate_from_result(result: RaceResult, store: SpectrumStore,
     prov["timings_seconds"] = dict(result.timings)
     budget = [{"name": e.name, "bound": sci_bound(e.bound, 3), "description": e.description}
               for e in result.budget]
-    refs = list(result.references) + [
-        "Lattice reduction: A. K. Lenstra, H. W. Lenstra and L. Lovasz, Factoring polynomials "
-        "with rational coefficients, Mathematische Annalen 261 (1982).",
-    ]
+    refs = certificate_references()
     return Certificate(
         question=question_record(result.question),
         answer=answer_record(result),
@@ -369,7 +438,7 @@ def certificate_from_result(result: RaceResult, store: SpectrumStore,
         spectrum=spectrum,
         provenance=prov,
         references=refs,
-        caution=(getattr(result, "caution", "") or CAUTION) + " Re-check this file with `certify verify`.",
+        caution=certificate_caution(riemann_hypothesis_name(result.question)),
     )
 
 

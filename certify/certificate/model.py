@@ -1,4 +1,4 @@
-"""The certificate: an immutable, versioned record of one certified density.
+"""The certificate: an immutable, versioned record of one certified density (any setting).
 
 A :class:`Certificate` is built once from a race result
 (:mod:`certify.certificate.build`), written as JSON, read back, rendered and
@@ -16,6 +16,7 @@ must be built from a dictionary and will be judged by ``verify`` on its own.
 from __future__ import annotations
 
 import json
+import os
 from dataclasses import dataclass
 from fractions import Fraction
 from types import MappingProxyType
@@ -24,9 +25,19 @@ from typing import Any, Mapping
 from ..arith import arb, ball_from_strings, ball_strings
 from ..errors import BadInput
 
-SCHEMA_ID = "certify/race-certificate"
-SCHEMA_VERSION = 1
-SUPPORTED_VERSIONS = (1,)
+SCHEMA_ID = "certify/certificate"
+SCHEMA_VERSION = 2
+SUPPORTED_VERSIONS = (2,)
+
+#: Kinds of certificate: one certified number each, re-checked by ``certify verify``.
+CERTIFICATE_KINDS = ("dirichlet-race", "ffield-race", "curve-race")
+#: Kinds of other documents certify writes with ``--json`` (same envelope, same schema).
+REPORT_KINDS = ("verify-report", "referee-report", "table", "l-polynomials", "twist-family",
+                "cache-report")
+
+#: Limits applied before any work starts (the schema states the same bounds).
+MAX_FILE_BYTES = 64 * 2**20
+MAX_DEPTH = 64
 
 SECTIONS = ("question", "answer", "hypotheses", "error_budget", "parameters", "spectrum",
             "provenance", "references", "caution")
@@ -74,7 +85,9 @@ class Certificate:
     Attributes
     ----------
     kind : str
-        ``"dirichlet-race"`` (a race over Q).
+        ``"dirichlet-race"`` (a race over Q), ``"ffield-race"`` (a race in F_q[t]) or
+        ``"curve-race"`` (the trace race of an elliptic curve over F_q(t)); every kind
+        has the same sections, the kind says what ``question`` and ``spectrum`` hold.
     question : Mapping
         Race kind, modulus, classes, exact weights, label, statement,
         normalisation and the density's definition.
@@ -144,55 +157,151 @@ class Certificate:
 
     @classmethod
     def from_dict(cls, data: Any, source: str = "<certificate>") -> "Certificate":
-        """Rebuild a certificate, refusing unknown schemas and versions (BadInput)."""
-        if not isinstance(data, dict):
-            raise BadInput(f"{source}: a certificate is a JSON object, got {type(data).__name__}")
-        if data.get("schema") != SCHEMA_ID:
-            raise BadInput(f"{source}: not a certify race certificate "
-                           f"(schema {data.get('schema')!r}, expected {SCHEMA_ID!r})")
-        version = data.get("schema_version")
-        if version not in SUPPORTED_VERSIONS:
-            raise BadInput(f"{source}: unknown schema version {version!r} "
-                           f"(this certify reads version {', '.join(map(str, SUPPORTED_VERSIONS))})")
+        """Rebuild a certificate, refusing unknown schemas, versions and kinds (BadInput)."""
+        check_envelope(data, source)
+        if data["kind"] not in CERTIFICATE_KINDS:
+            raise BadInput(f"{source}: a {data['kind']!r} document is not a certificate "
+                           f"(certificate kinds: {', '.join(CERTIFICATE_KINDS)})")
         validate_structure(data, source)
         return cls(**{name: data[name] for name in SECTIONS}, kind=data["kind"],
-                   schema_version=version)
+                   schema_version=data["schema_version"])
+
+    # -- notebook display ---------------------------------------------------
+    def _repr_html_(self) -> str:
+        from ..render.notebook import certificate_html
+
+        return certificate_html(self)
+
+    def _repr_latex_(self) -> str:
+        from ..render.notebook import certificate_latex
+
+        return certificate_latex(self)
+
+
+def envelope(kind: str, body: dict) -> dict:
+    """A non-certificate document (``--json`` of reports, tables, listings) in the common envelope."""
+    if kind not in REPORT_KINDS + CERTIFICATE_KINDS:
+        raise ValueError(f"unknown document kind {kind!r}")
+    return {"schema": SCHEMA_ID, "schema_version": SCHEMA_VERSION, "kind": kind, **body}
+
+
+def check_envelope(data: Any, source: str) -> None:
+    if not isinstance(data, dict):
+        raise BadInput(f"{source}: a certify document is a JSON object, got {type(data).__name__}")
+    if data.get("schema") != SCHEMA_ID:
+        raise BadInput(f"{source}: not a certify document "
+                       f"(schema {str(data.get('schema'))[:60]!r}, expected {SCHEMA_ID!r})")
+    version = data.get("schema_version")
+    if type(version) is not int or version not in SUPPORTED_VERSIONS:
+        shown = version if type(version) is int else repr(str(version)[:20])
+        raise BadInput(f"{source}: unknown schema version {shown} "
+                       f"(this certify reads version {', '.join(map(str, SUPPORTED_VERSIONS))})")
+    if data.get("kind") not in CERTIFICATE_KINDS + REPORT_KINDS:
+        raise BadInput(f"{source}: unknown document kind {str(data.get('kind'))[:40]!r}")
 
 
 def validate_structure(data: dict, source: str) -> None:
-    """Check ``data`` against the JSON Schema file (jsonschema if installed, else key checks)."""
-    try:
-        import jsonschema
-    except ImportError:  # the schema's required keys, checked by hand
-        for name in SECTIONS + ("kind",):
-            if name not in data:
-                raise BadInput(f"{source}: missing section {name!r}") from None
-        return
-    from .schema import load_schema
+    """Check ``data`` against the JSON Schema (jsonschema is a runtime dependency)."""
+    import jsonschema
 
-    validator = jsonschema.Draft202012Validator(load_schema())
-    errors = sorted(validator.iter_errors(data), key=lambda e: list(e.absolute_path))
+    from .schema import validator
+
+    errors = sorted(validator().iter_errors(data), key=lambda e: list(e.absolute_path))
     if errors:
         e = errors[0]
         where = "/".join(str(p) for p in e.absolute_path) or "(top level)"
         msg = e.message if len(e.message) < 160 else e.message[:157] + "..."
-        raise BadInput(f"{source}: does not match the certificate schema at {where}: {msg}")
+        raise BadInput(f"{source}: does not match the certify schema at {where}: {msg}")
+    del jsonschema
 
 
-def read_certificate(path: str) -> Certificate:
-    """Load a certificate file; every failure is a one-line BadInput naming file (and line)."""
+def validate_document(data: dict, source: str = "<document>") -> None:
+    """Envelope and schema check of any document certify writes (certificate or report)."""
+    check_envelope(data, source)
+    validate_structure(data, source)
+
+
+def _no_duplicates(pairs):
+    out = {}
+    for k, v in pairs:
+        if k in out:
+            raise _DuplicateKey(k)
+        out[k] = v
+    return out
+
+
+class _DuplicateKey(ValueError):
+    pass
+
+
+def _refuse_constant(name):
+    raise ValueError(f"{name} is not a number certify accepts")
+
+
+def _depth(text: str) -> int:
+    """Nesting depth of brackets outside strings (a cheap guard before parsing)."""
+    depth = best = 0
+    in_str = esc = False
+    for ch in text:
+        if in_str:
+            if esc:
+                esc = False
+            elif ch == "\\":
+                esc = True
+            elif ch == '"':
+                in_str = False
+        elif ch == '"':
+            in_str = True
+        elif ch in "[{":
+            depth += 1
+            if depth > best:
+                best = depth
+                if best > MAX_DEPTH:
+                    return best
+        elif ch in "]}":
+            depth -= 1
+    return best
+
+
+def parse_json_strict(text: str, source: str) -> Any:
+    """JSON as certify reads it: a leading BOM allowed; duplicate keys, NaN/Infinity,
+    nesting deeper than MAX_DEPTH and oversized inputs refused (one-line BadInput)."""
+    if len(text) > MAX_FILE_BYTES:
+        raise BadInput(f"{source}: {len(text)} characters exceed the limit {MAX_FILE_BYTES}")
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    if _depth(text) > MAX_DEPTH:
+        raise BadInput(f"{source}: JSON nested deeper than {MAX_DEPTH} levels")
     try:
+        return json.loads(text, object_pairs_hook=_no_duplicates, parse_constant=_refuse_constant)
+    except _DuplicateKey as exc:
+        raise BadInput(f"{source}: duplicate key {str(exc)[:60]!r} in a JSON object") from None
+    except json.JSONDecodeError as exc:
+        raise BadInput(f"{source}:{exc.lineno}: malformed JSON: {exc.msg} (column {exc.colno})") from None
+    except (ValueError, RecursionError) as exc:
+        raise BadInput(f"{source}: unreadable JSON ({str(exc)[:100]})") from None
+
+
+def read_document(path: str) -> dict:
+    """A certify JSON document (any kind) from a file, strictly parsed and schema-checked."""
+    try:
+        size = os.path.getsize(path)
+        if size > MAX_FILE_BYTES:
+            raise BadInput(f"{path}: {size} bytes exceed the limit {MAX_FILE_BYTES}")
         with open(path, encoding="utf-8") as fh:
             text = fh.read()
     except OSError as exc:
         raise BadInput(f"{path}: cannot read ({exc.strerror or exc})") from None
     except UnicodeDecodeError:
         raise BadInput(f"{path}: not a UTF-8 text file") from None
-    try:
-        data = json.loads(text)
-    except json.JSONDecodeError as exc:
-        raise BadInput(f"{path}:{exc.lineno}: malformed JSON: {exc.msg} (column {exc.colno})") from None
-    return Certificate.from_dict(data, path)
+    data = parse_json_strict(text, path)
+    validate_document(data, path)
+    return data
+
+
+def read_certificate(path: str) -> Certificate:
+    """Load a certificate file; every failure is a one-line BadInput naming file (and line)."""
+    return Certificate.from_dict(read_document(path), path)
 
 
 def write_certificate(cert: Certificate, path: str) -> None:

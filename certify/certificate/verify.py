@@ -22,9 +22,9 @@ import time
 from dataclasses import dataclass, field
 from fractions import Fraction
 
-from ..arith import arb, certified_digits, workprec
+from ..arith import arb, workprec
 from ..density.bessel import BesselVariable, ResidualGroup, density_enclosure
-from ..errors import BadInput, CertifyError, Inconsistent
+from ..errors import BadInput, CertifyError, Inconsistent, PrecisionExhausted
 from ..race.question import (LI_KINDS, RaceQuestion, mean_of, prime_vs_li, residue_race,
                              riemann_hypothesis_name, spectral_groups, two_way, weighted)
 from ..source.dirichlet import primitive_character
@@ -32,7 +32,8 @@ from ..spectrum.moments import central_value, zero_power_sums
 from ..spectrum.spectrum import residual_checks, residual_sums
 from ..spectrum.zeros import HardyZ
 from .evidence import exact_ends, moment_consequences, relation_search
-from .model import Certificate, ball_of
+from .build import answer_fields, input_digest, question_record
+from .model import Certificate, ball_of, thaw
 
 REQUIRED_HYPOTHESES = ("GRH", "LI")  # for Dirichlet races; the zeta race needs RH and LI
 
@@ -174,19 +175,52 @@ def verify_certificate(cert: Certificate) -> VerifyReport:
     return report
 
 
+def check_limits(cert: Certificate) -> None:
+    """Refuse, before any work, a certificate that asks for more than a race over Q can need:
+    the precision, target, zero count and moment sizes are bounded (BadInput)."""
+    from ..races import MAX_DIGITS
+
+    p = cert.parameters
+    prec, digits = p["working_precision_bits"], p["digits_requested"]
+    if type(digits) is not int or not 1 <= digits <= MAX_DIGITS:
+        raise BadInput(f"digits_requested {str(digits)[:20]} outside 1..{MAX_DIGITS}")
+    limit = 16 * digits + 512
+    if type(prec) is not int or not 16 <= prec <= limit:
+        raise BadInput(f"working precision {str(prec)[:20]} bits outside 16..{limit} "
+                       f"for {digits} digits")
+    zeros = 0
+    for g in cert.spectrum["groups"]:
+        m = g["moments"]
+        if not (m["source_bits"] <= limit + 1024 and m["count"] <= m["source_count"] <= 400):
+            raise BadInput(f"{g['label']}: moments asked at {m['source_bits']} bits / "
+                           f"{m['source_count']} terms (limit {limit + 1024} bits, 400 terms)")
+        zeros += len(g["zeros"])
+        if Fraction(g["isolation_height"]) > 10**5:
+            raise BadInput(f"{g['label']}: isolation height above 10^5")
+        for z in g["zeros"]:
+            r = Fraction(z["rad"])
+            if not (Fraction(1, 2 ** (4 * limit)) <= r <= 1):
+                raise BadInput(f"{g['label']}: a zero's radius {float(r):.3e} outside "
+                               f"[2^-{4 * limit}, 1]")
+    if zeros > 20000:
+        raise BadInput(f"{zeros} zeros stored (limit 20000)")
+
+
 def _verify(cert: Certificate, report: VerifyReport) -> None:
+    check_limits(cert)
     params = cert.parameters
     prec = int(params["working_precision_bits"])
     digits = int(params["digits_requested"])
     tau = 10.0 ** (-digits)
 
-    # -- the question -------------------------------------------------------
+    # -- the question: every stored sentence must be the one the modulus and weights give
     question = question_from_record(cert.question)
-    report.add("question: race rebuilt from modulus and weights",
-               question.label == cert.question["label"]
-               and [{"class": a, "weight": str(w)} for a, w in question.weights]
-               == [dict(w) for w in cert.question["weights"]],
-               f"stored {cert.question['label']}, rebuilt {question.label}")
+    expected_q = question_record(question)
+    diff = sorted(k for k in set(expected_q) | set(cert.question)
+                  if thaw(cert.question.get(k)) != expected_q.get(k))
+    report.add("question: kind, modulus, classes, weights, label, statement, normalisation and "
+               "definition rebuilt from modulus and weights", not diff,
+               f"stored field(s) {', '.join(diff)} differ from the rebuilt question")
     mu = mean_of(question)
     report.add("answer: mean mu = -sum w_a c(q,a)", str(mu) == cert.answer["mean"],
                f"stored {cert.answer['mean']}, recomputed {mu}")
@@ -197,6 +231,9 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
               and cert.lower <= Fraction(1, 2) <= cert.upper)
         report.add("answer: exact value 1/2 exactly when the mean is 0 (symmetric law)", ok,
                    f"stored exact {ex.get('value') if ex else None!r}, recomputed mean {mu}")
+    report.add("provenance: input digest of the question and target",
+               cert.provenance["input_digest"] == input_digest(question, digits),
+               "the stored digest is not that of the stored question and target")
 
     # -- spectrum: zeros, moments, residuals ---------------------------------
     stored_groups = cert.spectrum["groups"]
@@ -212,8 +249,13 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
         return
     for g, sg in zip(groups, stored_groups):
         keys = [tuple(k) for k in g.primitive_keys]
-        T = float(sg["isolation_height"])
-        zs = _check_zero_list(report, g.label, list(sg["zeros"]), keys, Fraction(T))
+        T = Fraction(sg["isolation_height"])
+        lfs_ok = (sg["label"] == g.label and sg["real"] == g.is_real
+                  and [lf["parity"] for lf in sg["l_functions"]]
+                  == [primitive_character(c, n).parity for c, n in keys])
+        report.add(f"{g.label}: label, reality and parities as the question gives them", lfs_ok,
+                   "stored group label, 'real' flag or parity differ")
+        zs = _check_zero_list(report, g.label, list(sg["zeros"]), keys, T)
         if zs is None:
             all_ok = False
             continue
@@ -239,7 +281,7 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
         with workprec(prec):
             R = residual_sums(target, zs)
             try:
-                notes = residual_checks(g.label, R, T, keys[0][0], len(keys))
+                notes = residual_checks(g.label, R, float(T), keys[0][0], len(keys))
                 report.add(f"{g.label}: residual sums R_1..R_{K} and their checks", True)
             except Inconsistent as exc:
                 report.add(f"{g.label}: residual sums and their checks", False, str(exc))
@@ -269,37 +311,56 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
                f"stored [{cert.answer['enclosure']['lower']}, {cert.answer['enclosure']['upper']}], "
                f"recomputed [{float(lo):.17g}, {float(hi):.17g}]; the stored one is short by "
                f"{float(max(s_lo - lo, hi - s_hi)):.3e}")
-    stored_budget = {e["name"]: e for e in cert.error_budget}
+    stored_names = [e["name"] for e in cert.error_budget]
     names = [e.name for e in dens.budget]
-    report.add("error budget: the same terms", sorted(names) == sorted(stored_budget),
-               f"stored {sorted(stored_budget)}, recomputed {sorted(names)}")
+    report.add("error budget: the same terms, once each, in the engine's order",
+               stored_names == names, f"stored {stored_names}, recomputed {names}")
+    stored_budget = {e["name"]: e for e in cert.error_budget}
     for e in dens.budget:
         st = stored_budget.get(e.name)
-        ok = st is not None and _q(Fraction(st["bound"])) >= arb(e.bound.upper())
+        ok = (st is not None and _q(Fraction(st["bound"])) >= arb(e.bound.upper())
+              and st["description"] == e.description)
         report.add(f"error bound '{e.name}'", ok,
-                   f"stored {st['bound'] if st else 'missing'}, recomputed {e.bound_float:.3e}")
+                   f"stored {st['bound'] if st else 'missing'}, recomputed {e.bound_float:.3e}"
+                   + ("" if st is None or st["description"] == e.description
+                      else "; the description is not the engine's"))
     total = sum((arb(e.bound.upper()) for e in dens.budget), arb(0))
     report.add("final sum: stored width >= 2 x (aliasing + truncation + residual-zero bounds)",
                _q(s_hi - s_lo) >= 2 * (total - arb(dens.budget[-1].bound.upper())),
                "the stored width is smaller than the proven error allows")
     a = cert.answer
-    digits_ok = a["certified_digits"] == certified_digits(s_lo, s_hi)
-    report.add("answer: certified digits follow from the stored enclosure", digits_ok,
-               f"stored {a['certified_digits']!r}, implied {certified_digits(s_lo, s_hi)!r}")
-    gaps_ok = (Fraction(a["gap_to_one"]["lower"]) <= 1 - s_hi <= 1 - s_lo <= Fraction(a["gap_to_one"]["upper"])
-               and Fraction(a["gap_to_half"]["lower"]) <= s_lo - Fraction(1, 2)
-               and s_hi - Fraction(1, 2) <= Fraction(a["gap_to_half"]["upper"]))
-    report.add("answer: gaps to 1/2 and to 1 enclose the stored ones", gaps_ok,
-               "a printed gap does not contain the interval it describes")
+    expected_a = answer_fields(s_lo, s_hi, digits)
+    diff = sorted(k for k in expected_a if thaw(a.get(k)) != expected_a[k])
+    report.add("answer: width, certified digits, gaps to 1/2 and 1, target and target_met "
+               "recomputed from the stored enclosure", not diff,
+               f"stored field(s) {', '.join(diff)} differ from what the enclosure gives")
+    extra = sorted(set(a) - set(expected_a) - {"enclosure", "engine_ball", "mean", "variance",
+                                               "exact", "small_side"})
+    report.add("answer: no unexpected field", not extra, f"unexpected field(s) {extra}")
     if question.is_li_race or "small_side" in a:
         from .build import small_side_record
 
         report.add("answer: the small side and its significant digits follow from the stored "
-                   "enclosure", dict(a.get("small_side", {})) == small_side_record(s_lo, s_hi),
-                   f"stored {dict(a.get('small_side', {}))}, implied {small_side_record(s_lo, s_hi)}")
-    met = s_hi - s_lo <= Fraction(1, 10**digits)
-    report.add("answer: target_met flag", bool(a["target_met"]) == met,
-               f"stored {a['target_met']}, width {float(s_hi - s_lo):.3e} vs 1e-{digits}")
+                   "enclosure", question.is_li_race
+                   and thaw(a.get("small_side", {})) == small_side_record(s_lo, s_hi),
+                   f"stored {thaw(a.get('small_side', {}))}, implied {small_side_record(s_lo, s_hi)}")
+    eb = ball_of(a["engine_ball"], "engine ball")
+    el, eh = exact_ends(eb)
+    report.add("answer: engine ball inside the stored enclosure and meets the recomputed one",
+               s_lo <= el and eh <= s_hi and _overlap(eb, dens.ball),
+               "the stored engine ball is outside the enclosure or disjoint from the recomputed one")
+    with workprec(prec):
+        V = arb(0)
+        for g, sg, zs, R in group_data:
+            V += g.scale * g.scale * ball_of(sg["moments"]["target_sums"][0]) / 2
+    report.add("answer: variance = sum scale^2 T_1 / 2 from the verified moments",
+               _overlap(ball_of(a["variance"], "variance"), V)
+               and exact_ends(ball_of(a["variance"]))[1] - exact_ends(ball_of(a["variance"]))[0]
+               <= max(Fraction(1, 10**6), 4 * (exact_ends(V)[1] - exact_ends(V)[0])),
+               f"stored {ball_of(a['variance']).str(10)}, recomputed {V.str(10)}")
+
+    # -- parameters: the shown ones recomputed or compared exactly --------------
+    _verify_parameters(cert, report, dens, group_data, digits, tau)
 
     # -- hypotheses ----------------------------------------------------------
     _verify_hypotheses(cert, report, group_data, prec, required_hypotheses(question))
@@ -311,87 +372,136 @@ def _overlap(a: arb, b: arb) -> bool:
     return al <= bh and bl <= ah
 
 
-def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros) -> None:
-    """Re-run the argument-principle count claimed for one L-function."""
-    from .zerocount import count_height, count_zeros
+#: Parameters a document shows, and how verify re-derives each (the others are recorded for
+#: the reader of the JSON only and are not rendered).
+ENGINE_PARAMETERS = ("period_L", "terms", "last_odd_index", "direct_weights",
+                     "truncation_weights_used", "residual_groups", "working_precision_bits")
+SHOWN_PARAMETERS = ENGINE_PARAMETERS + ("digits_requested", "density_target_width",
+                                        "target_width", "moments", "primitive_l_functions",
+                                        "zeros_used")
 
-    e = next((e for e in ev_grh if e["kind"] == "zero-count" and e.get("l_function") == key), None)
-    c0, n0 = (int(x) for x in key.split("."))
-    name = (f"{'RH evidence for zeta(s)' if c0 == 1 else f'GRH evidence for L(s, chi_{{{key}}})'}"
-            ": argument-principle count")
-    if e is None:
-        report.add(name, False, "missing")
-        return
-    d = e["data"]
-    if not d.get("established"):
-        report.add(name + " (not established; nothing claimed)", "verified" not in d)
-        return
-    ends = sorted(exact_ends(ball_of(z)) for z in zeros)
-    T = count_height(ends) if len(ends) >= 2 else None
-    found = sum(1 for lo, hi in ends if T is not None and hi < T)
-    if T is None or Fraction(d["height"]) != T:
-        report.add(name, False, "the counting height is not the one the stored zeros give")
-        return
-    N, _ = count_zeros(int(lf["conductor"]), int(lf["label"]),
-                       primitive_character(int(lf["conductor"]), int(lf["label"])).parity, T)
-    report.add(name, d["count"] == N and d["sign_changes"] == found
-               and bool(d["verified"]) == (N == found),
-               f"stored count {d['count']} / {d['sign_changes']} sign changes, recomputed {N} / {found}")
+
+def _verify_parameters(cert, report, dens, group_data, digits, tau) -> None:
+    p = cert.parameters
+    expected = {k: dens.parameters.get(k) for k in ENGINE_PARAMETERS}
+    expected["working_precision_bits"] = int(p["working_precision_bits"])
+    expected["digits_requested"] = digits
+    expected["density_target_width"] = repr(tau)
+    expected["target_width"] = f"1e-{digits}"
+    expected["moments"] = max(int(sg["moments"]["count"]) for _, sg, _, _ in group_data)
+    expected["primitive_l_functions"] = sorted(f"{lf['conductor']}.{lf['label']}"
+                                         for _, sg, _, _ in group_data for lf in sg["l_functions"])
+    expected["zeros_used"] = sum(len(zs) for _, _, zs, _ in group_data)
+    diff = sorted(k for k in SHOWN_PARAMETERS if thaw(p.get(k)) != expected[k])
+    report.add("parameters: every parameter a document shows re-derived (engine re-run, "
+               "target, moments, L-functions, zeros)", not diff,
+               "; ".join(f"{k}: stored {thaw(p.get(k))!r}, re-derived {expected[k]!r}"
+                         for k in diff[:4]))
+
+
+def _expect_items(report, where: str, stored, expected_keys) -> bool:
+    """The stored evidence list must be exactly the expected (kind, key) sequence."""
+    got = [(e["kind"], e.get("l_function") or e.get("group") or "") for e in stored]
+    ok = got == expected_keys
+    missing = [k for k in expected_keys if k not in got]
+    extra = [k for k in got if k not in expected_keys]
+    dup = sorted({k for k in got if got.count(k) > 1})
+    return report.add(f"{where}: exactly the evidence items the setting requires, once each", ok,
+                      f"missing {missing[:3]}, unexpected {extra[:3]}, duplicated {dup[:3]}"
+                      if not ok else "")
 
 
 def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec: int,
                        required: tuple = REQUIRED_HYPOTHESES) -> None:
-    present = {h["name"]: h for h in cert.hypotheses}
-    for name in required:
-        h = present.get(name)
-        if not report.add(f"hypothesis {name} listed", h is not None,
-                          f"{name} is missing: the result is conditional on it"):
+    from .build import certificate_caution, certificate_references, hypothesis_statements
+
+    rh = required[0]
+    names = [h["name"] for h in cert.hypotheses]
+    report.add(f"hypotheses: exactly {rh} and LI, once each, in this order",
+               names == list(required),
+               "; ".join(f"{n} is missing" for n in required if n not in names)
+               + f" (stored {names}: this race rests on {rh} and LI, nothing else, "
+               "nothing proven)")
+    expected = hypothesis_statements(cert.spectrum, rh)
+    for h in cert.hypotheses:
+        if h["name"] not in expected:
             continue
-        report.add(f"hypothesis {name} stated as assumed", h["status"] == "assumed",
-                   f"status {h['status']!r}: certify does not prove {name}")
-    report.add("caution: conditional result stated",
-               "does not prove" in cert.caution, "the caution sentence is missing")
-    grh, li = present.get(required[0]), present.get("LI")
-    if grh is None or li is None:
+        report.add(f"hypothesis {h['name']}: status assumed, statement and reference as the "
+                   "setting gives them",
+                   h["status"] == "assumed" and h["statement"] == expected[h["name"]]
+                   and h["reference"] == "",
+                   f"status {h['status']!r}; certify does not prove {h['name']}, and the statement "
+                   "must be the one the L-functions give")
+    report.add("caution: the fixed text", cert.caution == certificate_caution(rh),
+               "the caution differs from the fixed conditional-result text")
+    report.add("references: the fixed list", list(cert.references) == certificate_references(),
+               "the references differ from the fixed list")
+    if names != list(required):
         return
-    ev_grh = [e for e in grh["evidence"]]
-    ev_li = [e for e in li["evidence"]]
+    grh, li = cert.hypotheses
+    for h in (grh, li):
+        bad = [i for i, e in enumerate(h["evidence"]) if e["text"] != _text(e, rh)]
+        report.add(f"{h['name']} evidence: every sentence regenerated from its data", not bad,
+                   f"item(s) {bad[:5]} carry text that their data do not give")
+    keys_grh, keys_li = [], []
+    for g, sg, zs, R in group_data:
+        ks = [f"{lf['conductor']}.{lf['label']}" for lf in sg["l_functions"]]
+        keys_grh += [("zeros-on-critical-line", k) for k in ks] + [("zero-count", k) for k in ks]
+        keys_grh.append(("moment-completeness", g.label))
+        keys_li += [("central-value", k) for k in ks] + [("simple-zeros", g.label)]
+    keys_grh.append(("published-verification", ""))
+    total = sum(len(zs) for _, _, zs, _ in group_data)
+    if total >= 2:
+        keys_li.append(("integer-relation-search", ""))
+    if not (_expect_items(report, rh, grh["evidence"], keys_grh)
+            & _expect_items(report, "LI", li["evidence"], keys_li)):
+        return
+    ev_grh = list(grh["evidence"])
+    ev_li = list(li["evidence"])
+    for e in ev_grh:
+        if e["kind"] == "published-verification":
+            report.add("GRH evidence: published verifications (cited, no data)",
+                       thaw(e["data"]) == {}, "unexpected data")
     for g, sg, zs, R in group_data:
         cons = moment_consequences(list(R), list(zs), prec=max(prec, 128))
         for li_idx, lf in enumerate(sg["l_functions"]):
             key = f"{lf['conductor']}.{lf['label']}"
             count = sum(1 for z in sg["zeros"] if z["l"] == li_idx)
-            e = next((e for e in ev_grh if e["kind"] == "zeros-on-critical-line"
-                      and e.get("l_function") == key), None)
-            report.add("RH evidence for zeta(s)" if lf["conductor"] == 1
-                       else f"GRH evidence for L(s, chi_{{{key}}})",
-                       e is not None and e["data"]["zeros"] == count
-                       and e["data"]["isolation_height"] == sg["isolation_height"],
-                       "missing, or the zero count / height differ from the stored spectrum")
+            e = next(e for e in ev_grh if e["kind"] == "zeros-on-critical-line"
+                     and e.get("l_function") == key)
+            report.add(f"{rh} evidence for {_lname(lf)}: zeros on the line",
+                       thaw(e["data"]) == {"conductor": lf["conductor"], "label": lf["label"],
+                                           "zeros": count,
+                                           "isolation_height": sg["isolation_height"]},
+                       "the zero count / height differ from the stored spectrum")
             _verify_zero_count(report, ev_grh, key, lf,
-                               [z for z in sg["zeros"] if z["l"] == li_idx])
+                               [z for z in sg["zeros"] if z["l"] == li_idx],
+                               sg["isolation_height"])
             cv = central_value(lf["conductor"], lf["label"])
-            e = next((e for e in ev_li if e["kind"] == "central-value"
-                      and e.get("l_function") == key), None)
-            ok = e is not None and not cv.contains(0) \
-                and _overlap(ball_of(e["data"]["re"]), cv.real) and _overlap(ball_of(e["data"]["im"]), cv.imag)
-            report.add("LI evidence: zeta(1/2) != 0" if lf["conductor"] == 1
-                       else f"LI evidence: L(1/2, chi_{{{key}}}) != 0", ok,
-                       "missing, or the recomputed enclosure disagrees / contains 0")
-        e = next((e for e in ev_grh if e["kind"] == "moment-completeness"
-                  and e.get("group") == g.label), None)
-        report.add(f"{required[0]} evidence for {g.label}: completeness height",
-                   e is not None and Fraction(e["data"]["complete_below"]) <= cons["complete_below"],
-                   f"stored {e and e['data']['complete_below']}, recomputed "
-                   f"{float(cons['complete_below']):.6g}")
-        e = next((e for e in ev_li if e["kind"] == "simple-zeros" and e.get("group") == g.label), None)
+            e = next(e for e in ev_li if e["kind"] == "central-value"
+                     and e.get("l_function") == key)
+            ok = (set(e["data"]) == {"re", "im"} and not cv.contains(0)
+                  and _overlap(ball_of(e["data"]["re"]), cv.real)
+                  and _overlap(ball_of(e["data"]["im"]), cv.imag)
+                  and thaw(e["data"]) == thaw(lf["central_value"]))
+            report.add(f"LI evidence: {_cname(lf)} != 0", ok,
+                       "the recomputed enclosure disagrees / contains 0")
+        e = next(e for e in ev_grh if e["kind"] == "moment-completeness"
+                 and e.get("group") == g.label)
+        report.add(f"{rh} evidence for {g.label}: completeness height",
+                   set(e["data"]) == {"complete_below", "moment_index"}
+                   and Fraction(e["data"]["complete_below"]) <= cons["complete_below"]
+                   and e["data"]["moment_index"] == cons["moment_index"],
+                   f"stored {thaw(e['data'])}, recomputed "
+                   f"{float(cons['complete_below']):.6g} (R_{cons['moment_index']})")
+        e = next(e for e in ev_li if e["kind"] == "simple-zeros" and e.get("group") == g.label)
         report.add(f"LI evidence for {g.label}: simple zeros",
-                   e is not None and e["data"]["proven_simple"] <= cons["simple"]
+                   set(e["data"]) == {"isolated", "proven_simple"}
+                   and 0 <= e["data"]["proven_simple"] <= cons["simple"]
                    and e["data"]["isolated"] == len(zs),
-                   f"stored {e and e['data']}, recomputed {cons['simple']} of {len(zs)}")
+                   f"stored {thaw(e['data'])}, recomputed {cons['simple']} of {len(zs)}")
     e = next((e for e in ev_li if e["kind"] == "integer-relation-search"), None)
     if e is None:
-        report.add("LI evidence: integer-relation search", False, "missing")
         return
     d = e["data"]
     keys = sorted({o["l_function"] for o in d["ordinates"]})
@@ -406,12 +516,17 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                  for o in d["ordinates"])
     report.add("LI evidence: relation-search ordinates lie in verified zeros", inside,
                "an ordinate of the search is not inside a stored zero")
+    if int(d["scale_bits"]) > 4096 or len(d["ordinates"]) > 64:
+        report.add("LI evidence: integer-relation search size", False,
+                   "the stored search asks for more than 64 ordinates or 4096 bits")
+        return
     balls = _check_zero_list(report, "relation-search ordinates", entries,
                              [tuple(map(int, k.split("."))) for k in keys], None)
     if balls is None:
         return
     rs = relation_search(balls, int(d["scale_bits"]))
-    ok = (rs["size"] == d["size"] and Fraction(d["norm_lower_bound"]) <= rs["norm_lower_bound"]
+    ok = (rs["size"] == d["size"] == len(d["ordinates"])
+          and Fraction(d["norm_lower_bound"]) <= rs["norm_lower_bound"]
           and int(d["coefficient_bound"]) <= rs["coefficient_bound"]
           and (d["candidate"] is None) == (rs["candidate"] is None))
     if ok and d["linear_form_lower_bound"] is not None:
@@ -420,3 +535,55 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
     report.add("LI evidence: integer-relation search (LLL) recomputed", ok,
                f"stored norm bound {d['norm_lower_bound']}, recomputed "
                f"{float(rs['norm_lower_bound']):.6g}")
+
+
+def _lname(lf) -> str:
+    from .build import l_name
+
+    return l_name(int(lf["conductor"]), int(lf["label"]))
+
+
+def _cname(lf) -> str:
+    from .build import central_name
+
+    return central_name(int(lf["conductor"]), int(lf["label"]))
+
+
+def _text(e, rh: str = "GRH") -> str:
+    from .build import evidence_text
+
+    try:
+        return evidence_text(e, rh)
+    except (KeyError, TypeError, ValueError, ZeroDivisionError):
+        return "\x00(no text: the data are malformed)"
+
+
+def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros, height: str) -> None:
+    """GRH to the isolation height: the argument-principle count at that height must equal
+    the number of stored zeros below it (no zero missing, on or off the line)."""
+    from .zerocount import count_zeros
+
+    e = next(e for e in ev_grh if e["kind"] == "zero-count" and e.get("l_function") == key)
+    name = (f"{'RH' if lf['conductor'] == 1 else 'GRH'} evidence for {_lname(lf)}: "
+            "argument-principle count, no zero missing below the isolation height")
+    d = thaw(e["data"])
+    T = Fraction(height)
+    found = sum(1 for z in zeros if exact_ends(ball_of(z))[1] < T)
+    N = None
+    for p in (64, 128, 256):
+        try:
+            N, _ = count_zeros(int(lf["conductor"]), int(lf["label"]),
+                               primitive_character(int(lf["conductor"]), int(lf["label"])).parity,
+                               T, prec=p)
+            break
+        except PrecisionExhausted:
+            continue
+    if N is None:
+        report.add(name, False, f"the argument-principle count at {float(T):.6g} could not be "
+                   "established")
+        return
+    expected = {"established": True, "height": height, "count": N, "sign_changes": found,
+                "verified": N == found}
+    report.add(name, d == expected and N == found,
+               f"stored {d}; the argument principle counts {N} zeros below {float(T):.6g}, "
+               f"{found} are stored" + (" (zeros are missing from the list)" if N != found else ""))

@@ -110,11 +110,19 @@ def run_certificate(args) -> int:
 
 
 def run_render(args) -> int:
+    from ..certificate.dispatch import verify_any
     from ..certificate.model import read_certificate
     from ..render.files import parse_formats, write_files
 
     check_outputs(args)
     cert = read_certificate(args.file)
+    # a document shows only what verify re-derives: render nothing that does not verify
+    rep = verify_any(cert)
+    if not rep.ok:
+        for c in rep.failures[:5]:
+            print(f"  FAIL {c.name}: {c.detail}", file=sys.stderr)
+        print(f"certify: error: {args.file} does not verify; nothing rendered", file=sys.stderr)
+        return EXIT_MISMATCH
     out = args.out or os.path.dirname(os.path.abspath(args.file))
     check_out_dir(out)
     base = args.name or os.path.splitext(os.path.basename(args.file))[0]
@@ -127,21 +135,29 @@ def run_render(args) -> int:
 # -- verify ---------------------------------------------------------------------
 
 def run_verify(args) -> int:
-    from ..certificate.model import read_certificate
-    from ..certificate.verify import verify_certificate
+    from ..certificate.dispatch import report_dict, verify_paths
 
     check_outputs(args)
-    Limits.of(args).require("files", len(args.files), "verify")
-    status = 0
-    out = []
+    outcomes = []
     shown = args.json != "-"
     with progress(len(args.files), "verify", progress_enabled(args), "files") as bar:
         for path in args.files:
-            rep = verify_certificate(read_certificate(path))
+            outcomes.extend(verify_paths([path]))
             bar.update(1)
-            status = _verify_one(path, rep, args, out, shown) or status
+    Limits.of(args).require("files", len(outcomes), "verify")
+    status = 0
+    unreadable = False
+    out = []
+    for o in outcomes:
+        if o.error:
+            unreadable = True
+            print(f"certify: error: {o.error}", file=sys.stderr)
+            continue
+        status = _verify_one(o.path, o.report, args, out, shown) or status
     if args.json:
-        write_json(out, args.json)
+        write_json(report_dict(outcomes), args.json)
+    if unreadable:
+        return BadInput.exit_code
     if shown and status == 0:
         print("The stored enclosures follow from the stored data (conditional on the listed "
               "hypotheses, which certify does not prove).")

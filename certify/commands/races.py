@@ -66,9 +66,18 @@ def screen(result) -> str:
     return "\n".join(lines)
 
 
-def emit(result, args) -> int:
+def _certify(question, d, args, command_line):
+    """The race result; with --json also its certificate (the one shape every command writes)."""
+    if not args.json:
+        return certify_race(question, d, command_line=command_line), None
+    from ..certificate.build import certify_with_certificate
+
+    return certify_with_certificate(question, d, command_line=command_line)
+
+
+def emit(result, args, cert=None) -> int:
     if args.json:
-        write_json(result.to_dict(), args.json)
+        write_json(cert.to_dict() if cert is not None else result.to_dict(), args.json)
     if args.json != "-":
         print(screen(result))
     return 0 if result.target_met else 5
@@ -82,18 +91,18 @@ def run_race(args) -> int:
     q = _int(args.modulus, "modulus")
     question = two_way(q, _int(args.a, "class a"), _int(args.b, "class b"))
     d = _prepare(args, question)
-    result = certify_race(question, d, command_line=_cmdline(
+    result, cert = _certify(question, d, args, _cmdline(
         ["race", str(q), args.a, args.b, "--digits", str(d)]))
-    return emit(result, args)
+    return emit(result, args, cert)
 
 
 def run_residues(args) -> int:
     q = _int(args.modulus, "modulus")
     question = residue_race(q)
     d = _prepare(args, question)
-    result = certify_race(question, d, command_line=_cmdline(
+    result, cert = _certify(question, d, args, _cmdline(
         ["residues", str(q), "--digits", str(d)]))
-    return emit(result, args)
+    return emit(result, args, cert)
 
 
 def parse_weights(items: list[str]) -> dict:
@@ -105,9 +114,9 @@ def run_weighted(args) -> int:
     q = _int(args.modulus, "modulus")
     question = weighted(q, parse_weights(args.weights))
     d = _prepare(args, question)
-    result = certify_race(question, d, command_line=_cmdline(
+    result, cert = _certify(question, d, args, _cmdline(
         ["weighted", str(q), *args.weights, "--digits", str(d)]))
-    return emit(result, args)
+    return emit(result, args, cert)
 
 
 def register(sub) -> None:

@@ -113,10 +113,14 @@ def run_curve(args) -> int:
     E = make_curve(args.q, args.A, args.B)
     L = l_polynomial(E, confirm=confirm)
     R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=max_boxes)
-    d = R.to_dict()
-    d["parameters"]["command"] = "certify " + " ".join(shlex.quote(a) for a in getattr(args, "_argv", []) or [])
     if args.json:
-        _write(json.dumps(d, indent=2, default=str), args.json)
+        # --json writes the certificate: the one shape of every certify document
+        from fractions import Fraction
+
+        from ..certificate.curves import curve_certificate
+
+        cert = curve_certificate(R, Fraction(repr(width)), confirm, max_boxes)
+        _write(cert.to_json().rstrip("\n"), args.json)
     if args.json != "-":
         print(curve_screen(R))
     return 0

@@ -98,9 +98,16 @@ def run_race(args) -> int:
         qn, G, wd = residue_race(args.q, args.modulus, args.mode)
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
-    res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
     if args.json:
-        _emit_json(res.to_dict(), args.json)
+        # --json writes the certificate: the one shape of every certify document
+        from fractions import Fraction
+
+        from ..certificate.ffield import certify_ffield
+
+        res, cert = certify_ffield(qn, G, wd, Fraction(repr(width)), leader_bound=leaders)
+        write_json(cert.to_dict(), args.json)
+    else:
+        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
     if args.json != "-":
         print(screen(res))
     return 0 if res.target_met else 5
@@ -140,7 +147,10 @@ def run_lpoly(args) -> int:
         lines.append(f"  {chi.describe()}: L = [{', '.join(L.coefficient_strings())}] "
                      f"(zeta = exp(2 pi i/{chi.order})); {rep.describe()}")
     if args.json:
-        _emit_json({"group": G.describe(), "field": F.describe(), "characters": out}, args.json)
+        from ..certificate.model import envelope
+
+        _emit_json(envelope("l-polynomials", {"group": G.describe(), "field": F.describe(),
+                                              "characters": out}), args.json)
     if args.json != "-":
         print("\n".join(lines))
     return 0 if all(o["weil_ok"] for o in out) else 4

@@ -1,4 +1,10 @@
-"""The context dict every renderer reads: display strings built from a certificate only."""
+"""The context dict every renderer reads: display strings built from a certificate only.
+
+Renderers show only what ``certify verify`` re-derives: sentences (question,
+hypotheses, evidence, caution, command line) are regenerated here from the stored
+data by the functions verify compares against, numbers derived from the enclosure
+are recomputed from its ends, and parameters are limited to those verify checks.
+"""
 
 from __future__ import annotations
 
@@ -54,8 +60,90 @@ def _digits_text(a: dict) -> str:
     return d if "." in d and d.split(".", 1)[1] else "(none)"
 
 
+def _gaps_from_ends(lo: Fraction, hi: Fraction) -> list[dict]:
+    out = []
+    if lo > Fraction(99, 100):
+        out.append({"what": "1 - delta", "lower": sci(1 - hi, 4, up=False), "upper": sci(1 - lo, 4, up=True)})
+    if hi < Fraction(1, 100):
+        out.append({"what": "delta", "lower": sci(lo, 4, up=False), "upper": sci(hi, 4, up=True)})
+    if abs((lo + hi) / 2 - Fraction(1, 2)) < Fraction(1, 100) and hi > lo:
+        out.append({"what": "delta - 1/2", "lower": sci(lo - Fraction(1, 2), 4, up=False),
+                    "upper": sci(hi - Fraction(1, 2), 4, up=True)})
+    return out
+
+
+def _spectrum_lines(cert: Certificate) -> list[str]:
+    sp = cert.spectrum
+    if cert.kind == "ffield-race":
+        lines = [f"L(u, {L['character']}) (order {L['order']}, {L['parity']}, conductor "
+                 f"{L['conductor']}): coefficients [{', '.join(L['coefficients'])}]; "
+                 f"{L['weil_check']}" for L in sp["l_polynomials"]]
+        lines.append("relations among (pi, theta_1, ...), confirmed exactly: "
+                     + ("; ".join(str(list(r)) for r in sp["relations"]) or "none"))
+        lines.append(f"orbit closure: {sp['orbit_closure']}")
+        return lines
+    if cert.kind == "curve-race":
+        L, E = sp["l_polynomial"], sp["curve"]
+        return [f"curve: y^2 = x^3 + ({E['A']})*x + ({E['B']}) over {E['field']}; conductor "
+                f"degree {E['conductor_degree']}",
+                "bad places: " + ", ".join(f"{b['place']} ({b['kodaira']}, {b['reduction']})"
+                                           for b in E["bad_places"]),
+                f"L(E, u) = {L['text']} (degree {L['degree']}, sign {L['sign']:+d}, analytic rank "
+                f"{L['analytic_rank']}), from point counts of degree <= "
+                f"{L['degrees_from_point_counts']}, confirmed by degrees {list(L['degrees_confirmed'])}"]
+    return []
+
+
+def recount_context(cert: Certificate, file_name: str) -> dict:
+    """The context of a certificate verified by a recount (F_q[t] races, curve races): every
+    field shown was compared by ``verify`` with its re-derived value."""
+    q, a = cert.question, cert.answer
+    lo, hi = cert.lower, cert.upper
+    if cert.kind == "ffield-race":
+        ws = ", ".join(f"{c}: {w}" for c, w in zip(q["classes"], q["weights"]))
+        setting = (f"Race in F_{q['q']}[t] modulo {q['modulus']} ({q['mode']}); weights {ws}")
+    else:
+        setting = f"Trace race of an elliptic curve over F_{q['q']}(t) ({q['mode']})"
+    hyps = [{"name": h["name"], "statement": h["statement"], "status": h["status"],
+             "status_text": STATUS_TEXT.get(h["status"], h["status"]),
+             "evidence": [e["text"] for e in h["evidence"]], "reference": h["reference"]}
+            for h in cert.hypotheses]
+    assumed = [h["name"] for h in cert.hypotheses if h["status"] == "assumed"]
+    budget = [dict(e) for e in cert.error_budget]
+    total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
+    params = [(k, v) for k, v in cert.parameters.items()
+              if isinstance(v, (str, int, float, bool)) or v is None]
+    exact = a.get("exact")
+    return {
+        "label": cert.label,
+        "question": {"kind": cert.kind, "modulus": "", "statement": q["statement"],
+                     "setting_line": setting, "weights": "", "definition": q["definition"],
+                     "normalisation": q.get("normalisation", "")},
+        "answer": {"lower": a["enclosure"]["lower"], "upper": a["enclosure"]["upper"],
+                   "width": a["width"], "digits": a["certified_digits"] or "(none)",
+                   "target": a["target_width"], "target_met": a["target_met"], "mean": "",
+                   "variance": "", "exact": exact or ""},
+        "gaps": _gaps_from_ends(lo, hi),
+        "hypotheses": hyps,
+        "hypothesis_names": " and ".join(assumed) if assumed else "no unproven hypothesis",
+        "budget": budget,
+        "budget_total": sci(total, 3, up=True),
+        "groups": [],
+        "spectrum_lines": _spectrum_lines(cert),
+        "parameters": params,
+        "provenance": {"command_line": cert.provenance["command_line"],
+                       "input_digest": cert.provenance["input_digest"]},
+        "verify_command": f"certify verify {file_name}",
+        "references": list(cert.references),
+        "caution": cert.caution,
+        "schema_version": cert.schema_version,
+    }
+
+
 def certificate_context(cert: Certificate, file_name: str = "certificate.json") -> dict:
     """Everything the templates show, as strings and lists (no computation in templates)."""
+    if cert.kind != "dirichlet-race":
+        return recount_context(cert, file_name)
     a = cert.answer
     q = cert.question
     groups = []
@@ -68,29 +156,45 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
             "height": decimal_down(Fraction(g["isolation_height"]), 4), "moments": g["moments"]["count"],
             "scale": _short_ball(g["scale"], 10), "first_zeros": ", ".join(first),
         })
+    from ..certificate.build import (answer_fields, certificate_caution, certificate_references,
+                                     evidence_text, hypothesis_statements, question_record,
+                                     reproduce_command)
+    from ..certificate.verify import SHOWN_PARAMETERS, question_from_record
+    from ..race.question import riemann_hypothesis_name
+
+    # every sentence is regenerated from the stored data (as verify does), never copied
+    question = question_from_record(q)
+    digits = int(cert.parameters["digits_requested"])
+    rh = riemann_hypothesis_name(question)
+    qrec = question_record(question)
+    canonical = hypothesis_statements(cert.spectrum, rh)
     hyps = []
     for h in cert.hypotheses:
-        hyps.append({"name": h["name"], "statement": h["statement"], "status": h["status"],
-                     "status_text": STATUS_TEXT.get(h["status"], h["status"]),
-                     "evidence": [e["text"] for e in h["evidence"]],
-                     "reference": h.get("reference", "")})
+        hyps.append({"name": h["name"], "statement": canonical.get(h["name"], h["statement"]),
+                     "status": "assumed", "status_text": STATUS_TEXT["assumed"],
+                     "evidence": [evidence_text(e, rh) for e in h["evidence"]],
+                     "reference": ""})
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = (", ".join(f"w_{w['class']} = {w['weight']}" for w in q["weights"])
+    weights = (", ".join(f"w_{a} = {w}" for a, w in question.weights)
                or "none (pi(x) against li(x): zeta alone)")
-    prov = cert.provenance
+    derived = answer_fields(cert.lower, cert.upper, digits)
+    a = {**a, **derived}
     params = [(k, v if not isinstance(v, (list, tuple)) else ", ".join(map(str, v)))
-              for k, v in cert.parameters.items()]
+              for k, v in cert.parameters.items() if k in SHOWN_PARAMETERS]
     return {
-        "label": cert.label,
-        "question": {"kind": q["kind"], "modulus": q["modulus"], "statement": q["statement"],
-                     "weights": weights, "definition": q["definition"],
-                     "normalisation": q["normalisation"]},
+        "label": question.label,
+        "spectrum_lines": [],
+        "question": {"kind": question.kind, "modulus": question.modulus,
+                     "setting_line": f"Race: {question.kind} modulo {question.modulus}; "
+                                     f"weights {weights}",
+                     "statement": question.statement, "weights": weights,
+                     "definition": qrec["definition"], "normalisation": qrec["normalisation"]},
         "answer": {"lower": a["enclosure"]["lower"], "upper": a["enclosure"]["upper"],
                    "width": a["width"], "digits": _digits_text(a),
                    "target": a["target_width"], "target_met": a["target_met"],
-                   "mean": a["mean"], "variance": _short_ball(a["variance"], 15)},
+                   "mean": a["mean"], "variance": _short_ball(a["variance"], 15), "exact": ""},
         "gaps": tiny_gaps(cert),
         "hypotheses": hyps,
         "hypothesis_names": " and ".join(h["name"] for h in cert.hypotheses),
@@ -98,12 +202,11 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
         "budget_total": sci(total, 3, up=True),
         "groups": groups,
         "parameters": params,
-        "provenance": {"certify": prov["certify"], "python_flint": prov["python_flint"],
-                       "python": prov["python"], "platform": prov["platform"],
-                       "command_line": prov["command_line"], "date": prov["date"],
-                       "input_digest": prov["input_digest"]},
+        # only what verify re-derives: the command from the question, the digest it checks
+        "provenance": {"command_line": reproduce_command(question, digits),
+                       "input_digest": cert.provenance["input_digest"]},
         "verify_command": f"certify verify {file_name}",
-        "references": list(cert.references),
-        "caution": cert.caution,
+        "references": certificate_references(),
+        "caution": certificate_caution(rh),
         "schema_version": cert.schema_version,
     }

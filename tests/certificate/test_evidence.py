@@ -83,8 +83,9 @@ def test_zero_count_evidence_flags_a_missing_zero():
     zl = find_zeros(4, 3, 30.0, 1e-10)
     recs = [{"l": 0, **ball_record(z)} for z in zl.zeros]
     lf = {"conductor": 4, "label": 3, "parity": 1}
-    ok = _zero_count_evidence(lf, recs)
-    assert ok["data"]["verified"] and ok["data"]["count"] == len(recs) - 1
-    bad = _zero_count_evidence(lf, recs[:3] + recs[4:])
+    # GRH to the isolation height 30: the count there equals the zeros stored below it
+    ok = _zero_count_evidence(lf, recs, "30")
+    assert ok["data"]["verified"] and ok["data"]["count"] == len(recs)
+    bad = _zero_count_evidence(lf, recs[:3] + recs[4:], "30")
     assert bad["data"]["established"] and not bad["data"]["verified"]
     assert "NOT verified" in bad["text"]

@@ -10,10 +10,13 @@ from certify.cli import main
 def test_curve_json_to_stdout(capsys):
     assert main(["curve", "5", "t", "t^2 + 1", "--json", "-"]) == 0
     out = json.loads(capsys.readouterr().out)
-    assert out["density"]["lower"] == "0.666666666666" and out["density"]["upper"] == "0.666666666667"
-    assert out["density"]["exact"] == "2/3"
+    enc = out["answer"]["enclosure"]
+    from fractions import Fraction
+    lo, hi = Fraction(enc["lower"]), Fraction(enc["upper"])
+    assert lo <= Fraction(2, 3) <= hi and hi - lo <= Fraction(1, 10**29)
+    assert out["answer"]["exact"] == "2/3"
     assert {"hypotheses", "error_budget", "parameters"} <= set(out)
-    assert out["l_polynomial"]["coefficients"] == [1, 5, 25]
+    assert out["spectrum"]["l_polynomial"]["coefficients"] == [1, 5, 25]
     assert any(h["name"] == "LI" for h in out["hypotheses"])
 
 
@@ -26,7 +29,9 @@ def test_curve_screen_and_file(tmp_path, capsys):
     assumed = [h["name"] for h in d["hypotheses"] if h["status"] == "assumed"]
     assert "analytic rank 1" in text
     assert ("does not prove" in text) if assumed else ("Unconditional result" in text)
-    assert d["analytic_rank"] == 1 and float(d["density"]["lower"]) <= float(d["density"]["upper"])
+    assert d["kind"] == "curve-race" and main(["verify", str(path)]) == 0
+    enc = d["answer"]["enclosure"]
+    assert d["spectrum"]["l_polynomial"]["analytic_rank"] == 1 and float(enc["lower"]) <= float(enc["upper"])
 
 
 def test_twists_outputs(tmp_path, capsys):

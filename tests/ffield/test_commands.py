@@ -16,7 +16,8 @@ def test_ffrace_json_and_screen(tmp_path, capsys):
     text = capsys.readouterr().out
     assert "enclosure" in text and "hypotheses" in text and "Conditional" in text
     d = json.loads(out.read_text())
-    lo, hi = Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"])
+    assert d["kind"] == "ffield-race" and main(["verify", str(out)]) == 0
+    lo, hi = Fraction(d["answer"]["enclosure"]["lower"]), Fraction(d["answer"]["enclosure"]["upper"])
     assert 0 < hi - lo <= Fraction(1, 10**9) * 2
     # independent value: frequency of the exact cumulative sign over X <= 1000 (tolerance 0.02)
     from certify.ffield.race import empirical_frequency, exact_race_values, parse_race
@@ -27,15 +28,15 @@ def test_ffrace_json_and_screen(tmp_path, capsys):
     assert "Weil" in names and "relations" in names
     assert all({"name", "statement", "status", "evidence"} <= set(h) for h in d["hypotheses"])
     assert all({"name", "bound"} <= set(e) for e in d["error_budget"])
-    assert d["parameters"]["q"] == 3 and d["l_polynomials"]
-    assert d["limit_function"]["relations"]
+    assert d["parameters"]["q"] == 3 and d["spectrum"]["l_polynomials"]
+    assert d["spectrum"]["relations"]
 
 
 def test_ffrace_json_stdout(capsys):
     rc = main(["ffrace", "9", "t^2+t", "z", "1", "--digits", "6", "--leaders", "0", "--json", "-"])
     assert rc == 0
     d = json.loads(capsys.readouterr().out)
-    assert Fraction(d["density"]["lower"]) <= Fraction(d["density"]["upper"])
+    assert Fraction(d["answer"]["enclosure"]["lower"]) <= Fraction(d["answer"]["enclosure"]["upper"])
 
 
 def test_fflpoly(capsys):

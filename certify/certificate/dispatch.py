@@ -1,0 +1,145 @@
+"""One entry point for every kind of certificate: read, verify, expand tables and folders.
+
+``verify_paths`` takes files, folders and table index files:
+
+* a certificate file (any kind) is verified by its kind's verifier;
+* a folder is every certify JSON file in it (certificates, and tables whose
+  rows are checked against the certificates they name);
+* a table index (``kind: "table"``) names one certificate file per row, relative
+  to the index; each is verified, and the row's shown enclosure must be the
+  certificate's.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass
+
+from ..errors import BadInput, CertifyError
+from .model import CERTIFICATE_KINDS, Certificate, read_document, thaw
+from .verify import VerifyReport
+
+MAX_FILES = 100000
+
+
+def verify_any(cert: Certificate) -> VerifyReport:
+    """Re-check a certificate of any kind from what it stores (see each kind's module)."""
+    if cert.kind == "dirichlet-race":
+        from .verify import verify_certificate
+
+        return verify_certificate(cert)
+    if cert.kind == "ffield-race":
+        from .ffield import verify_ffield
+
+        return verify_ffield(cert)
+    if cert.kind == "curve-race":
+        from .curves import verify_curve
+
+        return verify_curve(cert)
+    raise BadInput(f"no verifier for kind {cert.kind!r}")
+
+
+@dataclass
+class Outcome:
+    """The verification of one file (a certificate, or a table's row)."""
+
+    path: str
+    report: VerifyReport
+    error: str = ""  # set when the file could not be read as a certify document
+
+
+def _refused(path: str, exc: Exception) -> Outcome:
+    rep = VerifyReport(os.path.basename(path))
+    rep.add("readable certify document", False, str(exc))
+    return Outcome(path, rep, str(exc))
+
+
+def _verify_file(path: str, seen: set) -> list:
+    real = os.path.realpath(path)
+    if real in seen:
+        return []
+    seen.add(real)
+    try:
+        data = read_document(path)
+        if data["kind"] in CERTIFICATE_KINDS:
+            return [Outcome(path, verify_any(Certificate.from_dict(data, path)))]
+        if data["kind"] == "table":
+            return _verify_table(path, data, seen)
+        raise BadInput(f"{path}: a {data['kind']!r} document has nothing to verify")
+    except CertifyError as exc:
+        return [_refused(path, exc)]
+
+
+def _verify_table(path: str, data: dict, seen: set) -> list:
+    """Every row's certificate verified, and the row's numbers compared with it."""
+    base = os.path.dirname(os.path.abspath(path))
+    rep = VerifyReport(f"table {data.get('title', '')}".strip())
+    out = [Outcome(path, rep)]
+    rows = data["rows"]
+    rep.add("table: at least one row", bool(rows), "the table has no rows")
+    for i, row in enumerate(rows):
+        name = row.get("certificate")
+        if not isinstance(name, str) or not name or os.path.isabs(name) or ".." in name.split("/"):
+            rep.add(f"row {i + 1}: names a certificate file inside the table's folder", False,
+                    f"certificate {str(name)[:80]!r}")
+            continue
+        cpath = os.path.join(base, name)
+        try:
+            cert = Certificate.from_dict(read_document(cpath), cpath)
+        except CertifyError as exc:
+            rep.add(f"row {i + 1}: certificate {name} readable", False, str(exc))
+            continue
+        shown = {k: row.get(k) for k in ("label", "lower", "upper")}
+        stored = {"label": cert.label, "lower": cert.answer["enclosure"]["lower"],
+                  "upper": cert.answer["enclosure"]["upper"]}
+        rep.add(f"row {i + 1}: label and enclosure are those of {name}", shown == stored,
+                f"row shows {shown}, the certificate holds {stored}")
+        real = os.path.realpath(cpath)
+        if real not in seen:
+            seen.add(real)
+            out.append(Outcome(cpath, verify_any(cert)))
+    return out
+
+
+def expand(paths: list) -> list:
+    """Files to verify: the given files, and every ``*.json`` file of a given folder."""
+    files = []
+    for p in paths:
+        if os.path.isdir(p):
+            names = sorted(n for n in os.listdir(p) if n.endswith(".json") and not n.startswith("."))
+            if not names:
+                raise BadInput(f"{p}: no .json file in this folder")
+            files.extend(os.path.join(p, n) for n in names)
+        else:
+            files.append(p)
+        if len(files) > MAX_FILES:
+            raise BadInput(f"more than {MAX_FILES} files to verify")
+    return files
+
+
+def verify_paths(paths: list) -> list:
+    """[Outcome] for every certificate reachable from ``paths`` (tables first, then rows)."""
+    seen: set = set()
+    files = expand(paths)
+    # tables first, so that a folder's certificates are reported under their table once
+    docs = []
+    for f in files:
+        docs.extend(_verify_file(f, seen))
+    return docs
+
+
+def report_dict(outcomes: list) -> dict:
+    """The ``--json`` document of a verify run (kind ``verify-report``)."""
+    from .model import envelope
+
+    return envelope("verify-report", {
+        "ok": all(o.report.ok for o in outcomes) and bool(outcomes),
+        "certificates": [{"file": o.path, "label": o.report.label, "ok": o.report.ok,
+                          "seconds": round(o.report.seconds, 3),
+                          "original_seconds": o.report.original_seconds,
+                          "checks": [{"name": c.name, "ok": c.ok, "detail": c.detail}
+                                     for c in o.report.checks]} for o in outcomes],
+    })
+
+
+__all__ = ["verify_any", "verify_paths", "report_dict", "expand", "Outcome", "thaw"]
