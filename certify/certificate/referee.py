@@ -127,8 +127,27 @@ def _plain(v: Fraction) -> str:
 
 
 def parse_value(text: str) -> tuple[Fraction, Fraction, str, int]:
-    """(lower, upper, meaning, places) of a claimed value; BadInput if malformed."""
+    """(lower, upper, meaning, places) of a claimed value; BadInput if malformed.
+
+    A density lies in [0, 1]: a value (or an interval end) outside it is refused as such.
+    """
     t = text.strip()
+    if len(t) > 120:
+        raise BadInput(f"claimed value of {len(t)} characters: give at most 100 decimal places "
+                       "(certify cannot decide more digits than its precision ceiling)")
+    lo, hi, meaning, places = _parse_value(t)
+    if meaning == "the interval":
+        stated = (lo, hi)
+    elif meaning.startswith("the truncation"):
+        stated = (lo if lo >= 0 else hi,)  # the printed number itself
+    else:
+        stated = ((lo + hi) / 2,)
+    if any(v < 0 or v > 1 for v in stated):
+        raise BadInput(f"claimed value {t!r} lies outside [0, 1]; a density is between 0 and 1")
+    return lo, hi, meaning, places
+
+
+def _parse_value(t: str) -> tuple[Fraction, Fraction, str, int]:
     m = re.fullmatch(r"\[\s*(" + _DEC + r")\s*,\s*(" + _DEC + r")\s*\]", t)
     if m:
         lo, hi = Fraction(m.group(1)), Fraction(m.group(2))

@@ -69,14 +69,25 @@ def _write(payload: dict, path: str) -> None:
 
 
 def run_order(args) -> int:
-    from ..orders import MAX_DIGITS, certify_order, certify_orderings
+    import math
 
+    from ..batch.limits import race_l_functions
+    from ..orders import MAX_DIGITS, certify_order, certify_orderings
+    from .options import Limits, check_json_path
+
+    check_json_path(args.json)
     q = _int(args.modulus, "modulus")
     classes = [_int(a, "class") for a in args.classes]
     question = ordering(q, *classes)
     if len(question.classes) < 3:
         raise BadInput("an ordering race needs at least three classes "
                        "(for two, use `certify race Q A B`)")
+    limits = Limits.of(args)  # sizes bounded before work starts
+    what = f"order modulo {q} with {len(question.classes)} classes"
+    limits.require("conductor", q, what)
+    limits.require("l-functions", race_l_functions(q, "two-way"), what)
+    if args.all:
+        limits.require("races", math.factorial(min(len(question.classes), 30)), what + " (--all)")
     d = _int(args.digits, "--digits")
     if not 1 <= d <= MAX_DIGITS:
         raise BadInput(f"--digits must lie in 1..{MAX_DIGITS} (got {d})")
@@ -114,4 +125,7 @@ def register(sub) -> None:
                    help=f"target: width at most 10^-D (default {DEFAULT_ORDER_DIGITS})")
     p.add_argument("--all", action="store_true", help="every ordering of the classes, with checks")
     p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    from .options import add_limits
+
+    add_limits(p)
     p.set_defaults(func=run_order)
