@@ -569,7 +569,7 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
     unconfirmed = []
     refuted = 0
     roots = [p.root for p in cpts]
-    if cands:
+    if any(any(k[1:]) for k in cands):
         from flint import fmpz_mat as _fm
         rank = _fm([[2] + [0] * J] + [list(k) for k in cands]).rank()
         if J + 1 - rank > max_box_dim:
