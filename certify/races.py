@@ -32,10 +32,10 @@ DEFAULT_DIGITS = 10
 MIN_HEIGHT = 4.0  # lowest isolation height (planning)
 
 REFERENCES = (
-    "M. Rubinstein and P. Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
-    "G. N. Watson, A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge (1944), "
+    "Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
+    "A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge University Press (1944), "
     "sections 13.74 and 15.3.",
-    "F. Johansson, Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
+    "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
     "IEEE Transactions on Computers 66 (2017).",
 )
 
