@@ -74,7 +74,9 @@ def _int(text, what: str) -> int:
 
 def run_lirace(args) -> int:
     from ..lirace import certify_li_race
+    from .options import check_json_path
 
+    check_json_path(args.json)  # before any work: an empty or folder --json is refused at once
     direction = direction_of(args.direction)
     if args.digits is not None and args.sig_digits is not None:
         raise BadInput("give either --sig-digits or --digits, not both")

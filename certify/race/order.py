@@ -35,6 +35,7 @@ class OrderQuestion:
     classes: tuple[int, ...]
 
     kind = "ordering"
+    is_li_race = False  # the hypotheses are GRH (Dirichlet L-functions) and LI
 
     @property
     def label(self) -> str:

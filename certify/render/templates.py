@@ -43,7 +43,7 @@ def _latex_escape(text) -> str:
             "#": r"\#", "$": r"\$", "%": r"\%", "&": r"\&", "~": r"\~{}"}
     s = "".join(repl.get(ch, ch) for ch in s)
     # readable mathematics for the few patterns certify writes
-    s = re.sub(r"chi\\_\\\{(\d+),(\d+)\\\}", r"$\\chi_{\1,\2}$", s)
+    s = re.sub(r"chi\\_\\\{(-?\d+(?:,-?\d+)*)\\\}", r"$\\chi_{\1}$", s)
     s = re.sub(r"\bgamma\\_i\b", r"$\\gamma_i$", s)
     s = re.sub(r"\bk\\_i\b", r"$k_i$", s)
     s = s.replace("<=", r"$\le$").replace(">=", r"$\ge$").replace("!=", r"$\ne$")

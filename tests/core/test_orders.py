@@ -97,11 +97,15 @@ def test_cli_order(tmp_path, capsys):
     import json
 
     data = json.loads(out.read_text())
-    assert data["question"]["label"] == "delta(8;3,5,7)"
-    assert {h["name"] for h in data["hypotheses"]} == {"GRH", "LI"}
+    assert data["kind"] == "order-race" and data["question"]["label"] == "delta(8;3,5,7)"
+    assert [h["name"] for h in data["hypotheses"]] == ["GRH", "LI"]
     assert [e["name"] for e in data["error_budget"]][:2] == ["aliasing", "frequency truncation"]
-    lo, hi = Fraction(data["density"]["lower"]), Fraction(data["density"]["upper"])
+    lo = Fraction(data["answer"]["enclosure"]["lower"])
+    hi = Fraction(data["answer"]["enclosure"]["upper"])
     assert hi - lo <= Fraction(1, 10**4)
+    from certify.certificate.model import read_document
+
+    read_document(str(out))  # validates against the schema
     assert "Conditional result" in capsys.readouterr().out
     for argv in (["order", "8", "3", "3", "5"], ["order", "8", "2", "3", "5"], ["order", "x", "1", "3", "5"],
                  ["order", "8", "3", "5"]):
