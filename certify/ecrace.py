@@ -42,17 +42,17 @@ MAX_RANK_ORDER = 7
 RANK3_THEOREM_MODEL = (0, 0, 1, -7, 6)
 
 REFERENCES = (
-    "M. Rubinstein and P. Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
-    "B. Mazur, Finding meaning in error terms, Bulletin of the AMS 45 (2008) 185-228.",
-    "D. Fiorilli, Elliptic curves of unbounded rank and Chebyshev's bias, IMRN (2013).",
-    "J. Tate, Algorithm for determining the type of a singular fiber in an elliptic pencil, "
+    "Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
+    "Finding meaning in error terms, Bulletin of the AMS 45 (2008) 185-228.",
+    "Elliptic curves of unbounded rank and Chebyshev's bias, IMRN (2013).",
+    "Algorithm for determining the type of a singular fiber in an elliptic pencil, "
     "Lecture Notes in Mathematics 476 (1975).",
-    "D. Rohrlich, Variation of the root number in families of elliptic curves, "
+    "Variation of the root number in families of elliptic curves, "
     "Compositio Mathematica 87 (1993).",
-    "F. Johansson, Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
+    "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
     "IEEE Transactions on Computers 66 (2017).",
 )
-RANK3_REFERENCE = ("J. Buhler, B. Gross and D. Zagier, On the conjecture of Birch and "
+RANK3_REFERENCE = ("On the conjecture of Birch and "
                    "Swinnerton-Dyer for an elliptic curve of rank 3, Math. Comp. 44 (1985).")
 
 

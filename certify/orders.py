@@ -17,17 +17,17 @@ import math
 import platform
 import sys
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from fractions import Fraction
 
 from . import __version__
-from .arith import acb, arb, flint_version, workprec
+from .arith import arb, flint_version, workprec
 from .density.orthant import VectorGroup, VectorVariable, orthant_enclosure, plan_box
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.order import OrderQuestion, chains, mean_vector, order_groups, ordering
 from .race.question import two_way
 from .races import J01, MAX_DIGITS, REFERENCES as RACE_REFERENCES, GroupReport, _model_ordinates
-from .result import CAUTION, Enclosure, Hypothesis
+from .result import CAUTION, Enclosure, Hypothesis, caution_text
 from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 
 DEFAULT_ORDER_DIGITS = 6
@@ -336,7 +336,7 @@ def certify_chain(question: OrderQuestion, digits: int = DEFAULT_ORDER_DIGITS,
                                                for i in range(d))
         out.append(OrderResult(q_, de.enclosure, de.ball, digits, met, mean, cv, de.budget, params,
                                hyps, tuple(reports), {k: round(v, 3) for k, v in timings.items()},
-                               _provenance(command_line)))
+                               _provenance(command_line), caution=caution_text(hyps)))
     return out[0], out[1]
 
 

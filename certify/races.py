@@ -33,10 +33,10 @@ MIN_HEIGHT = 4.0  # lowest isolation height (planning)
 PLAN_HEIGHT_FACTOR = 2.6  # isolation height per unit s xi / j01 assumed when planning xi_max
 
 REFERENCES = (
-    "M. Rubinstein and P. Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
-    "G. N. Watson, A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge (1944), "
+    "Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
+    "A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge University Press (1944), "
     "sections 13.74 and 15.3.",
-    "F. Johansson, Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
+    "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
     "IEEE Transactions on Computers 66 (2017).",
 )
 

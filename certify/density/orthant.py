@@ -133,7 +133,9 @@ class DirectionalTail:
         G = len(var.groups)
         t_lo = np.zeros((len(patches), G))
         self.t_arb = [[None] * G for _ in patches]
-        rad = arb(0, h)
+        # the centres -1 + h(2m+1) are floats (rounded): a radius h (1 + 2^-20) makes the
+        # boxes overlap, so that no direction falls between two of them
+        rad = arb(0, h * (1 + 2.0**-20))
         for p, (face, eta) in enumerate(patches):
             coords = [arb(1) if i == face else arb(eta[i]) + rad for i in range(d)]
             for gi, g in enumerate(var.groups):
@@ -603,16 +605,17 @@ def _tail_float(tail, eps_f: list, Xi: float) -> float:
     X0 = min((K[i] + 1) * eps_f[i] for i in range(d))
     tot = 0.0
     inner = _mass_float(K)
-    for m in range(10):
+    M = 5  # planning: fewer explicit shells than the rigorous bound (which uses 10)
+    for m in range(M):
         s = X0 * 2**m
         lb, _ = tail.log_bound_float(s)
         outer = _mass_float([int(2 * s / e) + 1 for e in eps_f])
         tot += math.exp(lb) * max(outer - inner, 0.0)
         inner = _mass_float([int(2 * s / e) for e in eps_f])
-    lb, J = tail.log_bound_float(X0 * 2**10)
+    lb, J = tail.log_bound_float(X0 * 2**M)
     if J == 0:
         return math.inf
-    A = max(0.5 + 2 / math.pi + math.log(1 + X0 * 2**10 / e) / math.pi for e in eps_f)
+    A = max(0.5 + 2 / math.pi + math.log(1 + X0 * 2**M / e) / math.pi for e in eps_f)
     b = math.log(2) / math.pi
     r = 2 ** (-J / 2) * ((A + 2 * b) / (A + b)) ** d
     if r >= 1:
@@ -666,7 +669,7 @@ def plan_box(var: VectorVariable, tau: float, per_side: int | None = None) -> fl
     """Planning: the box radius Xi the engine would choose for ``var`` (floating point)."""
     d = var.dimension
     if per_side is None:
-        per_side = {1: 1, 2: 32, 3: 10}.get(d, 6)
+        per_side = {1: 1, 2: 16, 3: 8}.get(d, 6)
     with workprec(64):
         half_L, _, _ = periods(var, tau)
         eps_f = [math.pi / float(h) for h in half_L]

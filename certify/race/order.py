@@ -20,7 +20,6 @@ import itertools
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..arith import acb
 from ..errors import BadInput
 from ..source.dirichlet import Character, c_value, characters, check_class, check_modulus
 

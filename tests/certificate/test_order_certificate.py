@@ -91,6 +91,7 @@ def test_cli_order_certificate(tmp_path):
     assert verify_certificate(cert).ok
 
 
+@pytest.mark.slow
 def test_family_document_verifies_and_detects_a_missing_ordering(tmp_path):
     path = tmp_path / "fam.json"
     assert main(["order", "5", "1", "2", "4", "--all", "--digits", "3", "--json", str(path)]) == 0

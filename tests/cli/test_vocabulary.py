@@ -146,3 +146,27 @@ def test_help_lists_the_same_names(capsys):
             main([name, "--help"])
         text = capsys.readouterr().out
         assert "--digits D" in text and "--json [PATH]" in text, name
+
+
+def test_citations_name_no_author():
+    """Sources are cited by title, venue and year (a project convention): no author names."""
+    import pathlib
+    import re
+
+    root = pathlib.Path(__file__).resolve().parents[2]
+    authors = re.compile(r"\b(Rubinstein|Sarnak|Watson|Johansson|Deligne|Papadopoulos|Raynaud|"
+                         r"Odlyzko|Platt|Rumely|Fiorilli|Granville|Feuerverger|Lamzouri|Mazur|"
+                         r"Rohrlich|Buhler|Zagier|Ulmer|Jouve)\b"
+                         r"|(?:\"|^\s*[*-] )(?:[A-Z]\. ?)+[A-Z][a-z]+(?:, | and )")  # "A. Name, Title"
+    hits = []
+    for folder in ("certify", "docs", "templates", "tests"):
+        for p in (root / folder).rglob("*"):
+            if p.suffix in (".py", ".md", ".j2", ".json", ".claims") and p.is_file():
+                if p.name == "test_vocabulary.py":
+                    continue
+                for i, line in enumerate(p.read_text(encoding="utf-8", errors="replace").splitlines(), 1):
+                    if authors.search(line):
+                        hits.append(f"{p.relative_to(root)}:{i}")
+    readme = (root / "README.md").read_text(encoding="utf-8")
+    hits += [f"README.md:{i}" for i, ln in enumerate(readme.splitlines(), 1) if authors.search(ln)]
+    assert not hits, hits[:10]
