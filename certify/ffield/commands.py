@@ -44,8 +44,12 @@ def _check_group(args, what: str) -> None:
 def screen(res) -> str:
     """One screen of text for a function-field race result."""
     d = res.density
-    exact = (ExactValue(d.lower, f"an enclosure of width 0: {res.parameters.get('method')}")
-             if d.width == 0 else None)
+    exact = None
+    if d.width == 0:
+        why = (f"the orbit closure is finite ({res.closure.describe()}): an exact average of "
+               "the limit function's sign over it" if getattr(res.closure, "dim", None) == 0
+               else f"an enclosure of width 0: {res.parameters.get('method')}")
+        exact = ExactValue(d.lower, why)
     lines = [
         headline_text(res.question.label, d, exact, res.target_met, f"{res.target_width:.0e}"),
         f"  {res.question.statement}",
