@@ -14,6 +14,8 @@ its prime field is written ``z`` (see ``certify.ffield.poly``).
 
 from __future__ import annotations
 
+import sys
+
 
 from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
                                 target_width, write_json)
@@ -98,6 +100,10 @@ def run_race(args) -> int:
         qn, G, wd = residue_race(args.q, args.modulus, args.mode)
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
+
+    def say(msg: str) -> None:
+        print(f"ffrace: {msg}", file=sys.stderr, flush=True)
+
     if args.json:
         # --json writes the certificate: the one shape of every certify document
         from fractions import Fraction
@@ -107,7 +113,7 @@ def run_race(args) -> int:
         res, cert = certify_ffield(qn, G, wd, Fraction(repr(width)), leader_bound=leaders)
         write_json(cert.to_dict(), args.json)
     else:
-        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
+        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders, progress=say)
     if args.json != "-":
         print(screen(res))
     return 0 if res.target_met else 5
