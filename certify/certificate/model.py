@@ -34,7 +34,7 @@ SUPPORTED_VERSIONS = (2,)
 CERTIFICATE_KINDS = ("dirichlet-race", "ffield-race", "curve-race")
 #: Kinds of other documents certify writes with ``--json`` (same envelope, same schema).
 REPORT_KINDS = ("verify-report", "referee-report", "table", "l-polynomials", "twist-family",
-                "cache-report")
+                "cache-report", "batch-report", "ec-race-result", "order-result")
 
 #: Limits applied before any work starts (the schema states the same bounds).
 MAX_FILE_BYTES = 64 * 2**20

@@ -98,7 +98,10 @@ def run_lirace(args) -> int:
     result = certify_li_race(direction, sig_digits=sig, digits=digits, store=store,
                              command_line="certify " + " ".join(shlex.quote(a) for a in tail))
     if args.json:
-        text = json.dumps(result.to_dict(), indent=2)
+        # the certificate: the one shape of every certify document (verify re-checks it)
+        from ..certificate.build import certificate_from_result as _cfr
+
+        text = _cfr(result, store).to_json().rstrip("\n")
         if args.json == "-":
             sys.stdout.write(text + "\n")
         else:

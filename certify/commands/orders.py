@@ -59,7 +59,9 @@ def family_screen(fam) -> str:
 
 
 def _write(payload: dict, path: str) -> None:
-    text = json.dumps(payload, indent=2)
+    from ..certificate.model import envelope
+
+    text = json.dumps(envelope("order-result", payload), indent=2, default=str)
     if path == "-":
         sys.stdout.write(text + "\n")
     else:
