@@ -67,8 +67,15 @@ def _one_line_warning(message, category, filename, lineno, line=None):
     return f"certify: warning: {_message(message)}\n"
 
 
+MAX_MESSAGE = 300  # an echoed input (a 100 000-digit number) is shortened, not printed whole
+
+
+def _short(line: str) -> str:
+    return line if len(line) <= MAX_MESSAGE else line[:MAX_MESSAGE - 30] + f"... ({len(line)} characters)"
+
+
 def _message(exc: BaseException) -> str:
-    return " ".join(str(exc).split()) or type(exc).__name__
+    return _short(" ".join(str(exc).split()) or type(exc).__name__)
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -85,8 +92,8 @@ def main(argv: list[str] | None = None) -> int:
             return 2
         return int(args.func(args) or 0)
     except CertifyError as exc:
-        for line in str(exc).splitlines() or [type(exc).__name__]:
-            print(f"certify: error: {line}", file=sys.stderr)
+        for line in str(exc).splitlines()[:50] or [type(exc).__name__]:
+            print(f"certify: error: {_short(line)}", file=sys.stderr)
         return exc.exit_code
     except KeyboardInterrupt:
         print("certify: interrupted", file=sys.stderr)

@@ -17,20 +17,21 @@ import math
 import platform
 import sys
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from fractions import Fraction
 
 from . import __version__
-from .arith import acb, arb, flint_version, workprec
+from .arith import arb, flint_version, workprec
 from .density.orthant import VectorGroup, VectorVariable, orthant_enclosure, plan_box
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.order import OrderQuestion, chains, mean_vector, order_groups, ordering
 from .race.question import two_way
 from .races import J01, MAX_DIGITS, REFERENCES as RACE_REFERENCES, GroupReport, _model_ordinates
-from .result import CAUTION, Enclosure, Hypothesis
+from .result import CAUTION, Enclosure, Hypothesis, caution_text
 from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 
 DEFAULT_ORDER_DIGITS = 6
+MAX_ORDER_DIGITS = 12  # the referee's ceiling for orderings (cost grows like 10^(D(r-1)/2))
 MIN_HEIGHT = 4.0
 
 REFERENCES = RACE_REFERENCES + (
@@ -132,7 +133,9 @@ class OrderPlan:
         height = max(MIN_HEIGHT, self.height_factor * c_max / J01)
         grow = max(2.0, 2 * c_max / J01)
         bits = int(self.digits * 3.33 + 2 * self.moments * math.log2(grow) + 40)
-        return height, self.width, self.moments, bits
+        # rounded up (heights to a multiple of 8, bits of 64) so that the orderings of one
+        # modulus ask the shared store for the same spectra instead of extending it each time
+        return 8 * math.ceil(height / 8), self.width, self.moments, 64 * math.ceil(bits / 64)
 
 
 def _model_variable(question: OrderQuestion, groups, store: SpectrumStore, prec: int) -> VectorVariable:
@@ -145,9 +148,9 @@ def _model_variable(question: OrderQuestion, groups, store: SpectrumStore, prec:
         T1 = sp.power_sums[0] / (2 if g.is_real else 1)
         ws = []
         for (qs, _) in g.primitive_keys:
-            ws.extend(arb(1) / arb(0.25 + t * t).sqrt() for t in _model_ordinates(qs, 400.0))
+            ws.extend(arb(1) / arb(0.25 + t * t).sqrt() for t in _model_ordinates(qs, 150.0))
         m = sum((w * w for w in ws), arb(0))
-        # model zeros up to 400 plus the exact remainder of the first moment
+        # model zeros up to 150 plus the exact remainder of the first moment
         rest = T1 - m
         gs.append(VectorGroup(g.vector, tuple(ws), (rest,) if rest > 0 else (), g.label))
     return VectorVariable(tuple(arb(x.numerator) / x.denominator for x in mu), tuple(gs))
@@ -333,7 +336,7 @@ def certify_chain(question: OrderQuestion, digits: int = DEFAULT_ORDER_DIGITS,
                                                for i in range(d))
         out.append(OrderResult(q_, de.enclosure, de.ball, digits, met, mean, cv, de.budget, params,
                                hyps, tuple(reports), {k: round(v, 3) for k, v in timings.items()},
-                               _provenance(command_line)))
+                               _provenance(command_line), caution=caution_text(hyps)))
     return out[0], out[1]
 
 

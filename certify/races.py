@@ -25,6 +25,7 @@ from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .race.question import RaceQuestion, mean_of, spectral_groups
 from .result import (CAUTION, Enclosure, ExactValue, Hypothesis, caution_text,
                      headline_text)
+from .spectrum.moments import round_height_to_grid
 from .spectrum.spectrum import SpectrumStore, residual_checks, residual_sums
 
 J01 = 2.404825557695773
@@ -33,10 +34,10 @@ DEFAULT_DIGITS = 10
 MIN_HEIGHT = 4.0  # lowest isolation height (planning)
 
 REFERENCES = (
-    "M. Rubinstein and P. Sarnak, Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
-    "G. N. Watson, A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge (1944), "
+    "Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
+    "A Treatise on the Theory of Bessel Functions, 2nd ed., Cambridge University Press (1944), "
     "sections 13.74 and 15.3.",
-    "F. Johansson, Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
+    "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
     "IEEE Transactions on Computers 66 (2017).",
 )
 
@@ -312,6 +313,9 @@ class RacePlan:
         height = self.height_factor * s * self.xi_max / J01
         if height < MIN_HEIGHT and not self.few_zeros:
             height = MIN_HEIGHT
+        # end on a point of the conductor's common search grid, so that every point the
+        # zero search visits can be served by the batched evaluation (prefetch_grid)
+        height = round_height_to_grid(group.primitive_keys[0][0], height)
         # R_k is multiplied by about (s xi / j01)^(2k) in the engine
         grow = max(2.0, 2 * s * self.xi_max / J01)
         bits = int(self.digits * 3.33 + 2 * self.moments * math.log2(grow) + 40)
@@ -337,7 +341,10 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
     moments = min(60, int(math.ceil(digits * math.log2(10) / 2)) + 6)
     with workprec(prec):
         groups = spectral_groups(question)
-        store.prefetch([(c, n, 1, prec) for g in groups for (c, n) in g.primitive_keys[:1]])
+        # the first round's moments (at the smallest growth factor 2 of RacePlan.request), so
+        # that one batched pass usually serves the variance and the first round
+        k_bits = max(prec, int(digits * 3.33 + 2 * moments + 40))
+        store.prefetch([(c, n, moments, k_bits) for g in groups for (c, n) in g.primitive_keys])
         V = arb(0)
         for g in groups:
             c, n = g.primitive_keys[0]
@@ -393,7 +400,10 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         residuals = []
         with workprec(prec):
             groups = spectral_groups(question)
-            store.prefetch([(c, n, k, b) for (c, n, _, _, _, k, b) in plan.spectrum_requests(groups)])
+            reqs = plan.spectrum_requests(groups)
+            store.prefetch([(c, n, k, b) for (c, n, _, _, _, k, b) in reqs])
+            if hasattr(store, "prefetch_grid"):
+                store.prefetch_grid([(c, n, h) for (c, n, _, h, _, _, _) in reqs])
             for g in groups:
                 height, width, moments, bits = plan.request(g)
                 fraction = 0.25

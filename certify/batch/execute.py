@@ -92,46 +92,88 @@ def _spectrum_of(blob: bytes, digest: str):
 
 # --- tasks -------------------------------------------------------------------
 
-def spectrum_task(req: dict, start: tuple | None = None) -> dict:
+def conductor_task(pairs: list) -> list[dict]:
+    """The spectra of several characters of one conductor: :func:`spectrum_task` for each
+    (req, start) pair, after one batched pass for all of them (power sums and central
+    values by Hurwitz jets and a DFT; Hardy Z on the common search grid), docs/method.md
+    sections 2c and 3c.  The batched time is shared out equally in the timings."""
+    from ..spectrum.moments import conductor_power_sums, hardy_grid, prefer_batch
+
+    reqs = [r for r, _ in pairs]
+    c = int(reqs[0]["conductor"])
+    if not prefer_batch(c, len(pairs)):
+        return [spectrum_task(req, start) for req, start in pairs]
+    with _LOCK:
+        t0 = time.perf_counter()
+        K = max(int(r["moments"]) for r in reqs)
+        B = max(int(r["bits"]) for r in reqs)
+        labels = [int(r["label"]) for r in reqs]
+        batched = {(c, n): (sums, B, cv)
+                   for n, (sums, cv) in conductor_power_sums(c, labels, K, B).items()}
+        t1 = time.perf_counter()
+        hardy_grid(c, labels, max(float(r["height"]) for r in reqs),
+                   min(float(r.get("fraction", 0.25)) for r in reqs))
+        t2 = time.perf_counter()
+        out = []
+        for req, start in pairs:
+            res = _spectrum(req, start, batched)
+            res["timings"]["moments"] += (t1 - t0) / len(pairs)
+            res["timings"]["zeros"] += (t2 - t1) / len(pairs)
+            out.append(res)
+        return out
+
+
+def spectrum_task(req: dict, start: tuple | None = None, batched: dict | None = None) -> dict:
     """Compute the spectrum ``req`` asks for, extending ``start`` (blob, digest) if given.
 
-    ``req`` has conductor, label, parity, height, width, moments, bits.
+    ``req`` has conductor, label, parity, height, width, moments, bits; ``batched`` may
+    hold {(conductor, label): (power sums, bits, central value)} computed for a whole
+    conductor (:func:`conductor_task`).
     Mirrors :meth:`certify.spectrum.spectrum.SpectrumStore.get`, timing each part.
     """
+    with _LOCK:
+        return _spectrum(req, start, batched)
+
+
+def _spectrum(req: dict, start: tuple | None = None, batched: dict | None = None) -> dict:
     from ..spectrum.moments import central_value, zero_power_sums
     from ..spectrum.spectrum import PrimitiveSpectrum
     from ..spectrum.zeros import find_zeros
 
-    with _LOCK:
-        c, n, par = int(req["conductor"]), int(req["label"]), int(req["parity"])
-        h, w = float(req["height"]), float(req["width"])
-        k, b = int(req["moments"]), int(req["bits"])
-        fraction = float(req.get("fraction", 0.25))
-        sp = decode(*start) if start is not None else None
-        t = {"zeros": 0.0, "moments": 0.0, "central": 0.0}
-        z_calls = 0
-        t0 = time.perf_counter()
-        if sp is None or sp.height < h or sp.zeros.width > w or sp.zeros.grid_fraction > fraction:
-            base = sp.zeros if sp is not None and sp.zeros.grid_fraction <= fraction else None
-            zl = find_zeros(c, n, max(h, sp.height if sp else 0.0), min(w, sp.zeros.width if sp else w),
-                            fraction=fraction, start=base)
-            z_calls = zl.z_calls - (base.z_calls if base else 0)
-            sp = PrimitiveSpectrum(c, n, par, zl, sp.power_sums if sp else [],
-                                   sp.power_sum_bits if sp else 0, sp.central if sp else None)
-        t1 = time.perf_counter()
-        t["zeros"] = t1 - t0
-        if len(sp.power_sums) < k or sp.power_sum_bits < b:
-            sums = zero_power_sums(c, n, par, max(k, len(sp.power_sums)), max(b, sp.power_sum_bits))
-            sp = PrimitiveSpectrum(c, n, par, sp.zeros, sums, max(b, sp.power_sum_bits), sp.central)
-        t2 = time.perf_counter()
-        t["moments"] = t2 - t1
-        if sp.central is None:
-            sp = PrimitiveSpectrum(c, n, par, sp.zeros, sp.power_sums, sp.power_sum_bits,
-                                   central_value(c, n))
-        t["central"] = time.perf_counter() - t2
-        blob, digest = encode(sp)
-        return {"key": [c, n], "blob": blob, "digest": digest, "timings": t, "z_calls": z_calls,
-                "zeros": len(sp.zeros.zeros), "height": sp.height, "pid": os.getpid()}
+    c, n, par = int(req["conductor"]), int(req["label"]), int(req["parity"])
+    h, w = float(req["height"]), float(req["width"])
+    k, b = int(req["moments"]), int(req["bits"])
+    fraction = float(req.get("fraction", 0.25))
+    sp = decode(*start) if start is not None else None
+    t = {"zeros": 0.0, "moments": 0.0, "central": 0.0}
+    z_calls = 0
+    t0 = time.perf_counter()
+    if sp is None or sp.height < h or sp.zeros.width > w or sp.zeros.grid_fraction > fraction:
+        base = sp.zeros if sp is not None and sp.zeros.grid_fraction <= fraction else None
+        zl = find_zeros(c, n, max(h, sp.height if sp else 0.0), min(w, sp.zeros.width if sp else w),
+                        fraction=fraction, start=base)
+        z_calls = zl.z_calls - (base.z_calls if base else 0)
+        sp = PrimitiveSpectrum(c, n, par, zl, sp.power_sums if sp else [],
+                               sp.power_sum_bits if sp else 0, sp.central if sp else None)
+    t1 = time.perf_counter()
+    t["zeros"] = t1 - t0
+    got = (batched or {}).get((c, n))
+    if (len(sp.power_sums) < k or sp.power_sum_bits < b) and got is not None \
+            and len(got[0]) >= max(k, len(sp.power_sums)) and got[1] >= max(b, sp.power_sum_bits):
+        sp = PrimitiveSpectrum(c, n, par, sp.zeros, list(got[0]), got[1],
+                               sp.central if sp.central is not None else got[2])
+    if len(sp.power_sums) < k or sp.power_sum_bits < b:
+        sums = zero_power_sums(c, n, par, max(k, len(sp.power_sums)), max(b, sp.power_sum_bits))
+        sp = PrimitiveSpectrum(c, n, par, sp.zeros, sums, max(b, sp.power_sum_bits), sp.central)
+    t2 = time.perf_counter()
+    t["moments"] = t2 - t1
+    if sp.central is None:
+        sp = PrimitiveSpectrum(c, n, par, sp.zeros, sp.power_sums, sp.power_sum_bits,
+                               central_value(c, n))
+    t["central"] = time.perf_counter() - t2
+    blob, digest = encode(sp)
+    return {"key": [c, n], "blob": blob, "digest": digest, "timings": t, "z_calls": z_calls,
+            "zeros": len(sp.zeros.zeros), "height": sp.height, "pid": os.getpid()}
 
 
 def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -> list[dict]:

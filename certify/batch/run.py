@@ -30,7 +30,8 @@ from ..io import write_atomic
 from ..race.question import spectral_groups
 from ..source.dirichlet import reduced_residues
 from .cache import SOFTWARE_VERSION, CachedStore, SpectrumCache
-from .execute import Progress, make_executor, race_task, run_all, spectrum_task
+from ..spectrum.moments import prefer_batch
+from .execute import Progress, conductor_task, make_executor, race_task, run_all
 from .plan import RaceItem, races_for, spectrum_requests, table_equivalences
 from .serial import decode
 
@@ -167,11 +168,28 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
         if todo:
             prog = Progress("spectra", len(todo), sum(r.cost for r, _ in todo), "L-functions",
                             enabled=progress)
-            args = [({"conductor": r.conductor, "label": r.label, "parity": r.parity,
-                      "height": r.height, "width": r.width, "moments": r.moments,
-                      "bits": r.bits}, start) for r, start in todo]
-            for i, res in run_all(executor, spectrum_task, args):
-                r = todo[i][0]
+            # several characters of one conductor go to one task: one batched pass computes
+            # their power sums and their Hardy Z on the common grid (docs/method.md 2c, 3c)
+            groups = defaultdict(list)
+            for r, start in todo:
+                groups[r.conductor].append((r, start))
+            tasks = []
+            for cnd, lst in groups.items():
+                if prefer_batch(cnd, len(lst)):
+                    tasks.append(lst)
+                else:
+                    tasks.extend([x] for x in lst)
+            tasks.sort(key=lambda lst: -sum(r.cost for r, _ in lst))
+            args = [([({"conductor": r.conductor, "label": r.label, "parity": r.parity,
+                        "height": r.height, "width": r.width, "moments": r.moments,
+                        "bits": r.bits}, start) for r, start in lst],) for lst in tasks]
+
+            def _results():
+                for i, got in run_all(executor, conductor_task, args):
+                    for j, (r, _) in enumerate(tasks[i]):
+                        yield r, (got if isinstance(got, BaseException) else got[j])
+
+            for r, res in _results():
                 if isinstance(res, BaseException):
                     if isinstance(res, CertifyError):
                         raise res

@@ -244,29 +244,45 @@ def leader_first(rows: list[Row]) -> list[Row]:
     return out
 
 
+def _s_cell(text: str) -> str:
+    """A cell of a siunitx S column: a plain decimal aligns on its point; anything else is braced."""
+    import re
+
+    if re.fullmatch(r"\d+\.\d+", text):
+        return text
+    return "{" + text + "}"
+
+
 def render_latex(rows: list[Row], digits: int, caption: str = "") -> str:
-    """A longtable (booktabs rules); needs \\usepackage{booktabs,longtable}."""
+    """A longtable (booktabs rules, siunitx decimal alignment).
+
+    Needs ``\\usepackage{booktabs,longtable,siunitx}``.
+    """
     lines = [
-        "% certify batch table: needs \\usepackage{booktabs,longtable}",
+        "% certify batch table: needs \\usepackage{booktabs,longtable,siunitx}",
         "% " + HYPOTHESES_NOTE,
         "% " + DIGITS_NOTE,
         "% The comment after each row names its result file and that file's SHA-256.",
-        r"\begin{longtable}{rllc}",
+        rf"\begin{{longtable}}{{rlS[table-format=1.{max(digits, 1) + 2}]l}}",
     ]
     if caption:
         lines.append(rf"\caption{{{caption}}}\\")
-    head = r"$q$ & race & $\delta$ & $1-\delta$ \\"
+    head = r"$q$ & race & {$\delta$} & $1-\delta$ \\"
     lines += [r"\toprule", head, r"\midrule", r"\endfirsthead", r"\toprule", head, r"\midrule",
               r"\endhead", r"\bottomrule", r"\endfoot"]
     for r in rows:
         if r.certified:
             dtext = density_text(r.lower, r.upper, digits, r.exact)
-            dcell = f"${dtext}$" + (" (exact)" if r.exact is not None else "")
+            if r.exact is not None:
+                dcell = "{$" + dtext + "$ (exact)}"
+            else:
+                dcell = dtext if _s_cell(dtext) == dtext else "{$" + dtext + "$}"
             omt = one_minus_text(r, True)
         else:
-            dcell, omt = "not certified", ""
-        mark = r"$^{*}$" if r.certified and not r.target_met and r.exact is None else ""
-        lines.append(f"{r.q} & {r.latex_label} & {dcell}{mark} & {omt} \\\\ % {r.source} "
+            dcell, omt = "{not certified}", ""
+        if r.certified and not r.target_met and r.exact is None:  # marked: set as text, not aligned
+            dcell = "{" + (dcell[1:-1] if dcell.startswith("{") else dcell) + r"$^{*}$}"
+        lines.append(f"{r.q} & {r.latex_label} & {dcell} & {omt} \\\\ % {r.source} "
                      f"sha256={r.sha256[:16]}{' (reverse race: 1 - delta)' if r.derived else ''}")
     lines.append(r"\end{longtable}")
     lines.append(r"\par\noindent{\footnotesize " + _latex_escape(HYPOTHESES_NOTE) + " "
@@ -282,19 +298,22 @@ def _latex_escape(s: str) -> str:
 
 def render_latex_ranking(rows: list[Row], digits: int) -> str:
     lines = [
-        "% certify batch: the most biased races; needs \\usepackage{booktabs}",
+        "% certify batch: the most biased races; needs \\usepackage{booktabs,siunitx}",
         "% " + HYPOTHESES_NOTE,
-        r"\begin{tabular}{rrllc}",
+        rf"\begin{{tabular}}{{rrlS[table-format=1.{max(digits, 1) + 2}]l}}",
         r"\toprule",
-        r"rank & $q$ & race & $\delta$ & $1-\delta$ \\",
+        r"rank & $q$ & race & {$\delta$} & $1-\delta$ \\",
         r"\midrule",
     ]
     for i, r in enumerate(rows, 1):
-        mark = (r"$^{*}$" if not r.target_met and r.exact is None
-                else (" (exact)" if r.exact is not None else ""))
-        lines.append(f"{i} & {r.q} & {r.latex_label} & "
-                     f"${density_text(r.lower, r.upper, digits, r.exact)}$"
-                     f"{mark} & {one_minus_text(r, True)} \\\\ % {r.source} sha256={r.sha256[:16]}")
+        dtext = density_text(r.lower, r.upper, digits, r.exact)
+        if r.exact is not None:
+            dcell = "{$" + dtext + "$ (exact)}"
+        elif not r.target_met:
+            dcell = "{$" + dtext + "$$^{*}$}"
+        else:
+            dcell = _s_cell(dtext) if _s_cell(dtext) == dtext else "{$" + dtext + "$}"
+        lines.append(f"{i} & {r.q} & {r.latex_label} & {dcell} & {one_minus_text(r, True)} \\\\ % {r.source} sha256={r.sha256[:16]}")
     lines += [r"\bottomrule", r"\end{tabular}"]
     return "\n".join(lines) + "\n"
 
@@ -316,14 +335,14 @@ def render_markdown(rows: list[Row], digits: int, title: str) -> str:
 
 CSV_FIELDS = ["q", "kind", "a", "b", "race", "lower", "upper", "width", "certified_digits",
               "one_minus_delta", "target_met", "mean", "derived", "result_file", "result_sha256",
-              "status", "exact", "equals", "relation"]
+              "status", "exact", "equals", "relation", "conditional_on"]
+CSV_CONDITION = "GRH and LI for the L-functions used (assumed, not proven)"
 
 
 def render_csv(rows: list[Row]) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
-    w.writerow(["# " + HYPOTHESES_NOTE])
-    w.writerow(CSV_FIELDS)
+    w.writerow(CSV_FIELDS)  # the header on the first line; the caution in every row
     for r in rows:
         if r.certified:
             lower = decimal_down(r.lower, 30).rstrip("0")
@@ -333,11 +352,12 @@ def render_csv(rows: list[Row]) -> str:
                         certified_digits(r.lower, r.upper), one_minus_text(r, False),
                         "yes" if r.target_met else "no", r.mean, "yes" if r.derived else "no",
                         r.source, r.sha256, "certified",
-                        fraction_text(r.exact) if r.exact is not None else "", r.equals, r.relation])
+                        fraction_text(r.exact) if r.exact is not None else "", r.equals, r.relation,
+                        CSV_CONDITION])
         else:
             w.writerow([r.q, r.kind, r.a or "", r.b or "", r.label, "", "", "", "", "", "no", "",
                         "yes" if r.derived else "no", r.source, "", r.error, "", r.equals,
-                        r.relation])
+                        r.relation, CSV_CONDITION])
     return buf.getvalue()
 
 

@@ -32,6 +32,10 @@ def verify_any(cert: Certificate) -> VerifyReport:
         from .ffield import verify_ffield
 
         return verify_ffield(cert)
+    if cert.kind == "order-race":
+        from .order import verify_order_certificate
+
+        return verify_order_certificate(cert)
     if cert.kind == "curve-race":
         from .curves import verify_curve
 
@@ -65,6 +69,10 @@ def _verify_file(path: str, seen: set) -> list:
             return [Outcome(path, verify_any(Certificate.from_dict(data, path)))]
         if data["kind"] == "table":
             return _verify_table(path, data, seen)
+        if data["kind"] == "order-family":
+            from .order import verify_family
+
+            return [Outcome(path, rep) for rep in verify_family(data, path)]
         raise BadInput(f"{path}: a {data['kind']!r} document has nothing to verify")
     except CertifyError as exc:
         return [_refused(path, exc)]

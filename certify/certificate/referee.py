@@ -34,6 +34,7 @@ from fractions import Fraction
 from ..errors import BadInput, PrecisionExhausted
 from ..race.question import (RaceQuestion, parse_weight_items, prime_vs_li, residue_race, two_way,
                              weighted)
+from ..orders import MAX_ORDER_DIGITS, certify_order
 from ..races import MAX_DIGITS, RaceResult, certify_race
 from ..spectrum.spectrum import SpectrumStore
 from .numbers import interval_str, sci
@@ -127,8 +128,27 @@ def _plain(v: Fraction) -> str:
 
 
 def parse_value(text: str) -> tuple[Fraction, Fraction, str, int]:
-    """(lower, upper, meaning, places) of a claimed value; BadInput if malformed."""
+    """(lower, upper, meaning, places) of a claimed value; BadInput if malformed.
+
+    A density lies in [0, 1]: a value (or an interval end) outside it is refused as such.
+    """
     t = text.strip()
+    if len(t) > 120:
+        raise BadInput(f"claimed value of {len(t)} characters: give at most 100 decimal places "
+                       "(certify cannot decide more digits than its precision ceiling)")
+    lo, hi, meaning, places = _parse_value(t)
+    if meaning == "the interval":
+        stated = (lo, hi)
+    elif meaning.startswith("the truncation"):
+        stated = (lo if lo >= 0 else hi,)  # the printed number itself
+    else:
+        stated = ((lo + hi) / 2,)
+    if any(v < 0 or v > 1 for v in stated):
+        raise BadInput(f"claimed value {t!r} lies outside [0, 1]; a density is between 0 and 1")
+    return lo, hi, meaning, places
+
+
+def _parse_value(t: str) -> tuple[Fraction, Fraction, str, int]:
     m = re.fullmatch(r"\[\s*(" + _DEC + r")\s*,\s*(" + _DEC + r")\s*\]", t)
     if m:
         lo, hi = Fraction(m.group(1)), Fraction(m.group(2))
@@ -171,6 +191,11 @@ def parse_race(text: str) -> RaceQuestion:
     m = re.fullmatch(r"(?:delta|δ)\((\d+);(-?\d+),(-?\d+)\)", t)
     if m:
         return two_way(int(m.group(1)), int(m.group(2)), int(m.group(3)))
+    m = re.fullmatch(r"(?:delta|δ)\((\d+);(-?\d+(?:,-?\d+){2,})\)", t)
+    if m:  # an ordering of three or more classes
+        from ..race.order import ordering
+
+        return ordering(int(m.group(1)), *[int(c) for c in m.group(2).split(",")])
     m = re.fullmatch(r"(?:delta|δ)\((\d+);N,R\)", t)
     if m:
         return residue_race(int(m.group(1)))
@@ -178,7 +203,7 @@ def parse_race(text: str) -> RaceQuestion:
     if m:
         weights = parse_weight_items(m.group(2).split(","), ":")
         return weighted(int(m.group(1)), weights)
-    raise BadInput(f"race {text.strip()!r} is not delta(q;a,b), delta(q;N,R), "
+    raise BadInput(f"race {text.strip()!r} is not delta(q;a,b), delta(q;a,b,c,...), delta(q;N,R), "
                    "weighted(q; a:w, b:w, ...), delta(pi>li) or delta(pi<li)")
 
 
@@ -245,6 +270,17 @@ def _next_digits(d: int, lo: Fraction, hi: Fraction, claim: Claim) -> int:
     return want
 
 
+def _is_ordering(race) -> bool:
+    return getattr(race, "kind", "") == "ordering"
+
+
+def _certify(race, digits: int, store):
+    """The race's certified density: the line engine, or the orthant engine for an ordering."""
+    if _is_ordering(race):
+        return certify_order(race, min(digits, MAX_ORDER_DIGITS), store=store)
+    return certify_race(race, digits, store=store)
+
+
 def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MAX_REFEREE_DIGITS,
             store: SpectrumStore | None = None, with_certificate: bool = False) -> RefereeVerdict:
     """Check ``claim``, raising the precision until it is decided or ``max_digits`` is reached.
@@ -271,7 +307,7 @@ def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MA
     while True:
         tried.append(d)
         try:
-            result = certify_race(claim.race, d, store=store)
+            result = _certify(claim.race, d, store)
         except PrecisionExhausted as exc:
             reason = f"not decided: {exc}"
             break
@@ -280,10 +316,19 @@ def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MA
         if verdict != UNDECIDED:
             cert = None
             if with_certificate:
-                from .build import certificate_from_result
+                if _is_ordering(claim.race):
+                    from .order import order_certificate
 
-                cert = certificate_from_result(result, store)
+                    cert = order_certificate(result, store)
+                else:
+                    from .build import certificate_from_result
+
+                    cert = certificate_from_result(result, store)
             return RefereeVerdict(claim, verdict, lo, hi, margin, tuple(tried), "", result, cert)
+        if _is_ordering(claim.race) and d >= MAX_ORDER_DIGITS:
+            reason = (f"undecided at {d} digits (the limit for orderings): the certified enclosure "
+                      f"{interval_str(lo, hi)} straddles an end of the claim")
+            break
         if d >= max_digits:
             reason = (f"undecided at {d} digits (the limit): the certified enclosure "
                       f"{interval_str(lo, hi)} straddles an end of the claim")

@@ -59,6 +59,7 @@ def run_table(args) -> int:
     est = table_estimate(moduli, kinds, extra)
     what = f"table of {len(est['moduli'])} moduli up to {est['conductor']}"
     limits.require("races", est["races"], what)
+    limits.require("conductor", est["conductor"], what)
     limits.require("memory-mb", est["memory-mb"], what)
     limits.require("l-functions", distinct_l_functions(est["moduli"]), what)
     cmd = _command_line(args)
@@ -150,8 +151,13 @@ def run_cache_show(args) -> int:
     rc = 0
     if args.check:
         res = cache.check()
-        print(f"  integrity: {res['integrity']}; damaged entries: {len(res['damaged'])}")
+        print(f"  integrity: {res['integrity']}; damaged entries: {len(res['damaged'])}; "
+              f"{res['entries']} entries re-derived in {res['recheck_seconds']:.2f} s")
         if res["integrity"] != "ok" or res["damaged"]:
+            ids = ", ".join(map(str, res["damaged"][:20])) + (" ..." if len(res["damaged"]) > 20 else "")
+            print(f"certify: error: cache {cache.path}: integrity {res['integrity']}; "
+                  f"{len(res['damaged'])} damaged entries ({ids or 'none'}); "
+                  "`certify cache prune --damaged` removes them", file=sys.stderr)
             rc = 4
     cache.close()
     return rc

@@ -93,8 +93,14 @@ def run_certificate(args) -> int:
     d = target_digits(args)
     formats = parse_formats(args.formats)
     check_race_size(question, Limits.of(args), "certificate")
-    result, cert = certify_with_certificate(question, d,
-                                            command_line=reproduce_command(question, d))
+    if getattr(question, "kind", "") == "ordering":  # three or more classes
+        from ..certificate.order import certify_order_with_certificate
+        from ..certificate.order import reproduce_command as order_command
+
+        result, cert = certify_order_with_certificate(question, d, command_line=order_command(question, d))
+    else:
+        result, cert = certify_with_certificate(question, d,
+                                                command_line=reproduce_command(question, d))
     paths = write_files(cert, args.out, formats, args.name)
     if args.json:
         write_json(json.loads(cert.to_json()), args.json)

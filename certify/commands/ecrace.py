@@ -57,6 +57,12 @@ def run_ecrace(args) -> int:
     from ..ecobserve import observe, plot_observation
     from ..source.ellcurve import curve_from_ainvs
 
+    from .options import check_json_path
+
+    check_json_path(args.json)
+    check_json_path(args.plot)
+    if len(str(args.ainvs)) > 400:
+        raise BadInput("the a-invariants are longer than 400 characters")
     E = curve_from_ainvs(args.ainvs)
     digits = _int(args.digits, "--digits")
     if not (1 <= digits <= MAX_DIGITS):

@@ -30,7 +30,33 @@ def direction_of(text: str) -> str:
     return ALIASES[d]
 
 
-def screen(result) -> str:
+def rh_to_height(result) -> dict:
+    """RH to a height for the zeros used: argument-principle count against the sign changes.
+
+    The count (certify/certificate/zerocount.py, docs/method.md section 2b) runs
+    to midway between the last two isolated zeros; if it equals the number of
+    sign changes below that height, every zero there is on the critical line
+    and simple.
+    """
+    from ..certificate.evidence import exact_ends
+    from ..certificate.zerocount import count_height, count_zeros
+    from ..errors import PrecisionExhausted
+
+    zeros = result.groups[0].zeros
+    ends = sorted(exact_ends(z) for z in zeros)
+    if len(ends) < 2:
+        return {"established": False, "reason": "too few zeros"}
+    T = count_height(ends)
+    found = sum(1 for lo, hi in ends if hi < T)
+    try:
+        n, _ = count_zeros(1, 1, 0, T)
+    except PrecisionExhausted as exc:
+        return {"established": False, "reason": str(exc)}
+    return {"established": True, "height": float(T), "count": n, "sign_changes": found,
+            "verified": n == found}
+
+
+def screen(result, rh: dict | None = None) -> str:
     """The one-screen summary of an li race."""
     from ..lirace import small_side_text
 
@@ -61,6 +87,12 @@ def screen(result) -> str:
         lines.append(f"    {h.name}: {h.statement}")
         for ev in h.evidence[:2]:
             lines.append(f"      - {ev}")
+        if h.name == "RH" and rh and rh.get("established"):
+            verdict = ("so RH holds to that height" if rh["verified"]
+                       else "so RH is NOT verified to that height")
+            lines.append(f"      - argument principle: {rh['count']} zeros with 0 < gamma < "
+                         f"{rh['height']:.6g}, {rh['sign_changes']} sign changes found there, "
+                         f"{verdict}")
     lines.append(f"  {result.caution}")
     return "\n".join(lines)
 
@@ -74,7 +106,9 @@ def _int(text, what: str) -> int:
 
 def run_lirace(args) -> int:
     from ..lirace import certify_li_race
+    from .options import check_json_path
 
+    check_json_path(args.json)  # before any work: an empty or folder --json is refused at once
     direction = direction_of(args.direction)
     if args.digits is not None and args.sig_digits is not None:
         raise BadInput("give either --sig-digits or --digits, not both")
@@ -97,11 +131,14 @@ def run_lirace(args) -> int:
     store = SpectrumStore()
     result = certify_li_race(direction, sig_digits=sig, digits=digits, store=store,
                              command_line="certify " + " ".join(shlex.quote(a) for a in tail))
+    rh = rh_to_height(result)
     if args.json:
-        # the certificate: the one shape of every certify document (verify re-checks it)
-        from ..certificate.build import certificate_from_result as _cfr
+        d = result.to_dict()
+        d["rh_to_height"] = rh
+        from ..certificate.model import envelope
 
-        text = _cfr(result, store).to_json().rstrip("\n")
+        # the result in the common envelope; --certificate DIR writes the certificate
+        text = json.dumps(envelope("li-race-result", d), indent=2, default=str)
         if args.json == "-":
             sys.stdout.write(text + "\n")
         else:
@@ -109,7 +146,7 @@ def run_lirace(args) -> int:
 
             write_atomic(args.json, text + "\n")
     if args.json != "-":
-        print(screen(result))
+        print(screen(result, rh))
     if args.certificate:
         from ..certificate.build import certificate_from_result, reproduce_command
         from ..render.files import write_files

@@ -41,6 +41,9 @@ MAX_INT_DIGITS = 30  # integers on the command line are at most this long
 DEFAULT_LIMITS = {
     "races": 100_000,          # races in one table
     "l-functions": 5_000,      # L-functions one race or table needs (upper estimate)
+    "conductor": 2_000,        # the largest modulus of a race over Q (measured: the residue
+                               # race mod 1009, one L-function of conductor 1009, 2 digits:
+                               # 153 s; mod 10007: more than 300 s; 2 cores under load)
     "memory-mb": 4_000,        # estimated memory of a table's plan and results
     "field": 10_000_000,       # elements of the largest finite field a curve's point counts need
     "group": 1_000_000,        # order of a character group mod m in F_q[t]
@@ -292,5 +295,6 @@ def check_race_size(question, limits: "Limits", what: str) -> None:
     """Refuse a race over Q whose L-function count exceeds the limit (estimated from q)."""
     from ..batch.limits import race_l_functions
 
+    limits.require("conductor", question.modulus, f"{what} {question.label}")
     limits.require("l-functions", race_l_functions(question.modulus, question.kind),
                    f"{what} {question.label}")

@@ -2,9 +2,7 @@
 
 from __future__ import annotations
 
-import json
 import shlex
-import sys
 
 from ..errors import BadInput
 from ..race.order import ordering
@@ -59,47 +57,82 @@ def family_screen(fam) -> str:
 
 
 def _write(payload: dict, path: str) -> None:
-    from ..certificate.model import envelope
+    from .options import write_json
 
-    text = json.dumps(envelope("order-result", payload), indent=2, default=str)
-    if path == "-":
-        sys.stdout.write(text + "\n")
-    else:
-        from ..io import write_atomic
-
-        write_atomic(path, text + "\n")
+    write_json(payload, path)
 
 
 def run_order(args) -> int:
-    from ..orders import MAX_DIGITS, certify_order, certify_orderings
+    import math
 
+    from ..batch.limits import race_l_functions
+    from ..orders import MAX_DIGITS, certify_order, certify_orderings
+    from .options import Limits, check_json_path
+
+    check_json_path(args.json)
     q = _int(args.modulus, "modulus")
     classes = [_int(a, "class") for a in args.classes]
     question = ordering(q, *classes)
     if len(question.classes) < 3:
         raise BadInput("an ordering race needs at least three classes "
                        "(for two, use `certify race Q A B`)")
+    limits = Limits.of(args)  # sizes bounded before work starts
+    what = f"order modulo {q} with {len(question.classes)} classes"
+    limits.require("conductor", q, what)
+    limits.require("l-functions", race_l_functions(q, "two-way"), what)
+    if args.all:
+        limits.require("races", math.factorial(min(len(question.classes), 30)), what + " (--all)")
     d = _int(args.digits, "--digits")
     if not 1 <= d <= MAX_DIGITS:
         raise BadInput(f"--digits must lie in 1..{MAX_DIGITS} (got {d})")
     cmd = "certify " + " ".join(shlex.quote(a) for a in
                                 ["order", str(q), *map(str, classes), "--digits", str(d)]
                                 + (["--all"] if args.all else []))
+    from ..spectrum.spectrum import SpectrumStore
+    from .options import check_outputs
+
+    check_outputs(args)
+    store = SpectrumStore()
     if args.all:
-        fam = certify_orderings(q, question.classes, d, command_line=cmd)
+        fam = certify_orderings(q, question.classes, d, store=store, command_line=cmd)
         if args.json:
-            _write(fam.to_dict(), args.json)
+            # one document: the family's consistency checks and every ordering's certificate
+            from ..certificate.model import envelope
+            from ..certificate.order import order_certificate
+
+            body = {"modulus": fam.modulus, "classes": list(fam.classes), "consistent": fam.ok,
+                    "consistency": [c.as_dict() for c in fam.checks],
+                    "certificates": [order_certificate(r, store, fam.checks).to_dict()
+                                     for r in fam.results]}
+            _write(envelope("order-family", body), args.json)
         if args.json != "-":
             print(family_screen(fam))
+        if args.certificate:
+            _certificates(fam.results, store, args.certificate, fam.checks)
         if not fam.ok:
             return 4
         return 0 if all(r.target_met for r in fam.results) else 5
-    result = certify_order(question, d, command_line=cmd)
-    if args.json:
-        _write(result.to_dict(), args.json)
+    result = certify_order(question, d, store=store, command_line=cmd)
+    if args.json:  # the certificate: the one shape every command writes with --json
+        from ..certificate.order import order_certificate
+
+        _write(order_certificate(result, store).to_dict(), args.json)
     if args.json != "-":
         print(screen(result))
+    if args.certificate:
+        _certificates([result], store, args.certificate, ())
     return 0 if result.target_met else 5
+
+
+def _certificates(results, store, out_dir: str, checks) -> None:
+    """Write each result's certificate (JSON and Markdown) into out_dir."""
+    from ..certificate.order import order_certificate
+    from ..render.files import base_name, write_files
+
+    for r in results:
+        cert = order_certificate(r, store, checks)
+        for f, p in write_files(cert, out_dir, ("json", "md"), base_name(r.question.label)).items():
+            print(f"  wrote {f:<9} {p}")
 
 
 def register(sub) -> None:
@@ -115,5 +148,12 @@ def register(sub) -> None:
     p.add_argument("--digits", "-d", default=str(DEFAULT_ORDER_DIGITS), metavar="D",
                    help=f"target: width at most 10^-D (default {DEFAULT_ORDER_DIGITS})")
     p.add_argument("--all", action="store_true", help="every ordering of the classes, with checks")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--json", metavar="PATH", nargs="?", const="-", default=None,
+                   help="write the certificate (with --all: every certificate and the checks) as "
+                   "JSON to PATH (- or no PATH: standard output)")
+    p.add_argument("--certificate", metavar="DIR",
+                   help="also write certificates (JSON for `certify verify`, Markdown) into DIR")
+    from .options import add_limits
+
+    add_limits(p)
     p.set_defaults(func=run_order)

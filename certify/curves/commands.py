@@ -62,7 +62,7 @@ def _check_curve_size(args, what: str, twist_degree: int = 0, n: int = 1) -> Non
 def _add_curve_args(p):
     p.add_argument("q", help="the order of the constant field F_q (a prime power, characteristic >= 5)")
     p.add_argument("A", help="A(t), e.g. 't^3 + 2*t + 1' (for q = p^k, 'z' is the generator of F_q)")
-    p.add_argument("B", help="B(t)")
+    p.add_argument("B", help="B(t), the constant coefficient, e.g. 't^3 + 2'")
     p.add_argument("--mode", choices=("cumulative", "degree"), default="cumulative",
                    help="race over good places of degree <= X (cumulative) or of degree exactly X")
     add_json(p)

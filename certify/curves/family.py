@@ -288,7 +288,7 @@ def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = Non
         ranks[m.rank] = ranks.get(m.rank, 0) + 1
     hyps = (
         Hypothesis("RH for each L(E_f,u)", "inverse roots of modulus q", "theorem",
-                   ("enclosed and checked for every member",), "P. Deligne, La conjecture de Weil II (1980)"),
+                   ("enclosed and checked for every member",), "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
         Hypothesis("LI for each member", "the non-torsion angles of each member together with 1 are Q-linearly independent",
                    "assumed", (f"LLL relation search for each of the {len(members)} members; members where a relation "
                                "appeared are listed as not certified",)),

@@ -7,7 +7,7 @@ is a polynomial with integer coefficients of degree N' = deg N - 4
 
     L(E, u) = eps (q u)^N' L(E, 1/(q^2 u)),   eps = +-1,
 
-i.e. l_{N'-i} = eps q^(N'-2i) l_i, and inverse roots of modulus q (Deligne).
+i.e. l_{N'-i} = eps q^(N'-2i) l_i, and inverse roots of modulus q (La conjecture de Weil II, Publ. Math. IHES 52 (1980)).
 The coefficients l_0..l_D follow exactly from the sums c_1..c_D of
 :mod:`certify.curves.traces` by Newton's identities i l_i = sum_{n<=i} c_n l_{i-n};
 the functional equation gives the rest once eps is known, and eps is read off the

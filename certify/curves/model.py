@@ -17,9 +17,9 @@ ramification does not occur for p >= 5).
 
 References
 ----------
-J. Tate, "Algorithm for determining the type of a singular fiber in an elliptic
+"Algorithm for determining the type of a singular fiber in an elliptic
 pencil", Modular Functions of One Variable IV, LNM 476 (1975).
-I. Papadopoulos, "Sur la classification de Néron des courbes elliptiques en
+"Sur la classification de Néron des courbes elliptiques en
 caractéristique résiduelle 2 et 3", J. Number Theory 44 (1993) (table for p >= 5
 in its introduction).
 """

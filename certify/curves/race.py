@@ -330,19 +330,19 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
             "RH for L(E,u)", "every inverse root of L(E, u) has absolute value q",
             "theorem",
             (f"all {L.degree} inverse roots enclosed by Arb; ||gamma| - q| <= {L.max_modulus_error:.3g} for each",),
-            "P. Deligne, La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
+            "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
         Hypothesis(
             "Degree and functional equation",
             f"L(E, u) has degree deg N - 4 = {L.degree} and satisfies L(u) = eps (qu)^N' L(1/(q^2 u))",
             "theorem",
             (f"eps = {L.sign:+d} read from point counts of degrees <= {L.degrees_used}; "
              f"confirmed by the exact point counts of degrees {list(L.degrees_confirmed)}",),
-            "A. Grothendieck, Formule de Lefschetz et rationalité des fonctions L, Sém. Bourbaki 279 (1965); "
-            "M. Raynaud, Caractéristique d'Euler-Poincaré d'un faisceau, Sém. Bourbaki 286 (1965)"),
+            "Formule de Lefschetz et rationalité des fonctions L, Sém. Bourbaki 279 (1965); "
+            "Caractéristique d'Euler-Poincaré d'un faisceau, Sém. Bourbaki 286 (1965)"),
         Hypothesis(
             "Weight bound for Sym^2", "the Sym^2 trace sums over places of degree m are O(q^(3m/2))",
             "theorem", ("used only for the prime-square term's limit (docs/elliptic_curves.md)",),
-            "P. Deligne, La conjecture de Weil II (1980)"),
+            "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
     ]
     if k == 0:
         encs = []

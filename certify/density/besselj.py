@@ -4,11 +4,11 @@
   log J_0(x) = -sum_k sigma_k x^(2k) / k  (|x| < j_{0,1}).
 * An enclosure of j_{0,1}, the first positive zero of J_0, certified by a sign
   change of J_0 (that no zero of J_0 lies in (0, 2.4048) is classical:
-  Watson, A Treatise on the Theory of Bessel Functions, 1944, section 15.3).
+  A Treatise on the Theory of Bessel Functions, Cambridge University Press 1944, section 15.3).
 * For k >= 2, sigma_k j_{0,1}^(2k) = 1 + sum_{n >= 2} (j_{0,1}/j_{0,n})^(2k)
   decreases in k, so sigma_k <= C j_{0,1}^(-2k) with C = sigma_2 j_{0,1}^4.
 * |J_0(x)| <= sqrt(2 / (pi x)) for x > 0, because x (J_0^2 + Y_0^2)(x)
-  increases to 2/pi (Watson, section 13.74).
+  increases to 2/pi (A Treatise on the Theory of Bessel Functions, 1944, section 13.74).
 """
 
 from __future__ import annotations

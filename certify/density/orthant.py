@@ -33,8 +33,9 @@ import numpy as np
 from ..arith import acb, arb, workprec
 from ..errors import PrecisionExhausted
 from ..result import DensityEnclosure, Enclosure, ErrorTerm
-from .bessel import ResidualGroup, ResidualTooLarge, _arb_q, _clamp_unit, _residual_log_factor
-from .besselj import check_j01, tail_constant
+from .bessel import ResidualTooLarge, _arb_q, _clamp_unit
+from .besselj import check_j01, rayleigh_sigma, tail_constant
+from ..errors import Inconsistent
 
 
 #: zeros with x w <= EXPAND * j_{0,1} at a frequency vector go into the Rayleigh expansion
@@ -132,7 +133,9 @@ class DirectionalTail:
         G = len(var.groups)
         t_lo = np.zeros((len(patches), G))
         self.t_arb = [[None] * G for _ in patches]
-        rad = arb(0, h)
+        # the centres -1 + h(2m+1) are floats (rounded): a radius h (1 + 2^-20) makes the
+        # boxes overlap, so that no direction falls between two of them
+        rad = arb(0, h * (1 + 2.0**-20))
         for p, (face, eta) in enumerate(patches):
             coords = [arb(1) if i == face else arb(eta[i]) + rad for i in range(d)]
             for gi, g in enumerate(var.groups):
@@ -155,6 +158,8 @@ class DirectionalTail:
             for w in ws:
                 pref.append(pref[-1] + arb(w.lower()).log())
             self.log_prefix.append(pref)
+        self.log_prefix_float = [np.concatenate([[0.0], np.cumsum(np.log(w))]) if w.size else
+                                 np.zeros(1) for w in self.w_float]
         self.log_pi = arb.pi().log()
 
     def _counts(self, s: float) -> np.ndarray:
@@ -171,23 +176,22 @@ class DirectionalTail:
         return n
 
     def log_bound_float(self, s: float) -> tuple[float, int]:
-        """(max over patches of the log bound, min over patches of the exponent count); planning."""
-        best = -np.inf
-        jmin = None
+        """(max over patches of the log bound, min over patches of the exponent count); planning.
+
+        With w sorted decreasingly, sum_j max(0, log(pi s t w_j)) = n log(pi s t) + sum_{j<n} log w_j,
+        n = #{j : w_j > 1/(pi s t)}.
+        """
+        n = self._counts(s)
         tot = np.zeros(self.t_lo.shape[0])
-        cnt = np.zeros(self.t_lo.shape[0], dtype=int)
         for gi, w in enumerate(self.w_float):
             if w.size == 0:
                 continue
             u = np.pi * s * self.t_lo[:, gi]
-            with np.errstate(divide="ignore", invalid="ignore"):
-                lg = np.log(u)[:, None] + np.log(w)[None, :]
-            lg = np.where(np.isfinite(lg), lg, -np.inf)
-            pos = np.maximum(lg, 0.0)
-            tot -= 0.5 * pos.sum(axis=1)
-            cnt += (lg > 0).sum(axis=1)
+            with np.errstate(divide="ignore"):
+                lu = np.where(u > 0, np.log(np.where(u > 0, u, 1.0)), 0.0)
+            tot -= 0.5 * (n[:, gi] * lu + self.log_prefix_float[gi][n[:, gi]])
         best = float(tot.max()) if tot.size else 0.0
-        jmin = int(cnt.min()) if cnt.size else 0
+        jmin = int(n.sum(axis=1).min()) if n.size else 0
         return best, jmin
 
     def bound(self, s: arb, s_float: float) -> tuple[arb, int]:
@@ -410,6 +414,9 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
                 suf[j] = row
         suffix.append(suf)
     thr = EXPAND * float(j01_lo.lower())
+    res_cache = {}
+    K_max = max((len(g.residual) for g in var.groups), default=0)
+    sigmas = [_arb_q(rayleigh_sigma(k)) / k for k in range(1, K_max + 1)]
     need_each = tau / 16 / max(n_points, 1)
     sums = {s: arb(0) for s in signs}
     rayleigh = arb(0)
@@ -441,17 +448,20 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
                 P *= (x * w).bessel_j(0)
             bessel_calls += n_dir
             if g.residual:
-                R = tuple(r + e for r, e in zip(g.residual, suffix[gi][n_dir]))
-                res_parts.append((x, R, g.label))
+                key = (gi, n_dir)
+                if key not in res_cache:
+                    R = tuple(r + e for r, e in zip(g.residual, suffix[gi][n_dir]))
+                    res_cache[key] = (R, _largest_weight_bound(R, g.label))
+                R, root = res_cache[key]
+                res_parts.append((x, R, root))
         absP = arb(abs(P).upper())
         coef_abs = 2 * abs(mag)  # the pair k, -k
         log_res = arb(0)
         tail_sum = arb(0)
         try:
-            for x, R, label in res_parts:
+            for x, R, root in res_parts:
                 share_k = need_each / max(float((coef_abs * absP).upper()), 1e-300) / (4 * G)
-                ell, tl = _residual_log_factor(ResidualGroup(x, R, label), arb(1), share_k,
-                                               j01_lo, Cj)
+                ell, tl = _rayleigh(x, R, root, share_k, j01_lo, Cj, sigmas)
                 log_res += ell
                 tail_sum += tl
             factor = _clamp_unit(log_res.exp())
@@ -595,16 +605,17 @@ def _tail_float(tail, eps_f: list, Xi: float) -> float:
     X0 = min((K[i] + 1) * eps_f[i] for i in range(d))
     tot = 0.0
     inner = _mass_float(K)
-    for m in range(10):
+    M = 5  # planning: fewer explicit shells than the rigorous bound (which uses 10)
+    for m in range(M):
         s = X0 * 2**m
         lb, _ = tail.log_bound_float(s)
         outer = _mass_float([int(2 * s / e) + 1 for e in eps_f])
         tot += math.exp(lb) * max(outer - inner, 0.0)
         inner = _mass_float([int(2 * s / e) for e in eps_f])
-    lb, J = tail.log_bound_float(X0 * 2**10)
+    lb, J = tail.log_bound_float(X0 * 2**M)
     if J == 0:
         return math.inf
-    A = max(0.5 + 2 / math.pi + math.log(1 + X0 * 2**10 / e) / math.pi for e in eps_f)
+    A = max(0.5 + 2 / math.pi + math.log(1 + X0 * 2**M / e) / math.pi for e in eps_f)
     b = math.log(2) / math.pi
     r = 2 ** (-J / 2) * ((A + 2 * b) / (A + b)) ** d
     if r >= 1:
@@ -613,16 +624,17 @@ def _tail_float(tail, eps_f: list, Xi: float) -> float:
 
 
 def search_box(tail, eps_f: list, budget: float, limit: float = 1e4) -> float:
-    """The smallest box radius Xi (to 1/1000 relative) whose planned tail bound is below budget."""
+    """A box radius Xi (within 4% of the smallest) whose planned tail bound is below budget."""
     Xi = min(eps_f)
+    step = 2.0
     while _tail_float(tail, eps_f, Xi) > budget * 0.9:
-        Xi *= 1.25
+        Xi *= step
         if Xi > limit:
             raise PrecisionExhausted("not certified: the characteristic function does not decay "
                                      "fast enough in some direction (need more zeros)")
-    lo, hi = Xi / 1.25, Xi
-    for _ in range(10):
-        mid = (lo + hi) / 2
+    lo, hi = Xi / step, Xi
+    while hi / lo > 1.04:
+        mid = math.sqrt(lo * hi)
         if _tail_float(tail, eps_f, mid) > budget * 0.9:
             lo = mid
         else:
@@ -657,9 +669,52 @@ def plan_box(var: VectorVariable, tau: float, per_side: int | None = None) -> fl
     """Planning: the box radius Xi the engine would choose for ``var`` (floating point)."""
     d = var.dimension
     if per_side is None:
-        per_side = {1: 1, 2: 64, 3: 12}.get(d, 6)
+        per_side = {1: 1, 2: 16, 3: 8}.get(d, 6)
     with workprec(64):
         half_L, _, _ = periods(var, tau)
         eps_f = [math.pi / float(h) for h in half_L]
         tail = DirectionalTail(var, per_side)
     return search_box(tail, eps_f, tau / 8)
+
+
+def _largest_weight_bound(R, label: str) -> arb:
+    """min_k R_k^(1/(2k)): at least every weight w of the multiset whose power sums are R_k.
+
+    R_k <= 0 cannot happen for infinitely many zeros: refuse (docs/method.md, section 5).
+    """
+    best = None
+    for k, r in enumerate(R, start=1):
+        up = arb(r.upper())
+        if up <= 0:
+            raise Inconsistent(f"{label or 'residual group'}: residual power sum R_{k} = {r.str(5)} "
+                               "is not positive: a moment or an isolated zero is wrong; not certified")
+        root = up.root(2 * k)
+        best = root if best is None or root < best else best
+    return best
+
+
+def _rayleigh(x: arb, R, root: arb, need: float, j01_lo: arb, C: arb, sigmas):
+    """(log prod_res J_0(x w), tail bound): the expansion of docs/method.md section 5 at scale x.
+
+    ``root`` bounds every weight (``_largest_weight_bound``); raises ResidualTooLarge
+    unless y = x root / j_{0,1} < 1 is proven.  Identical to the one-dimensional engine's
+    residual factor with scale x at frequency 1, with the weight bound computed once.
+    """
+    y = x / j01_lo * root
+    if not (y < 1):
+        raise ResidualTooLarge("residual weights too large for the Rayleigh expansion")
+    y2 = y * y
+    geom = y2 / (1 - y2)
+    xj2 = (x / j01_lo) ** 2
+    total = arb(0)
+    xk = arb(1)
+    x2 = x * x
+    pw = arb(1)
+    for k, r in enumerate(R, start=1):
+        xk *= x2
+        total -= sigmas[k - 1] * xk * r
+        pw *= xj2
+        tail = C / (k + 1) * pw * arb(r.upper()).nonnegative_part() * geom
+        if tail.upper() < need:
+            return total, arb(tail.upper())
+    return total, arb(tail.upper())

@@ -501,7 +501,8 @@ class Character:
         return star
 
     def label(self) -> str:
-        return "chi[" + ",".join(map(str, self.c)) + "]"
+        # one label style for characters everywhere (screen, JSON, documents): chi_{...}
+        return "chi_{" + ",".join(map(str, self.c)) + "}"
 
     def describe(self) -> str:
         F = self.group.F

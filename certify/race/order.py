@@ -20,7 +20,6 @@ import itertools
 from dataclasses import dataclass
 from fractions import Fraction
 
-from ..arith import acb
 from ..errors import BadInput
 from ..source.dirichlet import Character, c_value, characters, check_class, check_modulus
 
@@ -35,6 +34,7 @@ class OrderQuestion:
     classes: tuple[int, ...]
 
     kind = "ordering"
+    is_li_race = False  # the hypotheses are GRH (Dirichlet L-functions) and LI
 
     @property
     def label(self) -> str:

@@ -82,6 +82,14 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
                      + ("; ".join(str(list(r)) for r in sp["relations"]) or "none"))
         lines.append(f"orbit closure: {sp['orbit_closure']}")
         return lines
+    if cert.kind == "order-race":
+        lines = []
+        for g in sp["groups"]:
+            ls = ", ".join(f"L(s, chi_{{{lf['conductor']},{lf['label']}}})" for lf in g["l_functions"])
+            lines.append(f"{g['label']}: {ls}; {len(g['zeros'])} zeros isolated to height "
+                         f"{g['isolation_height']}; {g['moments']['count']} exact moments; "
+                         f"direction vector v_chi with {len(g['vector'])} complex entries")
+        return lines
     if cert.kind == "curve-race":
         L, E = sp["l_polynomial"], sp["curve"]
         return [f"curve: y^2 = x^3 + ({E['A']})*x + ({E['B']}) over {E['field']}; conductor "
@@ -102,6 +110,10 @@ def recount_context(cert: Certificate, file_name: str) -> dict:
     if cert.kind == "ffield-race":
         ws = ", ".join(f"{c}: {w}" for c, w in zip(q["classes"], q["weights"]))
         setting = (f"Race in F_{q['q']}[t] modulo {q['modulus']} ({q['mode']}); weights {ws}")
+    elif cert.kind == "order-race":
+        setting = (f"Ordering of {len(q['classes'])} classes modulo {q['modulus']}: "
+                   + " > ".join(f"pi(x;{q['modulus']},{c})" for c in q["classes"])
+                   + f"; mean vector ({a['mean']})")
     else:
         setting = f"Trace race of an elliptic curve over F_{q['q']}(t) ({q['mode']})"
     hyps = [{"name": h["name"], "statement": h["statement"], "status": h["status"],

@@ -36,23 +36,10 @@ def template_dir() -> Path:
 
 
 def _latex_escape(text) -> str:
-    import re
+    """Plain text as LaTeX with its formulas in math mode (:func:`certify.render.texmath.tex_text`)."""
+    from .texmath import tex_text
 
-    s = _one_line(text)  # a blank line in a field must not end a paragraph or break a table
-    repl = {"\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "_": r"\_", "^": r"\^{}",
-            "#": r"\#", "$": r"\$", "%": r"\%", "&": r"\&", "~": r"\~{}"}
-    s = "".join(repl.get(ch, ch) for ch in s)
-    # readable mathematics for the few patterns certify writes
-    s = re.sub(r"chi\\_\\\{(\d+),(\d+)\\\}", r"$\\chi_{\1,\2}$", s)
-    s = re.sub(r"\bgamma\\_i\b", r"$\\gamma_i$", s)
-    s = re.sub(r"\bk\\_i\b", r"$k_i$", s)
-    s = s.replace("<=", r"$\le$").replace(">=", r"$\ge$").replace("!=", r"$\ne$")
-    # the default (OT1) text encoding has no <, >, |: set them in math mode
-    s = re.sub(r"(?<!\$\\[lg]e)(?<![\\$])([<>|])", r"$\1$", s)
-    s = s.replace("+/-", r"$\pm$")
-    s = re.sub(r"\bdelta\b", r"$\\delta$", s)
-    s = re.sub(r"(?<![\\$])\bpi\(", r"$\\pi$(", s)
-    return s
+    return tex_text(text)
 
 
 @lru_cache(maxsize=2)
@@ -67,7 +54,12 @@ def environment(kind: str):
         env = jinja2.Environment(block_start_string="<%", block_end_string="%>",
                                  variable_start_string="<<", variable_end_string=">>",
                                  comment_start_string="<#", comment_end_string="#>", **common)
+        from .texmath import tex_code, tex_math, tex_num
+
         env.filters["tex"] = _latex_escape
+        env.filters["code"] = tex_code
+        env.filters["math"] = tex_math
+        env.filters["num"] = tex_num
     else:
         env = jinja2.Environment(**common)
         env.filters["md"] = md_escape

@@ -150,7 +150,7 @@ class EllipticL(AnalyticL):
         bits = prec + cancel + 10
         M = terms_for(N, bits, sig_hi, t0, sig_lo)
         a = self.an(M)
-        wp = int(prec + cancel + 2 * math.log2(M + 2) + 30 + extra_bits)
+        wp = int(prec + cancel + math.log2(M + 2) + 14 + extra_bits)
         with workprec(wp):
             A = arb(N).sqrt() / (2 * arb.pi())
             T0 = arb(t0)
@@ -164,7 +164,7 @@ class EllipticL(AnalyticL):
                 xf = n / self.A_float
                 # |term| is about e^-x: it needs only enough relative precision
                 # for an absolute error 2^-wp (never below prec + guard bits)
-                wpn = max(int(prec + 2 * math.log2(M + 2) + 30 + extra_bits),
+                wpn = max(int(prec + math.log2(M + 2) + 14 + extra_bits),
                           wp - int(max(xf - 2, 0) * LOG2E))
                 with workprec(wpn):
                     x = arb(n) / A
@@ -217,28 +217,32 @@ class EllipticL(AnalyticL):
         return mean_spacing_of(self.conductor, 2, t)
 
     def prec_scale(self, t: float) -> float:
-        return 2 + self.conductor * (t + 2) ** 2
+        return 2 + math.sqrt(self.conductor) * (t + 2)
 
     # -- jets -------------------------------------------------------------------
 
     def lambda_series(self, center, length: int, prec: int) -> acb_series:
         """The Taylor series of Lambda(center + x) (arithmetic normalisation) to x^(length-1).
 
-        center is 1 (derivatives at the centre) or 3/2 (the edge point); the
-        tail is bounded on the disc |x| <= 1/2 by the same estimate and
-        turned into coefficient bounds by Cauchy's inequality (2^k).
+        center is 1 (derivatives at the centre), 3/2 (the edge point) or any
+        complex point (zero counting); the tail is bounded on the disc
+        |x| <= 1/2 by the same estimate (uniform in Im s) and turned into
+        coefficient bounds by Cauchy's inequality (2^k).  Away from the real
+        axis the terms cancel to about e^(-pi |Im s|/2): that many more bits.
         """
         N = self.conductor
-        c = arb(center)
-        sig_hi, sig_lo = float(center) + 0.5, float(center) - 0.5
-        bits = prec + length + 10
+        c = acb(center)
+        sc = float(c.real.mid())
+        cancel = math.pi * abs(float(c.imag.mid())) / 2 * LOG2E
+        sig_hi, sig_lo = sc + 0.5, sc - 0.5
+        bits = prec + length + 10 + cancel
         M = terms_for(N, bits, sig_hi, 1.0, sig_lo)
         a = self.an(M)
-        wp = int(prec + length * 2 + 2 * math.log2(M + 2) + 40)
+        wp = int(prec + length * 2 + 2 * math.log2(M + 2) + 40 + cancel)
         with workprec(wp), series_cap(length):
             A = arb(N).sqrt() / (2 * arb.pi())
-            s = acb_series([acb(c), acb(1)])
-            s2 = acb_series([acb(2 - c), acb(-1)])
+            s = acb_series([c, acb(1)])
+            s2 = acb_series([2 - c, acb(-1)])
             total = acb_series([acb(0)])
             for n in range(1, M + 1):
                 if a[n] == 0:

@@ -15,7 +15,7 @@ The Riemann zeta function is the character of conductor 1 (label 1, even):
 there Lambda is replaced by the entire function
 xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), whose zeros are exactly the
 non-trivial zeros of zeta, and the same formula holds with c_k the (real)
-coefficients of log xi(1 + x) (docs/method.md, section 2c).
+coefficients of log xi(1 + x) (docs/method.md, section 2b).
 
 The coefficients come from python-flint's power series of L(s, chi) (for
 zeta: of the deflated series zeta(s) - 1/(s - 1)) and of log Gamma; the alternating sum loses about m * log2(m) bits, so the
@@ -120,6 +120,17 @@ class DirichletL(AnalyticL):
         return int(self.chi.order()) <= 2
 
     def hardy_z(self, t: arb, prec: int) -> arb:
+        """Z(t, chi) by Arb (Hurwitz sums, cost ~ q), or for a large conductor a real
+        function with the same signs by the smoothed sum (cost ~ sqrt q; afe.py)."""
+        from .afe import AFE_MIN_CONDUCTOR, SmoothedL
+
+        hit = _grid_lookup(self.key, t, prec)
+        if hit is not None:
+            return hit
+        if self.conductor >= AFE_MIN_CONDUCTOR:
+            if getattr(self, "_smoothed", None) is None:
+                self._smoothed = SmoothedL(self.conductor, self.label, self.parity)
+            return self._smoothed.hardy_z(t, prec)
         with workprec(prec):
             return self.chi.hardy_z(t).real
 
@@ -131,7 +142,7 @@ class ZetaL(AnalyticL):
     """The Riemann zeta function as an :class:`AnalyticL` (the character of conductor 1).
 
     Lambda is xi(s) = s(s-1)/2 pi^(-s/2) Gamma(s/2) zeta(s), entire of order 1
-    with xi(1 - s) = xi(s) (docs/method.md, section 2c); Z(t) is Arb's Hardy
+    with xi(1 - s) = xi(s) (docs/method.md, section 2b); Z(t) is Arb's Hardy
     Z-function of the trivial character mod 1, e^{i theta(t)} zeta(1/2 + i t).
     """
 
@@ -154,6 +165,17 @@ class ZetaL(AnalyticL):
         return self._chi
 
     def hardy_z(self, t: arb, prec: int) -> arb:
+        """Z(t, chi) by Arb (Hurwitz sums, cost ~ q), or for a large conductor a real
+        function with the same signs by the smoothed sum (cost ~ sqrt q; afe.py)."""
+        from .afe import AFE_MIN_CONDUCTOR, SmoothedL
+
+        hit = _grid_lookup(self.key, t, prec)
+        if hit is not None:
+            return hit
+        if self.conductor >= AFE_MIN_CONDUCTOR:
+            if getattr(self, "_smoothed", None) is None:
+                self._smoothed = SmoothedL(self.conductor, self.label, self.parity)
+            return self._smoothed.hardy_z(t, prec)
         with workprec(prec):
             return self.chi.hardy_z(t).real
 
@@ -366,12 +388,111 @@ def conductor_power_sums(conductor: int, labels, count: int, abs_accuracy_bits: 
         f"could not be enclosed to 2^-{need} below {max_prec} bits")
 
 
-# measured crossover (bench/bench_moments.py): the batch costs about phi(q) Hurwitz
-# jets and one DFT, a single character about the same Hurwitz work; batching pays
-# as soon as a few characters of one conductor are wanted.
-BATCH_MIN_CHARACTERS = 2
+# measured crossover (bench/bench_large.py, loaded machine): the batch for all characters
+# of q = 61, 101, 211 costs about 3 one-character computations, so batching pays from
+# about 4 characters of one conductor.
+BATCH_MIN_CHARACTERS = 4
 
 
 def prefer_batch(conductor: int, wanted: int) -> bool:
     """Whether to compute ``wanted`` characters of ``conductor`` by the batched path."""
     return conductor >= 3 and wanted >= BATCH_MIN_CHARACTERS
+
+
+# --- Hardy Z of every character of a conductor on a common grid (docs/method.md, 3c) ----------
+
+_GRID: dict = {}  # (conductor, label) -> {t (float): (prec, Z ball)}
+_GRID_MAX = 400000
+
+
+def _grid_lookup(key, t: arb, prec: int):
+    d = _GRID.get(key)
+    if not d or t.rad() != 0:
+        return None
+    hit = d.get(float(t.mid()))
+    if hit is not None and hit[0] >= prec:
+        return hit[1]
+    return None
+
+
+def grid_points(conductor: int, height: float, fraction: float = 0.25) -> list[float]:
+    """The zero-search grid from 0 (as :func:`certify.spectrum.zeros.locate` walks it)."""
+    from .lfunction import mean_spacing_of
+
+    pts = [0.0]
+    a = 0.0
+    while a < height:
+        a = a + fraction * mean_spacing_of(conductor, 1, a)
+        pts.append(a)
+    return pts
+
+
+def round_height_to_grid(conductor: int, height: float, fraction: float = 0.25) -> float:
+    """The first grid point at or above ``height`` (0 stays 0)."""
+    if height <= 0:
+        return 0.0
+    return grid_points(conductor, height, fraction)[-1]
+
+
+def hardy_grid(conductor: int, labels, height: float, fraction: float = 0.25, prec: int = 64) -> int:
+    """Z(t, chi) for every label at every grid point up to ``height``, in one pass per point.
+
+    L(1/2 + it, chi) = q^(-s) sum_a chi(a) zeta(s, a/q) for all chi by one Hurwitz value per
+    class and one DFT (section 2c); the root numbers eps = tau(chi)/(i^kappa sqrt q) by the
+    DFT of e(a/q); then Z = Re(eps^(-1/2) (q/pi)^(it/2) Gamma(w)/|Gamma(w)| L), w = (1/2+it+kappa)/2
+    (docs/method.md, section 3c).  Values are kept for :meth:`DirichletL.hardy_z`.
+    Returns the number of grid points evaluated.
+    """
+    q = conductor
+    labels = [n for n in labels]
+    if len(_GRID) > _GRID_MAX:
+        _GRID.clear()
+    pts = [t for t in grid_points(q, height, fraction)
+           if any(float(t) not in _GRID.get((q, n), {}) for n in labels)]
+    if not pts:
+        return 0
+    axes, logs = _group_axes(q)
+    orders = [n for _, n in axes]
+    size = math.prod(orders)
+    index = {}
+    for a, vec in logs.items():
+        idx = 0
+        for l, n in zip(vec, orders):
+            idx = idx * n + l
+        index[a] = idx
+    expo = int(dirichlet_group(q).exponent())
+    where = {}
+    for n in labels:
+        chi = dirichlet_char(q, n)
+        idx = 0
+        for (gen, order) in axes:
+            m = int(chi.chi_exponent(gen)) * order // expo
+            idx = idx * order + (-m) % order
+        where[n] = (idx, int(chi.parity()))
+    p = prec + 16 + int(math.log2(q))
+    with workprec(p):
+        g = [acb(0)] * size
+        for a, idx in index.items():
+            g[idx] = acb.exp_pi_i(acb(2 * a) / q)
+        tau = _group_dft([g], axes)[0]
+        sq = arb(q).sqrt()
+        inv_sqrt_eps = {}
+        for n, (idx, par) in where.items():
+            ik = acb(0, 1) if par else acb(1)
+            inv_sqrt_eps[n] = 1 / (tau[idx] / (ik * sq)).sqrt()
+        logq_pi = (arb(q) / arb.pi()).log()
+        for t in pts:
+            tt = arb(t)  # a float is an exact dyadic number
+            s = acb(arb(1) / 2, tt)
+            v = [acb(0)] * size
+            for a, idx in index.items():
+                v[idx] = s.zeta(acb(a) / q)
+            Lq = _group_dft([v], axes)[0]
+            qs = (-s * arb(q).log()).exp()
+            rot = acb.exp_pi_i(acb(0, 0) + acb(tt * logq_pi / 2) / arb.pi())
+            for n, (idx, par) in where.items():
+                w = acb(arb(1) / 2 + par, tt) / 2
+                gw = w.gamma()
+                z = (inv_sqrt_eps[n] * rot * gw / abs(gw) * qs * Lq[idx]).real
+                _GRID.setdefault((q, n), {})[float(t)] = (prec, z)
+    return len(pts)

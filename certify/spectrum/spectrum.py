@@ -22,7 +22,8 @@ from dataclasses import dataclass, field
 
 from ..arith import acb, arb
 from ..errors import Inconsistent
-from .moments import central_value, conductor_power_sums, prefer_batch, zero_power_sums
+from .moments import (central_value, conductor_power_sums, hardy_grid, prefer_batch,
+                      zero_power_sums)
 from .zeros import ZeroList, find_zeros
 
 
@@ -94,6 +95,28 @@ class SpectrumStore:
             for n, (sums, cv) in conductor_power_sums(c, list(want), K, B).items():
                 self.batched[(c, n)] = (sums, B, cv)
                 done += 1
+        return done
+
+    def prefetch_grid(self, requests, fraction: float = 0.25) -> int:
+        """Hardy Z on the common search grid of each conductor, all characters at once.
+
+        ``requests`` holds (conductor, label, height).  Characters whose spectrum is
+        already held to that height are skipped; a conductor with several characters
+        left is evaluated by :func:`certify.spectrum.moments.hardy_grid` (one Hurwitz
+        value per class and a DFT per grid point), whose values the zero search then
+        reads.  Returns the number of grid points evaluated.
+        """
+        by_cond: dict = {}
+        for (c, n, h) in requests:
+            sp = self.spectra.get((c, n))
+            if h <= 0 or (sp is not None and sp.height >= h and sp.zeros.grid_fraction <= fraction):
+                continue
+            by_cond.setdefault(c, {})
+            by_cond[c][n] = max(by_cond[c].get(n, 0.0), h)
+        done = 0
+        for c, want in by_cond.items():
+            if prefer_batch(c, len(want)):
+                done += hardy_grid(c, list(want), max(want.values()), fraction)
         return done
 
     def _stored_moments(self, key, moments: int, bits: int) -> bool:

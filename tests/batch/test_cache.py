@@ -177,7 +177,7 @@ def test_view_keeps_zeros_below_height(spectrum_4):
 def test_cached_store_reuses_a_taller_spectrum(tmp_path):
     """A race served from a cache holding taller spectra than it asks for is still certified.
 
-    Check value: delta(4;3,1) ~ 0.9959 (Rubinstein and Sarnak, Chebyshev's bias,
+    Check value: delta(4;3,1) ~ 0.9959 ("Chebyshev's bias", Chebyshev's bias,
     Experimental Mathematics 3 (1994)); only the printed digits are asserted.
     """
     cache = SpectrumCache(str(tmp_path / "c.sqlite"))

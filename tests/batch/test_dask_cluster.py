@@ -56,7 +56,7 @@ def test_dask_cluster_matches_local_run(tmp_path, monkeypatch):
     assert remote["spectra"]["computed"] == local["spectra"]["computed"] > 0
     a, b = _enclosures(str(tmp_path / "local")), _enclosures(str(tmp_path / "dask"))
     assert len(a) == local["races"] and a == b
-    # and the shared check value: delta(4;3,1) ~ 0.9959 (Rubinstein and Sarnak,
+    # and the shared check value: delta(4;3,1) ~ 0.9959 ("Chebyshev's bias",
     # Chebyshev's bias, Experimental Mathematics 3 (1994)); the file holds delta(4;1,3) = 1 - it
     lo, hi, met = b["two-way_4_1_3.json"]
     assert met and str(1 - float(hi)).startswith("0.9959")

@@ -73,7 +73,7 @@ def test_latex_compiles_with_pdflatex(cert_4_3_1, tmp_path):
     # the fragment inside a paper of one's own
     (tmp_path / "frag.tex").write_text(render_latex_fragment(cert), encoding="utf-8")
     (tmp_path / "paper.tex").write_text(
-        "\\documentclass{article}\\usepackage{amsmath,booktabs}\n"
+        "\\documentclass{article}\\usepackage{amsmath,booktabs,siunitx}\n"
         "\\begin{document}\nAs certified:\n\n\\input{frag}\n\\end{document}\n")
     _compile(exe, tmp_path, "paper.tex")
 

@@ -228,7 +228,7 @@ def _check_tables(result, data, tmp_path):
     md = render_markdown(rows, result.digits_requested, "t")
     tex = render_latex(rows, result.digits_requested)
     import csv as _csv
-    for rec, r in zip(_csv.DictReader(csv_text.splitlines()[1:]), rows):
+    for rec, r in zip(_csv.DictReader(csv_text.splitlines()), rows):  # header on the first line
         lo, hi = (d.lower, d.upper) if not r.derived else (1 - d.upper, 1 - d.lower)
         assert Fraction(rec["lower"]) <= lo and hi <= Fraction(rec["upper"])
         assert Fraction(rec["width"]) >= hi - lo

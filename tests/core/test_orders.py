@@ -97,12 +97,29 @@ def test_cli_order(tmp_path, capsys):
     import json
 
     data = json.loads(out.read_text())
-    assert data["question"]["label"] == "delta(8;3,5,7)"
-    assert {h["name"] for h in data["hypotheses"]} == {"GRH", "LI"}
+    assert data["kind"] == "order-race" and data["question"]["label"] == "delta(8;3,5,7)"
+    assert [h["name"] for h in data["hypotheses"]] == ["GRH", "LI"]
     assert [e["name"] for e in data["error_budget"]][:2] == ["aliasing", "frequency truncation"]
-    lo, hi = Fraction(data["density"]["lower"]), Fraction(data["density"]["upper"])
+    lo = Fraction(data["answer"]["enclosure"]["lower"])
+    hi = Fraction(data["answer"]["enclosure"]["upper"])
     assert hi - lo <= Fraction(1, 10**4)
+    from certify.certificate.model import read_document
+
+    read_document(str(out))  # validates against the schema
     assert "Conditional result" in capsys.readouterr().out
     for argv in (["order", "8", "3", "3", "5"], ["order", "8", "2", "3", "5"], ["order", "x", "1", "3", "5"],
                  ["order", "8", "3", "5"]):
         assert main(argv) == 2
+
+
+@pytest.mark.slow
+def test_four_classes_mod5_all_orderings():
+    # d = 3: every ordering of 1, 2, 3, 4 mod 5; sum to 1, marginals against two-way races,
+    # and the exact symmetries (multiply by the square 4; invert) between orderings
+    fam = certify_orderings(5, (1, 2, 3, 4), 3, store=STORE)
+    assert len(fam.results) == 24 and fam.ok
+    assert all(r.density.width <= Fraction(1, 1000) for r in fam.results)
+    for r in fam.results:
+        cl = r.question.classes
+        for image in (tuple(4 * c % 5 for c in cl), tuple(pow(c, -1, 5) for c in cl)):
+            assert _meet(r.density, fam.result(image).density)

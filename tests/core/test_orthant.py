@@ -177,3 +177,29 @@ def test_tail_bound_dominates_the_lattice_sum():
                 phi *= j0(2 * abs(a * k1 * eps[0] + b * k2 * eps[1]) * w)
             direct += c * abs(phi)
     assert bound.is_finite() and direct <= float(bound.upper())
+
+
+@pytest.mark.slow
+def test_truncated_mod8_law_against_bivariate_quadrature():
+    # the law of delta(8;3,5,7) truncated to its zeros below height 30 (no residual):
+    # the orthant engine against scipy quadrature of the inversion formula, same law
+    from certify.orders import _gather, plan_chain
+    from certify.race.order import order_groups, ordering
+    from certify.spectrum.spectrum import SpectrumStore
+
+    store = SpectrumStore()
+    q = ordering(8, 3, 5, 7)
+    plan = plan_chain(q, 4, store)
+    _, var = _gather(q, order_groups(q), plan, store, plan.prec)
+    groups, vecs, ws = [], [], []
+    for g in var.groups:
+        keep = tuple(w for w in g.weights if float(w.mid()) > 1 / 30.0)
+        groups.append(VectorGroup(g.vector, keep))
+        v = tuple(complex(float(c.real.mid()), float(c.imag.mid())) for c in g.vector)
+        vecs += [v] * len(keep)
+        ws += [float(w.mid()) for w in keep]
+    trunc = VectorVariable(var.mu, tuple(groups))
+    out = orthant_enclosure(trunc, 1e-5, signs=[(1, 1)])[(1, 1)]
+    ref = _bivariate_reference((0.0, 0.0), vecs, ws, T=60.0)
+    assert float(out.enclosure.lower) - 1e-6 <= ref <= float(out.enclosure.upper) + 1e-6
+    assert out.enclosure.width < 1e-5

@@ -53,7 +53,7 @@ def test_minimal_discriminant_degree_and_conductor(q, A, B):
 
 
 def test_kodaira_table():
-    # Tate's algorithm table for p >= 5 (Papadopoulos 1993)
+    # Tate's algorithm table for p >= 5 (J. Number Theory 44 (1993))
     assert kodaira_type(0, 0, 3)[:2] == ("I3", "multiplicative")
     assert kodaira_type(1, 1, 2)[0] == "II"
     assert kodaira_type(1, 2, 3)[0] == "III"

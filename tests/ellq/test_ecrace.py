@@ -56,3 +56,30 @@ def test_cli_json_plot(tmp_path, capsys):
     assert {"hypotheses", "error_budget", "parameters", "density", "observed"} <= set(d)
     assert fig.read_bytes()[:4] == b"\x89PNG"
     assert "out of reach" in capsys.readouterr().out
+
+
+@pytest.mark.slow
+def test_mean_shift_with_rank_four_curves():
+    """Conductors 11, 37, 389, 5077 (a-invariants from memory): ranks 0, 1, 2, 3,
+    means 1, -1, -3, -5, and the density of the positive set falls with the rank.
+    Cantelli's inequality with the exact variance brackets each density independently."""
+    out = []
+    for a, rank in (([0, -1, 1, -10, -20], 0), ([0, 0, 1, -1, 0], 1), ([0, 1, 1, -2, 0], 2),
+                    ([0, 0, 1, -7, 6], 3)):
+        r = certify_ec_race(a, 4)
+        assert r.rank.rank == rank and r.mean == 1 - 2 * rank and r.target_met
+        assert r.rank.certified == (rank <= 1)
+        v = float(r.variance.upper())
+        m = float(r.mean)
+        if m > 0:
+            assert float(r.density.lower) >= 1 - v / (v + m * m) - 1e-3
+        else:
+            assert float(r.density.upper) <= v / (v + m * m) + 1e-3
+        if rank == 2:
+            h = [h for h in r.hypotheses if h.name == "rank"][0]
+            assert h.status == "assumed"
+        if rank == 3:
+            h = [h for h in r.hypotheses if h.name == "rank"][0]
+            assert h.status == "theorem" and "Math. Comp. 44 (1985)" in h.reference
+        out.append(float(r.density.mid))
+    assert out == sorted(out, reverse=True)

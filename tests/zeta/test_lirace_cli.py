@@ -16,6 +16,7 @@ def test_lirace_screen(capsys):
     assert "delta(pi<li)" in out and "pi(x) < li(x)" in out
     assert "1 - delta in [2.6299" in out and "significant digits certified: 2.6299" in out
     assert "RH:" in out and "LI:" in out and "Conditional result" in out
+    assert "sign changes found there, so RH holds to that height" in out
     for term in ("aliasing", "frequency truncation", "residual zeros", "rounding"):
         assert term in out
 
@@ -35,6 +36,8 @@ def test_lirace_json_stdout(capsys):
     assert lo <= Fraction(d["density"]["upper"]) and Fraction(d["density"]["lower"]) <= hi
     assert (hi - lo) / lo < Fraction(1, 10**8)
     assert d["mean"] == "-1" and d["rounds"][0]["digits"] == 10
+    rh = d["rh_to_height"]
+    assert rh["verified"] and rh["count"] == rh["sign_changes"] > 20
 
 
 def test_lirace_json_file_and_absolute_digits(tmp_path, capsys):

@@ -22,7 +22,7 @@ from certify.spectrum.zeros import find_zeros
 
 
 @lru_cache(maxsize=4)
-def _mp_log_xi_taylor(count: int, dps: int = 50):
+def _mp_log_xi_taylor(count: int, dps: int = 35):
     """Taylor coefficients of log xi(s) at s = 1 by mpmath's numerical differentiation."""
     with mpmath.workdps(dps):
         def log_xi(s):

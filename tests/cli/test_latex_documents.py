@@ -1,0 +1,120 @@
+"""The LaTeX documents compile, set their formulas as mathematics, and are looked at as pages.
+
+* the standalone certificate (longtable hypotheses that break across pages, siunitx numbers);
+* the fragment, ``\\input`` into journal-like classes (amsart; a two-column article);
+* no text-mode ASCII formula is left (pi(, sqrt(, <=, +/-, 1e-3, x_a outside math);
+* commands and file names are printed exactly (typewriter glyphs, no ligature);
+* every page is rendered to PNG with pdftoppm (the check a person repeats by viewing them:
+  docs/certificates.md, "Looking at the pages").
+"""
+
+from __future__ import annotations
+
+import os
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+
+from certify.cli import main
+from certify.render.texmath import tex_code, tex_text
+
+
+def _tool(name):
+    exe = shutil.which(name)
+    if exe is None:
+        if os.environ.get("CI", "").lower() in ("1", "true", "yes"):
+            pytest.fail(f"{name} is missing on CI (.ci/run installs texlive and poppler-utils)")
+        pytest.skip(f"{name} is not installed")
+    return exe
+
+
+def _compile(folder: Path, name: str) -> Path:
+    proc = subprocess.run([_tool("pdflatex"), "-interaction=nonstopmode", "-halt-on-error", name],
+                          cwd=folder, capture_output=True, text=True, timeout=180)
+    assert proc.returncode == 0, proc.stdout[-3000:]
+    log = (folder / (Path(name).stem + ".log")).read_text(errors="replace")
+    assert "Missing character" not in log
+    return folder / (Path(name).stem + ".pdf")
+
+
+def _pages(pdf: Path) -> list[Path]:
+    subprocess.run([_tool("pdftoppm"), "-r", "40", "-png", str(pdf), str(pdf.with_suffix(""))],
+                   check=True, timeout=120)
+    pages = sorted(pdf.parent.glob(pdf.stem + "-*.png"))
+    assert pages and all(p.read_bytes()[:4] == b"\x89PNG" and p.stat().st_size > 2000 for p in pages)
+    return pages
+
+
+def _prose(tex: str) -> str:
+    """The text outside math, \\texttt, \\num, comments and the preamble."""
+    s = tex.split("\\begin{document}", 1)[-1]
+    s = re.sub(r"(?m)(?<!\\)%.*$", "", s)
+    s = re.sub(r"\\\[.*?\\\]", " ", s, flags=re.S)
+    s = re.sub(r"(?<!\\)\$[^$]*\$", " ", s)
+    s = re.sub(r"\\texttt\{(?:[^{}]|\{\})*\}", " ", s)
+    s = re.sub(r"\\num\{[^{}]*\}", " ", s)
+    s = re.sub(r"\\begin\{(?:longtable|tabular\*?)\}\{[^\n]*", " ", s)
+    return s
+
+
+ASCII_FORMULAS = [r"\bpi\(", r"\bsqrt\(", r"<=", r">=", r"\+/-", r"\d(?:\.\d+)?e-\d", r"\bchi\\_",
+                  r"\bgamma\^", r"\|", r"\bw\\_\w", r"->"]
+
+
+@pytest.fixture(scope="module")
+def documents(tmp_path_factory):
+    out = tmp_path_factory.mktemp("latex")
+    assert main(["certificate", "4", "3", "1", "--digits", "6", "--out", str(out), "--name",
+                 "delta_4_3_1", "--formats", "tex,fragment"]) == 0
+    return out
+
+
+def test_no_ascii_formula_left(documents):
+    for name in ("delta_4_3_1.tex", "delta_4_3_1-fragment.tex"):
+        prose = _prose((documents / name).read_text())
+        for pat in ASCII_FORMULAS:
+            found = re.findall(r".{0,30}" + pat + r".{0,30}", prose)
+            assert not found, f"{name}: text-mode ASCII formula {pat!r}: {found[:3]}"
+
+
+def test_standalone_compiles_and_renders(documents):
+    pdf = _compile(documents, "delta_4_3_1.tex")
+    pages = _pages(pdf)
+    assert len(pages) >= 2
+    tex = (documents / "delta_4_3_1.tex").read_text()
+    assert r"\begin{longtable}" in tex and r"\usepackage{siunitx}" in tex
+
+
+@pytest.mark.parametrize("cls", ["amsart", "article-twocolumn"])
+def test_fragment_inputs_into_a_journal_class(documents, cls):
+    head = {"amsart": r"\documentclass{amsart}",
+            "article-twocolumn": r"\documentclass[twocolumn]{article}"}[cls]
+    (documents / f"paper-{cls}.tex").write_text(
+        head + "\n\\usepackage{amsmath,booktabs,siunitx}\n\\begin{document}\n"
+        "Text before.\n\n\\input{delta_4_3_1-fragment}\n\nText after, in the same font.\n"
+        "\\end{document}\n")
+    pdf = _compile(documents, f"paper-{cls}.tex")
+    _pages(pdf)
+    log = (documents / f"paper-{cls}.log").read_text(errors="replace")
+    # the fragment fits its column: no overfull box wider than a few points
+    for m in re.finditer(r"Overfull \\hbox \(([\d.]+)pt too wide\)", log):
+        assert float(m.group(1)) < 20, m.group(0)
+
+
+def test_commands_and_file_names_are_shown_exactly():
+    """Typewriter glyphs by code: what the PDF shows is the command, character for character."""
+    s = tex_code("certify verify delta_4_3_1.json --json -")
+    assert r"\char95{}" in s and "-{}-{}json" in s and r"\_" not in s
+    assert tex_text("re-check with `certify render c_1.json`").count(r"\texttt{") == 1
+
+
+def test_blank_lines_and_specials_in_a_field_do_not_break_the_latex(tmp_path):
+    text = "first line\n\nsecond paragraph with 50% & $5 #1 ~ {braces} \\ and <b>html</b>"
+    out = tex_text(text)
+    assert "\n" not in out and "\\par" not in out
+    (tmp_path / "t.tex").write_text("\\documentclass{article}\\usepackage{amsmath}\\begin{document}\n"
+                                    + out + "\n\\end{document}\n")
+    _compile(tmp_path, "t.tex")
