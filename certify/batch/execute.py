@@ -272,6 +272,43 @@ class InlineExecutor:
         pass
 
 
+def die_with_parent(parent_pid: int | None = None) -> None:
+    """Make this (worker) process end when its coordinating process ends.
+
+    On Linux the kernel sends SIGKILL when the parent dies (``PR_SET_PDEATHSIG``);
+    everywhere, a daemon thread also checks every second that the parent is still
+    the one that started us and exits otherwise (a coordinator killed by SIGKILL
+    cannot clean up its pool, so the workers must notice by themselves).
+    """
+    import signal
+
+    parent = parent_pid if parent_pid is not None else os.getppid()
+    try:
+        import ctypes
+
+        libc = ctypes.CDLL(None, use_errno=True)
+        PR_SET_PDEATHSIG = 1
+        libc.prctl(PR_SET_PDEATHSIG, signal.SIGKILL, 0, 0, 0)
+    except (OSError, AttributeError):
+        pass
+    if os.getppid() != parent:  # the parent died before prctl took effect
+        os._exit(1)
+
+    def watch():
+        while True:
+            time.sleep(1.0)
+            if os.getppid() != parent:
+                os._exit(1)
+
+    threading.Thread(target=watch, name="certify-parent-watch", daemon=True).start()
+
+
+def _worker_init(limit: int, parent_pid: int) -> None:
+    """Worker initializer: die with the coordinator, cap the address space."""
+    die_with_parent(parent_pid)
+    _limit_memory(limit)
+
+
 def _limit_memory(limit: int) -> None:
     """Worker initializer: cap the address space, so a runaway race raises MemoryError
     in its own worker (reported as not certified) instead of calling the system's
@@ -318,8 +355,8 @@ class ProcessExecutor:
 
         self.pool = self._cf.ProcessPoolExecutor(max_workers=self.workers,
                                                  mp_context=mp.get_context("spawn"),
-                                                 initializer=_limit_memory,
-                                                 initargs=(self.memory_limit,))
+                                                 initializer=_worker_init,
+                                                 initargs=(self.memory_limit, os.getpid()))
 
     def is_broken(self, exc) -> bool:
         from concurrent.futures.process import BrokenProcessPool
@@ -455,61 +492,38 @@ def run_all(executor, fn, arglists: list, window: int | None = None, retries: in
 
 # --- progress ------------------------------------------------------------------
 
-def _fmt_seconds(s: float) -> str:
-    s = max(0, int(round(s)))
-    if s >= 3600:
-        return f"{s // 3600}h{(s % 3600) // 60:02d}m"
-    if s >= 60:
-        return f"{s // 60}m{s % 60:02d}s"
-    return f"{s}s"
-
-
 class Progress:
-    """One status line on stderr: what is done, elapsed and estimated time left.
+    """A progress bar on standard error (tqdm): items done, elapsed time and time left.
 
-    On a terminal the line is rewritten in place; otherwise a line is printed
-    every ``every`` seconds.  Time left is extrapolated from the work done,
-    weighted by each item's estimated cost.
+    Shown only on a terminal (never in a log or a pipe); time left is
+    extrapolated from the work done, weighted by each item's estimated cost
+    (the bar's total is the total cost).
     """
 
     def __init__(self, phase: str, total_items: int, total_cost: float | None = None,
-                 unit: str = "races", enabled: bool = True, every: float = 15.0, stream=None):
-        self.phase, self.total, self.unit = phase, total_items, unit
-        self.total_cost = total_cost if total_cost else float(total_items)
-        self.done = 0
-        self.cost_done = 0.0
-        self.t0 = time.time()
-        self.enabled = enabled and total_items > 0
-        self.stream = stream or sys.stderr
-        self.tty = hasattr(self.stream, "isatty") and self.stream.isatty()
-        self.every = every
-        self._last = 0.0
+                 unit: str = "races", enabled: bool = True, stream=None):
+        from tqdm import tqdm
 
-    def line(self) -> str:
-        el = time.time() - self.t0
-        frac = self.cost_done / self.total_cost if self.total_cost else 1.0
-        left = el * (1 - frac) / frac if frac > 0 else float("nan")
-        left_s = _fmt_seconds(left) if frac > 0 else "?"
-        return (f"{self.phase}: {self.done}/{self.total} {self.unit} "
-                f"({100 * frac:.0f}%), {_fmt_seconds(el)} elapsed, ~{left_s} left")
+        self.phase, self.total, self.unit = phase, total_items, unit
+        self.total_cost = float(total_cost) if total_cost else float(total_items)
+        self.done = 0
+        self.stream = stream or sys.stderr
+        tty = hasattr(self.stream, "isatty") and self.stream.isatty()
+        self.enabled = bool(enabled and total_items > 0 and tty)
+        self.bar = tqdm(total=self.total_cost, desc=phase, file=self.stream, leave=True,
+                        disable=not self.enabled, dynamic_ncols=True,
+                        bar_format="{desc}: {percentage:3.0f}%|{bar}| {postfix} "
+                                   "[{elapsed}<{remaining}]")
+        self._post()
+
+    def _post(self) -> None:
+        if self.enabled:
+            self.bar.set_postfix_str(f"{self.done}/{self.total} {self.unit}", refresh=False)
 
     def advance(self, n: int = 1, cost: float | None = None) -> None:
         self.done += n
-        self.cost_done += cost if cost is not None else n
-        if not self.enabled:
-            return
-        now = time.time()
-        if self.tty and now - self._last > 0.2:
-            self.stream.write("\r" + self.line().ljust(79))
-            self.stream.flush()
-            self._last = now
-        elif not self.tty and now - self._last > self.every:
-            self.stream.write(self.line() + "\n")
-            self.stream.flush()
-            self._last = now
+        self._post()
+        self.bar.update(cost if cost is not None else n * self.total_cost / max(self.total, 1))
 
     def finish(self) -> None:
-        if not self.enabled:
-            return
-        self.stream.write(("\r" if self.tty else "") + self.line().ljust(79) + "\n")
-        self.stream.flush()
+        self.bar.close()

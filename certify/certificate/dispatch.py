@@ -40,6 +40,10 @@ def verify_any(cert: Certificate) -> VerifyReport:
         from .curves import verify_curve
 
         return verify_curve(cert)
+    if cert.kind == "ecq-race":
+        from .ecq import verify_ecq
+
+        return verify_ecq(cert)
     raise BadInput(f"no verifier for kind {cert.kind!r}")
 
 

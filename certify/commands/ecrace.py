@@ -41,6 +41,8 @@ def screen(result, obs=None) -> str:
     lines.append("  hypotheses:")
     for h in result.hypotheses:
         lines.append(f"    {h.name} ({h.status}): {h.statement}")
+    if "grh_verified_line" in result.parameters:
+        lines.append(f"    evidence: {result.parameters['grh_verified_line']}")
     if obs is not None:
         lines.append(f"  observed to x = {obs.bound:.3g} (an observation, not certified): "
                      f"normalised sum {obs.final_value:+.4f}, positive on "
@@ -75,7 +77,20 @@ def run_ecrace(args) -> int:
         if not (10 <= bound <= MAX_OBSERVE):
             raise BadInput(f"--observe must be 0 or between 10 and {MAX_OBSERVE} (got {bound})")
     cmd = "certify " + " ".join(shlex.quote(a) for a in sys.argv[1:])
-    result = certify_ec_race(E, digits, command_line=cmd)
+    try:
+        grh = float(args.grh_height)
+    except ValueError:
+        raise BadInput(f"--grh-height must be a number, got {args.grh_height!r}") from None
+    if not (0 <= grh <= 200):
+        raise BadInput(f"--grh-height must lie in [0, 200] (got {grh:g})")
+    t_run = __import__("time").time()
+    result = certify_ec_race(E, digits, command_line=cmd, grh_height=grh)
+    if args.certificate:
+        from ..certificate.ecq import ecq_certificate
+        from ..certificate.model import write_certificate
+
+        write_certificate(ecq_certificate(result, grh, __import__("time").time() - t_run),
+                          args.certificate)
     if bound:
         obs = observe(E, bound)
     if args.plot:
@@ -115,5 +130,10 @@ def register(sub) -> None:
     p.add_argument("--observe", default="1000000", metavar="X",
                    help="also compute the observed race from the a_p up to X (default 10^6; 0 to skip)")
     p.add_argument("--plot", metavar="PATH", help="figure of the observed race beside the limit law (PNG)")
+    p.add_argument("--grh-height", default="0", metavar="T",
+                   help="also verify GRH for L(E,s) up to height T (at most the isolation height) by "
+                        "counting zeros with the argument principle (slow; default 0: skip)")
     p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--certificate", metavar="PATH",
+                   help="write a certificate (kind ecq-race) that `certify verify` re-checks by a recount")
     p.set_defaults(func=run_ecrace)

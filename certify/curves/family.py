@@ -310,17 +310,29 @@ def plot_families(results: list[FamilyResult], path: str) -> bool:
         import matplotlib.pyplot as plt
     except ImportError:
         return False
+    from matplotlib.ticker import MaxNLocator
+
     k = len(results)
     fig, axes = plt.subplots(1, k, figsize=(4.5 * k, 3.6), squeeze=False)
     for ax, r in zip(axes[0], results):
         mids = [float(m.density.mid) for m in r.certified]
-        ax.hist(mids, bins=40, range=(0, 1), color="#4477aa", edgecolor="white")
         rad = r.c / r.twist_degree
-        ax.axvspan(0.5 - rad, 0.5 + rad, color="#ddcc77", alpha=0.3, label=f"1/2 ± {r.c:g}/d")
+        # the range the densities and the band 1/2 +- c/d occupy (within [0, 1]), not all of [0, 1]
+        lo = max(0.0, min(mids + [0.5 - rad]))
+        hi = min(1.0, max(mids + [0.5 + rad]))
+        pad = 0.03 * (hi - lo or 1.0)
+        lo, hi = max(0.0, lo - pad), min(1.0, hi + pad)
+        bins = max(5, min(40, int(round(2 * len(mids) ** 0.5)) or 5))
+        ax.hist(mids, bins=bins, range=(lo, hi), color="#4477aa", edgecolor="white")
+        ax.axvspan(max(lo, 0.5 - rad), min(hi, 0.5 + rad), color="#ddcc77", alpha=0.3,
+                   label=rf"$\frac{{1}}{{2}} \pm {r.c:g}/d$")
         ax.axvline(0.5, color="black", lw=0.8)
-        ax.set_title(f"d = {r.twist_degree}: {len(mids)} twists over {r.base_curve.field.describe()}", fontsize=9)
-        ax.set_xlabel("certified density (midpoint)")
-        ax.set_ylabel("members")
+        ax.set_xlim(lo, hi)
+        ax.yaxis.set_major_locator(MaxNLocator(integer=True))  # counts are integers
+        ax.set_title(f"$d = {r.twist_degree}$: {len(mids)} twists over {r.base_curve.field.describe()}",
+                     fontsize=9)
+        ax.set_xlabel(r"certified density $\delta(E_f)$ (midpoint of the enclosure)")
+        ax.set_ylabel("number of twists $E_f$")
         ax.legend(fontsize=7)
     fig.suptitle("Trace-race densities of quadratic twists (conditional on LI)", fontsize=10)
     fig.tight_layout()

@@ -34,7 +34,7 @@ from .traces import frobenius_sum
 
 __all__ = [
     "LPolynomial", "RootData", "newton_coefficients", "power_sums", "l_polynomial",
-    "from_coefficients", "exact_multiplicity",
+    "from_coefficients", "exact_multiplicity", "root_kind", "REAL_KINDS",
 ]
 
 
@@ -72,6 +72,34 @@ def exact_multiplicity(coeffs: list[int], factor: list[int]) -> int:
     return m
 
 
+#: The kinds of inverse roots: gamma = +q, gamma = -q, or a non-real gamma (one per conjugate pair).
+REAL_KINDS = ("plus", "minus")
+
+
+def root_kind(factor, q: int) -> str:
+    """Exactly which kind of inverse root an irreducible factor of L(E, u) in Z[u] carries.
+
+    A real inverse root has modulus q, so it is +q or -q and its factor is exactly
+    1 - q u ("plus") or 1 + q u ("minus") (up to sign); any other irreducible factor has
+    no real root ("complex": its roots come in conjugate pairs).  The decision reads the
+    integer coefficients only, never a ball's width.  This is the one place where the
+    curves code decides whether a root is real; every user (limit law, mean term, LI and
+    relation paths, observed sums, twist families) reads :attr:`RootData.kind`.
+    """
+    f = [int(c) for c in factor]
+    while len(f) > 1 and f[-1] == 0:
+        f.pop()
+    if f and f[0] < 0:
+        f = [-c for c in f]
+    if f == [1, -q]:
+        return "plus"
+    if f == [1, q]:
+        return "minus"
+    if len(f) == 2:
+        raise Inconsistent(f"L(E, u) has a linear factor {tuple(f)} whose root is not +-1/q")
+    return "complex"
+
+
 @dataclass(frozen=True)
 class RootData:
     """An inverse root gamma = q e^(i theta) with certified enclosures.
@@ -79,6 +107,8 @@ class RootData:
     ``factor`` is the index of the irreducible factor of L in Z[u] it belongs to,
     ``multiplicity`` that factor's exponent, ``torsion_order`` m > 0 when gamma / q
     is a primitive m-th root of unity (exactly: the factor is cyclotomic in q u).
+    ``kind`` is "plus" (gamma = q), "minus" (gamma = -q) or "complex" (a conjugate pair,
+    this being the representative with Im > 0), decided exactly by :func:`root_kind`.
     """
 
     gamma: acb
@@ -86,6 +116,11 @@ class RootData:
     multiplicity: int
     factor: int
     torsion_order: int
+    kind: str = "complex"
+
+    @property
+    def is_real(self) -> bool:
+        return self.kind in REAL_KINDS
 
 
 @dataclass(frozen=True)
@@ -128,7 +163,7 @@ class LPolynomial:
                 {"real": [str(r.gamma.real.mid()), str(r.gamma.real.rad())],
                  "imag": [str(r.gamma.imag.mid()), str(r.gamma.imag.rad())],
                  "angle_over_pi": str(r.angle / arb.pi()), "multiplicity": r.multiplicity,
-                 "torsion_order": r.torsion_order}
+                 "torsion_order": r.torsion_order, "kind": r.kind}
                 for r in self.roots
             ],
         }
@@ -157,11 +192,10 @@ def _roots(coeffs: list[int], q: int, factors, prec: int = 128) -> tuple[tuple[R
     max_err = 0.0
     for idx, (f, e) in enumerate(factors):
         tors = _torsion_order(list(f), q)
-        if len(f) == 2:
-            if abs(f[1]) != q:
-                raise Inconsistent(f"L(E, u) has a linear factor {f} whose root is not +-1/q")
-            gamma = -f[1]
-            out.append(RootData(acb(gamma), arb(0) if gamma > 0 else arb.pi(), e, idx, tors))
+        kind = root_kind(f, q)
+        if kind in REAL_KINDS:
+            gamma = q if kind == "plus" else -q
+            out.append(RootData(acb(gamma), arb(0) if gamma > 0 else arb.pi(), e, idx, tors, kind))
             continue
         if (len(f) - 1) % 2:
             raise Inconsistent("an irreducible factor of odd degree >= 3 cannot have all roots of modulus q")

@@ -30,7 +30,7 @@ from flint import fmpz_mat
 
 from ..arith import acb, arb, fmpq, workprec
 from ..density.bessel import BesselVariable, density_enclosure
-from ..errors import BadInput, PrecisionExhausted
+from ..errors import BadInput, Inconsistent, PrecisionExhausted
 from ..result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
 from .lpoly import LPolynomial
 from .model import EllipticCurve
@@ -41,9 +41,10 @@ __all__ = ["RaceVariable", "TraceRaceResult", "race_variable", "relation_search"
 
 MODES = ("cumulative", "degree")
 
-#: Largest degree of the resultant polynomial built to confirm a relation exactly; beyond it
-#: a relation is kept only after a 150-bit numerical check (recorded in the hypotheses).
-EXACT_RELATION_DEGREE = 40
+#: Largest working precision (bits) for the exact confirmation of a relation among the angles
+#: (certify.ffield.torus.confirm_relation: a separation bound for algebraic integers); beyond it
+#: the race is not certified.  Nothing is ever kept on numerical evidence alone.
+EXACT_RELATION_BITS = 16_384
 
 
 @dataclass(frozen=True)
@@ -83,19 +84,26 @@ def race_variable(L: LPolynomial, mode: str, prec: int = 128) -> RaceVariable:
             for r in L.roots:
                 if not r.torsion_order:
                     continue
-                real = r.angle.is_exact() and (r.angle == 0 or r.angle == arb.pi())
-                zeta = acb(1) if (real and r.angle == 0) else (acb(-1) if real else (acb(0, r.angle)).exp())
-                # exact powers of a root of unity: zeta^res from the angle 2 pi a / m
+                # r.kind is decided exactly from the factor (lpoly.root_kind): a real root
+                # (+q or -q) has no conjugate partner and is counted once
+                if r.kind == "plus":
+                    zeta = acb(1)
+                elif r.kind == "minus":
+                    zeta = acb(-1)
+                else:
+                    zeta = (acb(0, r.angle)).exp()
                 term = zeta**res
                 if mode == "cumulative":
                     term = term / (1 - zeta.conjugate() / sq)
-                contrib = term.real if real else 2 * term.real
+                contrib = term.real if r.is_real else 2 * term.real
                 m = m - r.multiplicity * contrib
             mus.append(m)
         weights, angles, mults = [], [], []
         for r in L.roots:
             if r.torsion_order:
                 continue
+            if r.is_real:  # pragma: no cover - +-q are torsion (orders 1, 2) by construction
+                raise Inconsistent("a real inverse root was not recognised as torsion")
             if mode == "cumulative":
                 w = 2 / abs(1 - (acb(0, -r.angle)).exp() / sq)
             else:
@@ -346,15 +354,16 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
     ]
     if k == 0:
         encs = []
-        for m in var.mu:
+        for res, m in enumerate(var.mu):
             if m > 0:
                 encs.append(Enclosure(Fraction(1), Fraction(1)))
             elif m < 0:
                 encs.append(Enclosure(Fraction(0), Fraction(0)))
             else:
                 raise PrecisionExhausted(
-                    "not certified: the limit of the normalised sum is 0 on a progression of X, "
-                    "so its sign is decided by lower-order terms")
+                    f"not certified: the limit of the normalised sum is 0 on the progression "
+                    f"X = {res} mod {var.period} (every inverse root is q times a root of unity), "
+                    "so its sign there is decided by lower-order terms")
         hyps.append(Hypothesis("LI", "no non-torsion inverse roots: nothing to assume", "verified",
                                ("every inverse root is q times a root of unity (exact cyclotomic factors)",)))
         dens, budget = _combine(encs)
@@ -398,7 +407,7 @@ def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe
 
     With P the period, X = r + P s and y_j = P theta_j / 2 pi, the orbit {s y} fills the
     closed subgroup H cut out by the integer relations among 1/P, x_1, .., x_J (found by
-    LLL, each confirmed exactly: prod (gamma_j/q)^(P k_j) = 1 by resultants), and on the
+    LLL, each confirmed exactly: prod (gamma_j/q)^(P k_j) = 1 by a separation bound), and on the
     class r the limit function is G_r(y) = mu_r + sum_j Re(B_j e^(2 pi i (r x_j + y_j))).
     The natural density along the class lies between the Haar measures of {G_r > 0} and
     {G_r >= 0} on H (equidistribution on H, portmanteau); box subdivision encloses both.
@@ -406,7 +415,7 @@ def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe
     from flint import fmpz_poly
 
     from ..ffield.torus import (TrigFunction, confirm_relation, density_on_closure, find_relations,
-                                identify_root, orbit_closure)
+                                identify_root, orbit_closure, vanishing_coset)
 
     q = L.q
     P = var.period
@@ -420,22 +429,20 @@ def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe
     rev = fmpz_poly(list(reversed(L.coeffs)))
     exact = [identify_root(r.gamma, rev) for r in nt]
     rels = []
-    unconfirmed = []
     for k in cands:
         if not any(k[1:]):
             continue  # k_0 alone: P * (1/P) is an integer, no information on the angles
         kk = [0] + [P * kj for kj in k[1:]]
-        verdict = confirm_relation(exact, kk, q * q, max_degree=EXACT_RELATION_DEGREE)
-        if verdict == 1:
-            raise PrecisionExhausted(f"not certified: the candidate relation {k} among the angles is false")
+        verdict = confirm_relation(exact, kk, q * q, max_bits=EXACT_RELATION_BITS)
         if verdict is None:
-            # the resultant would be too large: keep the relation, verified only numerically
-            with workprec(512):
-                angs = [ex.ball(512).arg() for ex in exact]
-                s_ = sum((arb(kj) * a for kj, a in zip(k[1:], angs)), arb(0)) * P / (2 * arb.pi())
-                if not (abs(s_ - arb(round(float(s_.mid())))) < arb(2) ** -150):
-                    raise PrecisionExhausted(f"not certified: the candidate relation {k} fails at 512 bits")
-            unconfirmed.append(list(k[1:]))
+            raise PrecisionExhausted(
+                f"not certified: the candidate relation {k} among the angles could not be confirmed or "
+                f"refuted exactly within {EXACT_RELATION_BITS} bits (minimal "
+                f"polynomials of degrees {[ex.poly().degree() for ex, kj in zip(exact, k[1:]) if kj]})")
+        if verdict != 0:
+            # REFUTED (prod (gamma_j/q)^(P k_j) != +-1) or = -1: k is not a relation of 1/P, x_1, ..
+            raise PrecisionExhausted(f"not certified: the candidate relation {k} among the angles is false "
+                                     "(exact), although LLL found it numerically")
         rels.append(list(k[1:]))
     H = orbit_closure(rels, J)
     encs = []
@@ -453,6 +460,12 @@ def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe
         for res in range(P):
             terms = tuple((j, Bs[j] * (acb(0, res * nt[j].angle)).exp()) for j in range(J))
             G = TrigFunction(var.mu[res], terms)
+            coset = vanishing_coset(G, H, prec=max(96, prec))
+            if coset is not None:
+                raise PrecisionExhausted(
+                    f"not certified: the limit function vanishes identically on the progression X = {res} "
+                    f"mod {P} restricted to the coset {list(coset)} of the orbit closure ({H.describe()}), "
+                    "so the sign there is decided by lower-order terms")
             lo, hi, und, boxes = density_on_closure(G, H, target_width, max_boxes=max_boxes, prec=max(96, prec))
             encs.append(Enclosure(Fraction(lo), Fraction(hi)))
             und_total += Fraction(und)
@@ -465,11 +478,11 @@ def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe
     hyps.append(Hypothesis(
         "Relations among the angles", f"the integer relations among 1/{P}, theta_1/2pi, ..., theta_{J}/2pi are "
         f"generated by the {len(rels)} relation(s) {rels}", "assumed",
-        (f"{len(rels) - len(unconfirmed)} relation(s) confirmed exactly (resultants: prod (gamma_j/q)^(P k_j) = 1)",
-         f"{len(unconfirmed)} relation(s) {unconfirmed} verified numerically to 2^-150 only (resultant too large)",
+        (f"all {len(rels)} relation(s) confirmed exactly (separation bound for algebraic integers: "
+         "prod (gamma_j/q)^(P k_j) = 1)",
          f"orbit closure: {H.describe()}", "LLL found no further short relation")))
     params = {"engine": "box subdivision on the orbit closure (certify.ffield.torus)", "period": P,
-              "relations": rels, "relations_not_confirmed_exactly": unconfirmed, "orbit_closure": H.describe(), "boxes": boxes_total,
+              "relations": rels, "relations_confirmed_exactly": True, "orbit_closure": H.describe(), "boxes": boxes_total,
               "max_boxes_per_class": max_boxes, "non_torsion_angles": J,
               "mode": mode, "prec": prec, "q": q, "l_degree": L.degree, "rank": L.rank}
     obs = observed_race(E, L, var, observe, prec) if observe > 0 else ()

@@ -14,6 +14,8 @@ its prime field is written ``z`` (see ``certify.ffield.poly``).
 
 from __future__ import annotations
 
+import sys
+
 
 from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
                                 target_width, write_json)
@@ -44,8 +46,12 @@ def _check_group(args, what: str) -> None:
 def screen(res) -> str:
     """One screen of text for a function-field race result."""
     d = res.density
-    exact = (ExactValue(d.lower, f"an enclosure of width 0: {res.parameters.get('method')}")
-             if d.width == 0 else None)
+    exact = None
+    if d.width == 0:
+        why = (f"the orbit closure is finite ({res.closure.describe()}): an exact average of "
+               "the limit function's sign over it" if getattr(res.closure, "dim", None) == 0
+               else f"an enclosure of width 0: {res.parameters.get('method')}")
+        exact = ExactValue(d.lower, why)
     lines = [
         headline_text(res.question.label, d, exact, res.target_met, f"{res.target_width:.0e}"),
         f"  {res.question.statement}",
@@ -94,6 +100,10 @@ def run_race(args) -> int:
         qn, G, wd = residue_race(args.q, args.modulus, args.mode)
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
+
+    def say(msg: str) -> None:
+        print(f"ffrace: {msg}", file=sys.stderr, flush=True)
+
     if args.json:
         # --json writes the certificate: the one shape of every certify document
         from fractions import Fraction
@@ -103,7 +113,7 @@ def run_race(args) -> int:
         res, cert = certify_ffield(qn, G, wd, Fraction(repr(width)), leader_bound=leaders)
         write_json(cert.to_dict(), args.json)
     else:
-        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders)
+        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders, progress=say)
     if args.json != "-":
         print(screen(res))
     return 0 if res.target_met else 5

@@ -54,8 +54,8 @@ from .poly import (
     MAX_TABLE, finite_field, parse_field_order, parse_monic, parse_poly, poly_index, poly_str,
 )
 from .torus import (
-    ExactRoot, OrbitClosure, TrigFunction, confirm_relation, density_on_closure,
-    find_relations, identify_root, orbit_closure,
+    MAX_CONFIRM_BITS, REFUTED, ExactRoot, OrbitClosure, TrigFunction, confirm_relation, density_on_closure,
+    find_relations, identify_root, orbit_closure, root_kind, vanishing_coset,
 )
 
 __all__ = ["FFRaceQuestion", "parse_race", "residue_race", "race_spectrum", "certify_ffrace", "FFRaceResult",
@@ -299,10 +299,9 @@ def race_spectrum(G: CharacterGroup, wd: dict[int, int], prec: int = 128,
             N = L.norm_polynomial
             norm_rev = fmpz_poly(list(reversed(N.coeffs())))
             for a in roots:
-                a2 = (a * a.conjugate()).real
-                if not (a2.contains(q) and not a2.contains(1)):
-                    continue  # modulus 1: contributes o(1) after normalisation
                 key = identify_root(a, norm_rev, prec)
+                if root_kind(key, q) == "unit":
+                    continue  # modulus 1: contributes o(1) after normalisation
                 slot = acc.setdefault(key, [R.zero, [], a])
                 slot[0] = slot[0] + wbar
                 slot[1].append(chi.label())
@@ -313,8 +312,8 @@ def race_spectrum(G: CharacterGroup, wd: dict[int, int], prec: int = 128,
         with workprec(prec):
             A = R.to_acb(aexact, prec)
             ball = key.ball(prec)
-            if key.is_plus_minus_sqrt(q):
-                kind = "plus" if ball.real > 0 else "minus"
+            kind = root_kind(key, q)
+            if kind in ("plus", "minus"):
                 x = arb(0) if kind == "plus" else arb(1) / 2
             else:
                 p2 = prec
@@ -437,27 +436,21 @@ def race_counter(G: CharacterGroup, wd: dict[int, int], question: FFRaceQuestion
 
 
 def residue_leader_report(G: CharacterGroup, wd: dict[int, int], bound: int, mode: str) -> LeaderReport:
-    """Leaders between non-residues and residues: from R(n) and the exact total count."""
-    A = max(wd.values())
-    B = -min(wd.values())
+    """Leaders between non-residues and residues by the certified statistic: the sign of the
+    weighted count R(n) = A pi(n; non-residues) - B pi(n; residues) (or of its cumulative sum),
+    the same weighted race whose density is certified (A = #squares, B = #non-squares, divided by
+    their gcd, so that each *class* weighs the same).  Raw counts of primes would favour the side
+    with more classes."""
     rc = RaceCounter(G, wd, characters=quadratic_characters(G), period=2)
     names = ("non-residues", "residues")
     leaders, led = [], {n: [] for n in names}
     cum_r = 0
-    cum_t = 0
-    bad = [P.degree() for P, _ in G.factors]
     for n, r in rc.run(bound):
-        from .poly import irreducible_count
-        tot = irreducible_count(G.F.q, n) - sum(1 for d in bad if d == n)
         cum_r += r
-        cum_t += tot
-        rr, tt = (cum_r, cum_t) if mode == "cumulative" else (r, tot)
-        # R = A*pi_non - B*pi_sq and T = pi_non + pi_sq; compare pi_non with pi_sq
-        pi_non = Fraction(rr + B * tt, A + B)
-        pi_sq = tt - pi_non
-        if pi_non > pi_sq:
+        rr = cum_r if mode == "cumulative" else r
+        if rr > 0:
             leaders.append(names[0]); led[names[0]].append(n)
-        elif pi_sq > pi_non:
+        elif rr < 0:
             leaders.append(names[1]); led[names[1]].append(n)
         else:
             leaders.append("tie")
@@ -540,12 +533,20 @@ def is_residue_race(question: FFRaceQuestion) -> bool:
 
 def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, int],
                    target_width: float = 1e-10, prec: int = 160, leader_bound: int = 60,
-                   max_boxes: int = 200000, coeff_bound: int = 60) -> FFRaceResult:
-    """Certify the density of a function-field race (see the module docstring)."""
+                   max_boxes: int = 200000, coeff_bound: int = 60, max_confirm_bits: int = MAX_CONFIRM_BITS,
+                   max_box_dim: int = 3, max_angles: int = 32, progress=None) -> FFRaceResult:
+    """Certify the density of a function-field race (see the module docstring).
+
+    ``progress`` (optional) is called with a one-line message before each stage that can take
+    long (spectrum, relation search, density, leaders); the CLI prints them to stderr.
+    """
     t0 = time.time()
     q = question.q
     # a residue race only sees the quadratic characters (docs/function_fields.md)
     cands = quadratic_characters(G) if is_residue_race(question) else None
+    say = progress or (lambda msg: None)
+    say(f"computing the L-polynomials and inverse roots of the characters that see the race "
+        f"(group of order {G.order})")
     points, c2, ldata = race_spectrum(G, wd, prec, cands)
     t1 = time.time()
     Gf, mu0, mupi, cpts = limit_function(points, c2, q, question.mode, prec)
@@ -555,21 +556,50 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
     rel_prec = max(2 * prec, int(3 * ((J + 1) * math.log2(2 * coeff_bound + 1) + 40)))
     with workprec(rel_prec + 64):
         xs = [arb(1) / 2] + [identify_x(p, rel_prec + 64) for p in cpts]
+    if J > max_angles:
+        raise PrecisionExhausted(
+            f"not certified: the race sees {J} distinct angles in (0, pi) (from {len(ldata)} L-polynomials); "
+            f"the relation search that decides between the LI case and the relation case (LLL in dimension "
+            f"{J + 2} at {rel_prec} bits) is limited to {max_angles} angles in this tool. Large Galois orbits "
+            "of characters cause this; a smaller modulus, a residue race (--residues) or a larger field "
+            "with fewer characters may stay within the limit")
+    if J:
+        say(f"{len(ldata)} L-polynomials, {J} angles in (0, pi) ({t1 - t0:.1f} s); searching integer "
+            f"relations by LLL in dimension {J + 2} at {rel_prec} bits")
     cands = find_relations(xs, coeff_bound=coeff_bound, prec=rel_prec) if J else []
     confirmed = []
     unconfirmed = []
+    refuted = 0
+    roots = [p.root for p in cpts]
+    if any(any(k[1:]) for k in cands):
+        from flint import fmpz_mat as _fm
+        rank = _fm([[2] + [0] * J] + [list(k) for k in cands]).rank()
+        if J + 1 - rank > max_box_dim:
+            raise PrecisionExhausted(
+                f"not certified: {J} angles in (0, pi) and LLL suggests {len(cands)} relation(s) among them; "
+                f"even if every one holds, the orbit closure has dimension {J + 1 - rank}, and box "
+                f"subdivision (the method for the relation case) is limited to dimension <= {max_box_dim}; "
+                "the LI engine does not apply since the angles are not independent")
+        say(f"confirming {len(cands)} candidate relation(s) among {J} angles exactly "
+                 f"(separation bound for algebraic integers, at most {max_confirm_bits} bits)")
     for k in cands:
         if not any(k[1:]):
             continue
-        par = confirm_relation([p.root for p in cpts], k, q, prec=prec)
+        par = confirm_relation(roots, k, q, prec=prec, max_bits=max_confirm_bits)
         if par is None:
             unconfirmed.append(k)
+            break  # one undecided candidate already stops the certification
+        elif par == REFUTED:
+            refuted += 1  # proved false exactly: not a relation, nothing to use
         else:
             confirmed.append([par] + list(k[1:]))
     if unconfirmed:
         raise PrecisionExhausted(
             f"not certified: {len(unconfirmed)} candidate relation(s) among the angles could not be "
-            f"confirmed or refuted exactly (first: {unconfirmed[0]})")
+            f"confirmed or refuted exactly within {max_confirm_bits} bits (the separation bound needs "
+            f"about (D - 1)(1 + S log2 q) bits, D the product of the minimal polynomials' degrees) "
+            f"(first: {unconfirmed[0]}, degrees of the minimal polynomials involved: "
+            f"{[r.poly().degree() for r, kj in zip(roots, unconfirmed[0][1:]) if kj]})")
     rows = [[2] + [0] * J] + confirmed
     if confirmed:
         # a reduced basis (Hermite form) of the relation lattice, for the report
@@ -579,6 +609,12 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
         rows = [r for r in rows if any(r)]
         confirmed = [r for r in rows if any(r[1:])]
     H = orbit_closure(rows, J + 1)
+    coset = vanishing_coset(Gf, H, prec)
+    if coset is not None:
+        raise PrecisionExhausted(
+            f"not certified: the limit function vanishes identically on the coset {list(coset)} of the "
+            f"orbit closure ({H.describe()}), i.e. on a progression of X, so the sign there is decided by "
+            "lower-order terms")
     t2 = time.time()
     budget = []
     params = {"q": q, "modulus": question.modulus, "mode": question.mode,
@@ -610,7 +646,14 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
         except (ImportError, PrecisionExhausted) as exc:
             params["engine_failure"] = str(exc)
             enclosure = None
+    if enclosure is None and case == "relations" and H.dim > max_box_dim:
+        raise PrecisionExhausted(
+            f"not certified: the angles satisfy {len(confirmed)} independent relation(s) (confirmed exactly), "
+            f"so the orbit closure is {H.describe()}; box subdivision, the method for the relation case, "
+            f"is limited to closures of dimension <= {max_box_dim} (the number of boxes grows like "
+            f"2^(dimension x levels)), and this one has dimension {H.dim}")
     if enclosure is None:
+        say(f"box subdivision on the orbit closure ({H.describe()}), at most {max_boxes} boxes")
         lo, hi, und, boxes = density_on_closure(Gf, H, target_width, max_boxes=max_boxes)
         enclosure = Enclosure(lo, hi)
         with workprec(64):
@@ -642,9 +685,10 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
         hyps.append(Hypothesis(
             "relations", "Every Q-linear relation among pi, theta_1, ..., theta_" + str(J)
             + " follows from the listed relations (confirmed exactly).", "assumed",
-            tuple(["confirmed exactly (resultant identity and ball sign): " + rel_txt] + ev)))
+            tuple(["confirmed exactly (separation bound for algebraic integers and ball sign): " + rel_txt] + ev)))
     leaders = None
     if leader_bound:
+        say(f"exact prime counts to degree {leader_bound} for the leaders")
         if len(question.classes) == len(wd):
             groups = [{p: 1} for p in wd]
             leaders = leader_report(G, list(question.classes), groups, leader_bound, question.mode)

@@ -6,16 +6,18 @@ root of the reversed norm polynomial, which factors exactly over Z; an
 irreducible factor g has simple roots, isolated by ``fmpz_poly.complex_roots``.
 If alpha's ball meets exactly one of those root balls, alpha *is* that root:
 :class:`ExactRoot` = (g, index).  Equality of two roots is then exact, and
-``alpha = +-sqrt(q)`` holds exactly when g divides y^2 - q.
+:func:`root_kind` reads the kind of root (modulus 1 iff g is cyclotomic, +-sqrt(q)
+iff g divides y^2 - q, otherwise non-real of modulus sqrt q) from g exactly.
 
 Relations.  With x_0 = 1/2 (the angle pi) and x_j = theta_j / 2 pi for the
 angles theta_j in (0, pi) of distinct roots, a relation is k in Z^(J+1) with
 k . x in Z, i.e. prod_j (alpha_j / sqrt q)^(k_j) = (-1)^(k_0).  Candidates come
 from LLL on the lattice [I | round(C x)] + [0 | C]; each is confirmed exactly:
-beta = prod_{k_j > 0} alpha_j^(2 k_j) prod_{k_j < 0} conj(alpha_j)^(2|k_j|) is a
-root of an integer polynomial P built by resultants (powers and products of
-the minimal polynomials); beta = q^S (S = sum |k_j|) exactly when P(q^S) = 0
-and P / (y - q^S)^v does not vanish on beta's ball.  Then
+beta = prod_{k_j > 0} alpha_j^(2 k_j) prod_{k_j < 0} conj(alpha_j)^(2|k_j|) is an
+algebraic integer of degree <= D (the product of the minimal polynomials' degrees)
+whose conjugates all have modulus q^S (S = sum |k_j|), so beta != q^S forces
+|beta - q^S| >= (2 q^S)^-(D-1); a ball of beta - q^S that excludes 0 refutes the
+relation, one inside that radius proves beta = q^S (:func:`confirm_relation`).  Then
 gamma = prod (alpha_j / sqrt q)^(k_j) satisfies gamma^2 = 1 exactly, and a ball
 decides gamma = 1 or -1, hence k_0 mod 2.
 
@@ -43,8 +45,8 @@ from ..arith import arb, workprec
 from ..errors import Inconsistent, PrecisionExhausted
 from .characters import smith_normal_form
 
-__all__ = ["ExactRoot", "identify_root", "find_relations", "confirm_relation",
-           "OrbitClosure", "orbit_closure", "density_on_closure", "TrigFunction"]
+__all__ = ["ExactRoot", "identify_root", "root_kind", "find_relations", "confirm_relation", "REFUTED", "relation_degree_bound",
+           "OrbitClosure", "orbit_closure", "density_on_closure", "TrigFunction", "vanishing_coset"]
 
 
 # ---------------------------------------------------------------- exact roots
@@ -93,9 +95,32 @@ class ExactRoot:
     def poly(self) -> fmpz_poly:
         return fmpz_poly(list(self.g))
 
-    def is_plus_minus_sqrt(self, q: int) -> bool:
-        """Exactly: is this root equal to +sqrt(q) or -sqrt(q)?"""
-        return (fmpz_poly([-q, 0, 1]) % self.poly()).is_zero()
+
+def root_kind(root: ExactRoot, q: int) -> str:
+    """Exactly which kind of inverse root of an F_q[t] L-function ``root`` is.
+
+    "unit" (|alpha| = 1): its minimal polynomial g is cyclotomic (Kronecker: an algebraic
+    integer all of whose conjugates have modulus 1 is a root of unity; the roots of modulus
+    1 of L(u, chi) are roots of unity, from the factors 1 - u and 1 - chi*(P) u^deg P);
+    "plus" / "minus" (alpha = +sqrt q / -sqrt q): g divides y^2 - q; when g = y^2 - q itself
+    (q not a square), the sign of the real part of the isolated root decides which (a certain
+    comparison of a ball of radius << sqrt q, never a width test);
+    "complex": anything else, which by Weil's theorem has modulus sqrt q and is not real.
+    This is the one place in certify.ffield where a root is classified.
+    """
+    g = root.poly()
+    if g.is_cyclotomic():
+        return "unit"
+    if not (fmpz_poly([-q, 0, 1]) % g).is_zero():
+        return "complex"
+    if g.degree() == 1:  # g = g1 y + g0, root -g0/g1
+        return "plus" if (int(g[0]) > 0) != (int(g[1]) > 0) else "minus"
+    b = root.ball(CANONICAL_PREC).real
+    if b > 0:
+        return "plus"
+    if b < 0:
+        return "minus"
+    raise PrecisionExhausted("not certified: cannot tell sqrt(q) from -sqrt(q)")  # pragma: no cover
 
 
 def identify_root(alpha: acb, norm_rev: fmpz_poly, prec: int = 128) -> ExactRoot:
@@ -191,48 +216,26 @@ def _to_upoly(mp, var: int) -> fmpz_poly:
     return fmpz_poly(cs)
 
 
-def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
-                     max_degree: int = 4000) -> int | None:
-    """Confirm prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly; return k_0 mod 2, or None.
+def _minimal_factor(P: fmpz_poly, ball_of, precs=(256, 512, 1024, 2048)) -> fmpz_poly | None:
+    """The irreducible factor of P having the number z as a root, where ``ball_of(prec)`` encloses z.
 
-    ``roots[j]`` are :class:`ExactRoot` for j = 1..J (index 0 of k is the pi coordinate
-    and is ignored here).  None means not confirmed (the relation is not used).
+    z is a root of P, hence of exactly one of its distinct irreducible factors; a factor
+    whose value on z's ball excludes 0 is not that one.  When exactly one factor's value
+    contains 0, it is the minimal polynomial of z (up to sign).  None if the precisions
+    tried do not separate the factors.
     """
-    parts = [(r, kj) for r, kj in zip(roots, k[1:]) if kj]
-    if not parts:
-        return k[0] % 2
-    P = None
-    deg = 1
-    for r, kj in parts:
-        deg *= r.poly().degree()
-        if deg > max_degree:
-            return None
-        Pj = _power_poly(r.poly(), 2 * abs(kj))
-        P = Pj if P is None else _product_poly(P, Pj)
-    S = sum(abs(kj) for _, kj in parts)
-    Q = fmpz(q) ** S
-    if int(P(Q)) != 0:  # (fmpz.is_zero is unreliable in python-flint 0.9)
-        return None
-    lin = fmpz_poly([-Q, 1])
-    P1 = P
-    while (P1 % lin).is_zero():
-        P1 = P1 // lin
-    with workprec(prec):
-        beta = acb(1)
-        gamma = acb(1)
-        sq = arb(q).sqrt()
-        for r, kj in parts:
-            a = r.ball(prec)
-            a = a if kj > 0 else a.conjugate()
-            beta *= a ** (2 * abs(kj))
-            gamma *= (a / sq) ** abs(kj)
-        val = _eval_acb(P1, beta)
-        if val.contains(0):
-            return None
-        if (gamma - 1).abs_upper() < 1:
-            return 0
-        if (gamma + 1).abs_upper() < 1:
-            return 1
+    _, facs = P.factor()
+    gs = [g for g, _ in facs if g.degree() >= 1]
+    if len(gs) == 1:
+        return gs[0]
+    for prec in precs:
+        with workprec(prec):
+            z = ball_of(prec)
+            hits = [g for g in gs if _eval_acb(g, z).contains(0)]
+        if len(hits) == 1:
+            return hits[0]
+        if not hits:
+            raise Inconsistent("a number is not a root of the polynomial built for it")
     return None
 
 
@@ -241,6 +244,134 @@ def _eval_acb(P: fmpz_poly, z: acb) -> acb:
     for c in reversed(P.coeffs()):
         s = s * z + int(c)
     return s
+
+
+def _minimal_polynomial_of_beta(parts, max_degree: int) -> fmpz_poly | None:
+    """The minimal polynomial of beta = prod alpha_j^(2k_j) (conj for k_j < 0), or None.
+
+    Built one factor at a time: the resultant polynomial of the powers, then of the products
+    of roots, is factored over Z and only the irreducible factor vanishing on the partial
+    product's ball is kept (:func:`_minimal_factor`), so the degrees stay those of minimal
+    polynomials.  None when a resultant would exceed ``max_degree`` or a ball does not
+    single out a factor.
+    """
+    def factor_ball(r, kj, p):
+        a = r.ball(p)
+        a = a if kj > 0 else a.conjugate()
+        return a ** (2 * abs(kj))
+
+    cur = None
+    done: list = []
+    for r, kj in parts:
+        g = r.poly()
+        if cur is not None and cur.degree() * g.degree() > max_degree:
+            return None
+        Pj = _minimal_factor(_power_poly(g, 2 * abs(kj)), lambda p, r=r, kj=kj: factor_ball(r, kj, p))
+        if Pj is None:
+            return None
+        done.append((r, kj))
+        if cur is None:
+            cur = Pj
+            continue
+        if cur.degree() * Pj.degree() > max_degree:
+            return None
+
+        def partial(p, items=tuple(done)):
+            z = acb(1)
+            for rr, kk in items:
+                z *= factor_ball(rr, kk, p)
+            return z
+
+        cur = _minimal_factor(_product_poly(cur, Pj), partial)
+        if cur is None:
+            return None
+    return cur
+
+
+#: ``confirm_relation`` returns this when the candidate is proved false (beta != q^S exactly).
+REFUTED = -1
+
+#: Largest working precision (bits) :func:`confirm_relation` uses for the separation bound.
+MAX_CONFIRM_BITS = 16_384
+
+
+def relation_degree_bound(roots: list, k: list[int]) -> int:
+    """D = product of the degrees of the minimal polynomials of the roots a relation involves:
+    an upper bound on [Q(alpha_j : k_j != 0) : Q], hence on the degree of beta."""
+    return math.prod(r.poly().degree() for r, kj in zip(roots, k[1:]) if kj)
+
+
+def confirm_relation(roots: list, k: list[int], q: int, prec: int = 256,
+                     max_bits: int = MAX_CONFIRM_BITS, max_resultant_degree: int = 256) -> int | None:
+    """Decide prod_j (alpha_j / sqrt q)^(k_j) = +-1 exactly: k_0 mod 2 if it holds, REFUTED if not,
+    None if undecided within ``max_bits``.
+
+    ``roots[j]`` are :class:`ExactRoot` for j = 1..J (index 0 of k is the pi coordinate and is
+    ignored here); every root of each minimal polynomial has modulus sqrt(q) (Weil: the
+    conjugates of alpha are inverse roots of conjugate L-functions, and a minimal polynomial
+    with a root of modulus sqrt q is not cyclotomic, so none of its roots has modulus 1).
+    Put beta = prod_{k_j>0} alpha_j^(2k_j) prod_{k_j<0} conj(alpha_j)^(2|k_j|) and S = sum |k_j|;
+    the relation holds iff beta = q^S.
+
+    * If a ball of beta - q^S excludes 0, the relation is false (REFUTED).
+    * Separation bound: beta is an algebraic integer (conj(alpha) = q / alpha is one too) of
+      degree d <= D (:func:`relation_degree_bound`; beta lies in Q(alpha_j : k_j != 0)), and each
+      conjugate sigma(beta) is the same product of conjugates of the alpha_j, so |sigma(beta)| = q^S.
+      If beta != q^S, its minimal polynomial P (monic, in Z[y]) has P(q^S) a non-zero integer, so
+      1 <= |P(q^S)| = prod_sigma |q^S - sigma(beta)| <= |beta - q^S| (2 q^S)^(d-1), i.e.
+      |beta - q^S| >= (2 q^S)^-(D-1).  A ball of beta - q^S inside that radius proves beta = q^S.
+    * When that precision exceeds ``max_bits``, beta's minimal polynomial is computed instead
+      (:func:`_minimal_polynomial_of_beta`, resultants of degree <= ``max_resultant_degree``):
+      beta = q^S iff it is y - q^S.  Otherwise None (undecided; the caller refuses).
+    Then gamma = prod (alpha_j / sqrt q)^(k_j) has gamma^2 = 1 and a ball decides gamma = +-1.
+    """
+    parts = [(r, kj) for r, kj in zip(roots, k[1:]) if kj]
+    if not parts:
+        return k[0] % 2
+    S = sum(abs(kj) for _, kj in parts)
+    D = relation_degree_bound(roots, k)
+    log_sep = (D - 1) * (1 + S * math.log2(q))      # log2 of (2 q^S)^(D-1)
+    need = int(log_sep + S * math.log2(q)) + 64
+
+    def beta_minus(p: int) -> acb:
+        with workprec(p + 32):
+            beta = acb(1)
+            for r, kj in parts:
+                a = r.ball(p + 32)
+                a = a if kj > 0 else a.conjugate()
+                beta *= a ** (2 * abs(kj))
+            return beta - arb(fmpz(q) ** S)
+
+    p = prec
+    while True:
+        diff = beta_minus(p)
+        if not diff.contains(0):
+            return REFUTED
+        if p >= need:
+            break
+        if need > max_bits:
+            # the bound is out of reach: compute beta's minimal polynomial instead (exact)
+            mp = _minimal_polynomial_of_beta(parts, max_resultant_degree)
+            if mp is None:
+                return None
+            if mp.degree() != 1 or int(mp[0]) != -int(fmpz(q) ** S) * int(mp[1]):
+                return REFUTED
+            break
+        p = min(4 * p, need)
+    with workprec(prec + 32):
+        if p >= need and not (diff.abs_upper() < arb(2) ** (-int(math.ceil(log_sep)) - 1)):
+            return None  # pragma: no cover - the precision was chosen for this
+        gamma = acb(1)
+        sq = arb(q).sqrt()
+        for r, kj in parts:
+            a = r.ball(prec)
+            a = a if kj > 0 else a.conjugate()
+            gamma *= (a / sq) ** abs(kj)
+        if (gamma - 1).abs_upper() < 1:
+            return 0
+        if (gamma + 1).abs_upper() < 1:
+            return 1
+    return None  # pragma: no cover - gamma^2 = 1 exactly, so a ball decides
 
 
 # ---------------------------------------------------------------- orbit closure
@@ -287,6 +418,37 @@ class TrigFunction:
             e = (2 * arb.pi() * x_mid[c])
             s += B.real * e.cos() - B.imag * e.sin()
         return s
+
+
+def vanishing_coset(G: TrigFunction, H: OrbitClosure, prec: int = 128):
+    """The fixed coordinates of a coset of H on which G is identically 0, or None.
+
+    On the coset y_i = a_i / d_i (i < r), x = V y and G is a trigonometric polynomial in the
+    free coordinates: term k has frequency V[c_k][r:] and phase sum_i V[c_k][i] a_i / d_i.
+    Terms with frequencies f and -f combine into one Fourier coefficient; G vanishes on the
+    coset iff every coefficient (and the constant) is 0.  A coset whose coefficient balls all
+    contain 0 is returned (fail closed: the caller refuses), so a coset that is not returned
+    certainly carries a non-zero G, whose zero set then has measure 0.
+    """
+    r = len(H.d)
+    with workprec(prec):
+        for fin in itertools.product(*[range(di) for di in H.d]):
+            coef: dict[tuple, acb] = {}
+            const = acb(G.const)
+            for c, B in G.terms:
+                row = H.V[c]
+                freq = tuple(row[r:])
+                phase = sum((Fraction(row[i] * a, di) for i, (a, di) in enumerate(zip(fin, H.d))), Fraction(0))
+                z = B * (2 * arb.pi() * (arb(phase.numerator) / phase.denominator) * acb(0, 1)).exp()
+                if not any(freq):
+                    const += z.real
+                    continue
+                neg = tuple(-v for v in freq)
+                key, val = (freq, z) if freq > neg else (neg, z.conjugate())
+                coef[key] = coef.get(key, acb(0)) + val
+            if const.real.contains(0) and all(v.real.contains(0) and v.imag.contains(0) for v in coef.values()):
+                return fin
+    return None
 
 
 def density_on_closure(G: TrigFunction, H: OrbitClosure, target_width: float,

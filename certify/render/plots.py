@@ -83,6 +83,14 @@ def eval_fraction(text: str):
     return Fraction(text)
 
 
+def _math_label(label: str) -> str:
+    """A race label as matplotlib mathtext: delta(4;3,1) -> $\\delta(4;3,1)$."""
+    import re
+
+    m = re.fullmatch(r"delta\((.*)\)", label)
+    return rf"$\delta({m.group(1)})$" if m else label
+
+
 def plot_density(cert: Certificate, path: str) -> str:
     """The density of the limit law with the region X > 0 shaded; returns ``path``."""
     plt = _pyplot()
@@ -90,13 +98,13 @@ def plot_density(cert: Certificate, path: str) -> str:
     fig, ax = plt.subplots(figsize=(6.4, 3.6))
     ax.plot(x, f, color="black", lw=1.2)
     ax.fill_between(x, 0, f, where=x > 0, color="tab:blue", alpha=0.35,
-                    label=f"X > 0: {cert.label} in [{cert.answer['enclosure']['lower']}, "
+                    label=f"$X > 0$: {_math_label(cert.label)} $\\in$ [{cert.answer['enclosure']['lower']}, "
                     f"{cert.answer['enclosure']['upper']}]")
     ax.axvline(0, color="grey", lw=0.8)
     ax.set_ylim(0, float(f.max()) * 1.3)
-    ax.set_xlabel("X (normalised race, limit law)")
-    ax.set_ylabel("density")
-    ax.set_title(f"Limit law of the race {cert.label} (under GRH and LI)", fontsize=10)
+    ax.set_xlabel(r"$X = \mu + \sum_\gamma r_\gamma \cos\Theta_\gamma$ (limit law of the normalised race)")
+    ax.set_ylabel(r"probability density of $X$")
+    ax.set_title(f"Limit law of the race {_math_label(cert.label)} (under GRH and LI)", fontsize=10)
     ax.legend(fontsize=7, loc="upper left")
     fig.text(0.01, 0.01, "curve: floating-point illustration; the enclosure is certified",
              fontsize=6, color="grey")
@@ -116,8 +124,8 @@ def plot_budget(cert: Certificate, path: str) -> str:
     ax.barh(names, bounds, color="tab:orange")
     ax.set_xscale("log")
     ax.axvline(width / 2, color="black", ls="--", lw=0.8, label=f"half-width of the enclosure ({width / 2:.2e})")
-    ax.set_xlabel("bound (log scale)")
-    ax.set_title(f"Error budget of {cert.label}", fontsize=10)
+    ax.set_xlabel(r"bound on the error term (log scale)")
+    ax.set_title(f"Error budget of {_math_label(cert.label)}", fontsize=10)
     ax.legend(fontsize=7, loc="lower right")
     ax.invert_yaxis()
     fig.tight_layout()

@@ -113,16 +113,19 @@ def kronecker_neg(d: int, p: int) -> int:
 
 def _roots_mod_p(coeffs, p: int) -> list[tuple[int, int]]:
     """Roots (value, multiplicity) in F_p of a polynomial (coefficients low to high)."""
-    from flint import nmod_poly
+    from flint import fmpz_mod_poly_ctx, nmod_poly
 
-    f = nmod_poly([c % p for c in coeffs], p)
+    if p < 2**62:
+        f = nmod_poly([c % p for c in coeffs], p)
+    else:
+        f = fmpz_mod_poly_ctx(p)([c % p for c in coeffs])
     if f.degree() <= 0:
         return []
     out = []
     for g, e in f.factor()[1]:
         if g.degree() == 1:
-            c = g.coeffs()
-            out.append(((-int(c[0]) * pow(int(c[1]), -1, p)) % p, int(e)))
+            c = [int(x) for x in g.coeffs()]
+            out.append(((-c[0] * pow(c[1], -1, p)) % p, int(e)))
     return out
 
 
@@ -316,9 +319,19 @@ def local_root_number(ld: LocalData, j: Fraction) -> int | None:
 
 
 def _factor(n: int) -> list[int]:
-    from sympy import factorint
+    """The primes dividing n (FLINT); BadInput if a cofactor is too large to factor quickly."""
+    from flint import fmpz
 
-    return sorted(factorint(abs(n)).keys())
+    out = set()
+    for p, _ in fmpz(abs(n)).factor_smooth(40):
+        if p.is_prime():
+            out.add(int(p))
+        elif p < fmpz(10) ** 40:
+            out.update(int(q) for q, _ in p.factor())
+        else:
+            raise BadInput(f"the discriminant has a composite factor of {len(str(p))} digits, too "
+                           "large to factor here (coefficients beyond the supported range)")
+    return sorted(out)
 
 
 @dataclass(frozen=True)

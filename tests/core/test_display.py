@@ -361,3 +361,54 @@ def test_target_not_met_says_so_with_the_reason(store):
     head = screen(wide).splitlines()[0]
     assert head.startswith("delta(4;3,1) in [0.5000, 0.8300]") and "NOT met" in head
     assert "NOT met" in repr(wide) or "TARGET NOT MET" in repr(wide)
+
+
+# --- F_q[t] races: the same formatter (the exact display of a finite orbit closure) -----------
+
+def _check_ff_screen(res):
+    from certify.ffield.commands import screen as ff_screen
+    d = res.density
+    text = ff_screen(res)
+    head = text.splitlines()[0]
+    assert head.startswith(res.question.label)
+    rest = head[len(res.question.label):]
+    if d.width == 0:
+        assert rest.startswith(f" = {d.lower.numerator}/{d.lower.denominator} exactly")
+    elif rest.startswith(" = "):
+        digits = re.match(r" = ([0-9.]+)\.\.\.", rest).group(1)
+        k = len(digits.split(".")[1])
+        assert Fraction(digits) <= d.lower and d.upper < Fraction(digits) + Fraction(1, 10**k)
+    else:
+        assert _contains(_intervals(rest)[0], d.lower, d.upper)
+    enc = next(s for s in text.splitlines() if s.strip().startswith("enclosure"))
+    assert _contains(_intervals(enc)[0], d.lower, d.upper)
+    assert Fraction(re.search(rf"width <= ({NUM})", enc).group(1)) >= d.width
+    for e in res.budget:
+        m = re.search(rf"^\s+{re.escape(e.name)}\s+<= ({NUM})$", text, re.M)
+        assert m and Fraction(m.group(1)) >= upper_fraction(e.bound)
+    data = json.loads(json.dumps(res.to_dict(), default=str))
+    assert Fraction(data["density"]["width"]) >= d.width
+    for e, rec in zip(res.budget, data["error_budget"]):
+        assert Fraction(rec["bound"]) >= upper_fraction(e.bound)
+    assumed = [h.name for h in res.hypotheses if h.status == "assumed"]
+    assert (("does not prove" in text) if assumed else ("Unconditional" in text))
+    return text
+
+
+def test_ffield_exact_density_is_shown_as_a_fraction():
+    from certify.ffield.race import certify_ffrace, residue_race as ff_residue_race
+    # q = 3, m = t^3 + 2t + 1: theta = pi/6 exactly, a finite orbit closure (tests/ffield)
+    qn, G, wd = ff_residue_race(3, "t^3+2*t+1", "cumulative")
+    res = certify_ffrace(qn, G, wd, target_width=1e-10, leader_bound=0)
+    assert res.density.width == 0
+    text = _check_ff_screen(res)
+    assert "exactly (the orbit closure is finite" in text.splitlines()[0]
+
+
+@pytest.mark.parametrize("m,classes,mode", [("t^2+1", ["t+1", "1"], "cumulative"),
+                                            ("t^2+1", ["t+1", "1"], "degree")])
+def test_ffield_screens_round_outward(m, classes, mode):
+    from certify.ffield.race import certify_ffrace, parse_race
+    qn, G, wd = parse_race(3, m, classes, None, mode)
+    res = certify_ffrace(qn, G, wd, target_width=1e-8, leader_bound=0)
+    _check_ff_screen(res)

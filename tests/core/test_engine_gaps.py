@@ -15,7 +15,7 @@ from certify.arith import arb, upper_fraction, workprec
 from certify.density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from certify.errors import Inconsistent
 from certify.race.question import mean_of, spectral_groups, two_way, weighted
-from certify.races import certify_race, plan_race
+from certify.races import J01, certify_race, plan_race
 from certify.spectrum.spectrum import SpectrumStore
 
 DOC = Path(__file__).resolve().parents[2] / "docs" / "method.md"
@@ -125,6 +125,16 @@ def test_method_doc_states_the_planning_constants_of_the_code(store):
         assert plan.width == min(1e-6, tau / (50 * (1 + plan.xi_max)))
         assert plan.prec == max(80, int(digits * 3.33) + 48)
         assert plan.moments == min(60, math.ceil(digits * math.log2(10) / 2) + 6)
+        g = spectral_groups(two_way(4, 3, 1))[0]
+        h, w, k, bits = plan.request(g)
+        s = float(g.scale.mid())
+        assert plan.height_factor == 2.6 and "2.6 · c_g ξ_max / j₀,₁" in text
+        expect = 2.6 * s * plan.xi_max / J01
+        expect = expect if plan.few_zeros else max(4.0, expect)
+        # then moved up to the conductor's search grid (docs/method.md, section 7)
+        from certify.spectrum.moments import round_height_to_grid
+        assert h == round_height_to_grid(g.primitive_keys[0][0], expect) and h >= expect
+        assert bits == int(digits * 3.33 + 2 * k * math.log2(max(2.0, 2 * s * plan.xi_max / J01)) + 40)
     # the aliasing lemma and the residual positivity are stated where the code cites them
     assert re.search(r"\*\*Lemma A", text) and "are **positive**" in text
     assert "## 1b." in text and "## 1c." in text

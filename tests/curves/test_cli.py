@@ -22,7 +22,7 @@ def test_curve_json_to_stdout(capsys):
 
 def test_curve_screen_and_file(tmp_path, capsys):
     path = tmp_path / "c.json"
-    assert main(["curve", "5", "t^2 + 1", "t^3 + t + 2", "--mode", "degree", "--json", str(path)]) == 0
+    assert main(["curve", "5", "t^2 + 1", "t^3 + t + 2", "--json", str(path)]) == 0
     text = capsys.readouterr().out
     d = json.loads(path.read_text())
     # the caution names the hypotheses assumed, or says that none is
@@ -32,6 +32,13 @@ def test_curve_screen_and_file(tmp_path, capsys):
     assert d["kind"] == "curve-race" and main(["verify", str(path)]) == 0
     enc = d["answer"]["enclosure"]
     assert d["spectrum"]["l_polynomial"]["analytic_rank"] == 1 and float(enc["lower"]) <= float(enc["upper"])
+
+
+def test_degree_race_with_a_vanishing_limit_refuses(capsys):
+    # L = (1 - 5u)(1 + 5u)(1 + 5u + 25u^2): the degree-X limit 1[X even] - 1 - (-1)^X - 2 cos(2 pi X/3)
+    # is 0 for X = 2 mod 6, so the sign there is not decided by the limit: refused, exit code 3
+    assert main(["curve", "5", "t^2 + 1", "t^3 + t + 2", "--mode", "degree"]) == 3
+    assert "0 on the progression X = 2 mod 6" in capsys.readouterr().err
 
 
 def test_twists_outputs(tmp_path, capsys):

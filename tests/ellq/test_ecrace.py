@@ -83,3 +83,28 @@ def test_mean_shift_with_rank_four_curves():
             assert h.status == "theorem" and "Math. Comp. 44 (1985)" in h.reference
         out.append(float(r.density.mid))
     assert out == sorted(out, reverse=True)
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("a,rank", [([0, -1, 1, -10, -20], 0), ([0, 0, 1, -1, 0], 1)])
+def test_zero_count_matches_sign_changes(a, rank):
+    """The argument principle (Taylor models on the contour) counts exactly the zeros found
+    as sign changes of Z below T = 10, and the central zero inside |s - 1| < 0.1."""
+    from certify.source.ell_l import EllipticL
+    from certify.source.ell_zerocount import count_zeros
+    from certify.spectrum.zeros import find_zeros_of
+
+    L = EllipticL(curve_from_ainvs(a))
+    c = count_zeros(L, 10.0, 0.1)
+    zl = find_zeros_of(L, 10.0, 1e-8, t_from=0.1)
+    assert c.outside_disc == len(zl.zeros) >= 2
+    assert c.inside_disc == rank
+
+
+@pytest.mark.slow
+def test_ecrace_reports_grh_height():
+    r = certify_ec_race([0, -1, 1, -10, -20], 3, grh_height=8.0)
+    line = r.parameters["grh_verified_line"]
+    assert line.startswith("GRH verified to height 8") and "exactly the certified sign changes" in line
+    grh = [h for h in r.hypotheses if h.name == "GRH"][0]
+    assert grh.status == "assumed" and any("GRH verified to height" in e for e in grh.evidence)

@@ -17,10 +17,12 @@ N = 10^5 (slow test) and report the observed gaps in the assertion messages.
 import cmath
 import math
 
+import numpy as np
 import pytest
 
+from certify.errors import PrecisionExhausted
 from certify.ffield.race import (
-    certify_ffrace, empirical_frequency, exact_race_values, parse_race, residue_race,
+    certify_ffrace, empirical_frequency, exact_race_values, parse_race, residue_leader_report, residue_race,
 )
 
 
@@ -86,6 +88,10 @@ def test_relation_example_rational_angle_exact_density():
     emp = empirical_frequency(vals, "cumulative")
     assert abs(emp - dens) <= 0.01
     assert dens.denominator in (1, 2, 3, 4, 6, 12)
+    # the prescribed-degree race has G = 0 at a point of this finite closure: refused
+    qn, G, wd = residue_race(3, "t^3+2*t+1", "degree")
+    with pytest.raises(PrecisionExhausted, match="vanishes identically"):
+        certify_ffrace(qn, G, wd, target_width=1e-10, leader_bound=0)
 
 
 def test_relation_example_real_roots():
@@ -140,9 +146,21 @@ def test_leaders_from_exact_counts():
 def test_degenerate_race_fails_closed():
     # q = 9, m = t^2 + t: these two classes see no root of modulus 3 and c_2 = 0, so the
     # limit function vanishes identically; nothing can be certified and the output says so
-    qn, G, wd = parse_race(9, "t^2+t", ["z*t + (2*z+1)", "(2*z+2)*t + (z+2)"], None, "cumulative")
-    res = certify_ffrace(qn, G, wd, target_width=1e-6, leader_bound=0)
-    assert res.case == "no angles"
-    assert res.density.lower == 0 and res.density.upper == 1
-    assert not res.target_met
-    assert [h.name for h in res.hypotheses] == ["Weil"]
+    for mode in ("cumulative", "degree"):
+        qn, G, wd = parse_race(9, "t^2+t", ["z*t + (2*z+1)", "(2*z+2)*t + (z+2)"], None, mode)
+        with pytest.raises(PrecisionExhausted, match="vanishes identically"):
+            certify_ffrace(qn, G, wd, target_width=1e-6, leader_bound=0)
+
+
+@pytest.mark.parametrize("mode", ["degree", "cumulative"])
+def test_residue_leaders_follow_the_certified_statistic(mode):
+    # q = 3, m = t (t + 1): the units form (Z/2)^2, one square class and three non-square
+    # classes, so the certified race is R = pi(non-residues) - 3 pi(residues) (each class weighs
+    # the same); the raw counts would give the non-residues the lead almost always
+    qn, G, wd = residue_race(3, "t*(t+1)", mode)
+    assert sorted(qn.weights) == [-3, 1]
+    rep = residue_leader_report(G, wd, 30, mode)   # what ffrace --residues prints
+    vals = exact_race_values(G, wd, 30, qn)
+    stat = list(np.cumsum(vals)) if mode == "cumulative" else vals
+    expect = ["non-residues" if v > 0 else ("residues" if v < 0 else "tie") for v in stat]
+    assert list(rep.leaders) == expect

@@ -11,7 +11,7 @@ from certify.ffield.lpoly import LPolynomial, l_polynomial, weil_check
 from certify.ffield.poly import finite_field, parse_monic
 from certify.ffield.race import parse_race, race_spectrum
 from certify.ffield.torus import (
-    TrigFunction, confirm_relation, density_on_closure, orbit_closure,
+    REFUTED, TrigFunction, confirm_relation, density_on_closure, orbit_closure,
 )
 
 
@@ -26,9 +26,15 @@ def test_true_relation_confirmed_false_one_rejected():
     roots = [p.root for p in pts]
     # theta_1 + theta_2 = pi: gamma = -1, so k_0 is odd
     assert confirm_relation(roots, [1, 1, 1], 3) == 1
-    # theta_1 - theta_2 is not a rational multiple of pi at this size
-    assert confirm_relation(roots, [0, 1, -1], 3) is None
-    assert confirm_relation(roots, [0, 2, 1], 3) is None
+    # theta_1 - theta_2 is not a rational multiple of pi: proved false exactly
+    assert confirm_relation(roots, [0, 1, -1], 3) == REFUTED
+    assert confirm_relation(roots, [0, 2, 1], 3) == REFUTED
+    # a precision budget too small for the separation bound: undecided, never assumed
+    assert confirm_relation(roots, [0, 5, 5], 3, max_bits=0, max_resultant_degree=0) is None
+    # beyond the bits budget, the minimal polynomial of beta decides (exactly) instead
+    assert confirm_relation(roots, [0, 5, 5], 3, max_bits=0) == 1
+    assert confirm_relation(roots, [0, 1, -1], 3, max_bits=0) == REFUTED
+    assert confirm_relation(roots, [0, 5, 5], 3) == 1
 
 
 def test_weil_check_detects_a_perturbed_polynomial():

@@ -1,0 +1,91 @@
+"""Certificates of the trace race of an elliptic curve over Q (kind ``ecq-race``).
+
+Verified by a recount (see :mod:`.recount`): the curve is rebuilt from its stored
+a-invariants; Tate's algorithm, the root number (local data and the functional
+equation), the analytic rank, the zeros (sign changes of the Hardy Z-function),
+the exact power sums and the density are recomputed with the stored target and
+zero-count height; every stored field is compared with the re-derived one
+(balls must meet, the stored enclosure must contain the re-derived one).
+"""
+
+from __future__ import annotations
+
+import shlex
+import time
+from fractions import Fraction
+
+from ..errors import BadInput
+from .model import Certificate, ball_record
+from .recount import (answer_from_enclosure, budget_records, hypothesis_records, provenance,
+                      timed_report)
+
+DEFINITION = ("logarithmic density: lim_{X -> oo} (1/log X) int_2^X 1[sum_{p <= x} a_p/sqrt(p) > 0] "
+              "dx/x, equal to P(X > 0) for the limit law of docs/elliptic_curves_q.md (section 5)")
+LIMITS = {"digits": 12, "conductor": 10**5}
+
+
+def ecq_certificate(result, grh_height: float, seconds: float) -> Certificate:
+    E = result.curve
+    question = {"setting": "E/Q", "ainvs": [int(x) for x in E.ainvs],
+                "label": result.question.label, "statement": result.question.statement,
+                "definition": DEFINITION}
+    params = {k: v for k, v in result.parameters.items()}
+    params.update({"digits": result.digits_requested, "grh_height": float(grh_height)})
+    spectrum = {
+        "curve": E.as_dict(),
+        "analytic_rank": {"value": result.rank.rank, "certified": result.rank.certified,
+                          "upper_bound": result.rank.upper_bound,
+                          "root_number": result.rank.root_number,
+                          "central_coefficients": [ball_record(c.real)
+                                                   for c in result.rank.central_coefficients]},
+        "mean": str(result.mean),
+        "variance": ball_record(result.variance),
+        "isolation_height": result.height,
+        "zeros": [ball_record(z) for z in result.zeros],
+        "power_sums_all_zeros": [ball_record(s) for s in result.power_sums],
+        "residual_sums": [ball_record(r) for r in result.residual],
+    }
+    inputs = {"setting": "E/Q", "ainvs": question["ainvs"], "digits": result.digits_requested,
+              "grh_height": float(grh_height)}
+    cmd = " ".join(shlex.quote(a) for a in [
+        "certify", "ecrace", "[" + ",".join(str(x) for x in E.ainvs) + "]",
+        "--digits", str(result.digits_requested), "--observe", "0",
+        "--grh-height", f"{float(grh_height):g}"])
+    lo, hi = result.density.lower, result.density.upper
+    return Certificate(
+        question=question,
+        answer=answer_from_enclosure(lo, hi, Fraction(1, 10**result.digits_requested)),
+        hypotheses=hypothesis_records(result.hypotheses), error_budget=budget_records(result.budget),
+        parameters=params, spectrum=spectrum, provenance=provenance(cmd, inputs, seconds),
+        references=list(result.references), caution=result.caution + " Re-check this file with "
+        "`certify verify`.", kind="ecq-race")
+
+
+def certify_ecq(ainvs, digits: int, grh_height: float = 0.0):
+    """(result, certificate) of a curve's trace race over Q."""
+    from ..ecrace import certify_ec_race
+
+    t0 = time.time()
+    r = certify_ec_race(ainvs, digits, grh_height=grh_height)
+    return r, ecq_certificate(r, grh_height, time.time() - t0)
+
+
+def _rebuild(cert: Certificate) -> Certificate:
+    from ..source.ellcurve import curve_from_ainvs
+
+    p = cert.parameters
+    d = p["digits"]
+    if type(d) is not int or not 1 <= d <= LIMITS["digits"]:
+        raise BadInput(f"parameter digits = {str(d)[:20]} outside 1..{LIMITS['digits']}")
+    gh = p["grh_height"]
+    if not isinstance(gh, (int, float)) or not 0 <= gh <= 200:
+        raise BadInput(f"parameter grh_height = {str(gh)[:20]} outside [0, 200]")
+    E = curve_from_ainvs(list(cert.question["ainvs"]))
+    if E.conductor > LIMITS["conductor"]:
+        raise BadInput(f"conductor {E.conductor} above the recount limit {LIMITS['conductor']}")
+    return certify_ecq(E, d, float(gh))[1]
+
+
+def verify_ecq(cert: Certificate):
+    """Recount an ``ecq-race`` certificate (a :class:`~.verify.VerifyReport`)."""
+    return timed_report(cert.label, cert, _rebuild)
