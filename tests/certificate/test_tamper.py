@@ -264,3 +264,20 @@ def test_malformed_json_refused_cleanly(clean, tmp_path, capsys, name):
     err = capsys.readouterr().err
     assert code == 2 and secs < LIMIT_SECONDS and "Traceback" not in err
     assert len(err.strip().splitlines()) == 1
+
+
+def test_a_table_folder_verifies_whole_and_a_tampered_row_fails(tmp_path, capsys):
+    """Every row of `certify table` names a certificate that verify accepts; the folder and
+    the index verify whole; a row whose shown enclosure is changed fails."""
+    out = tmp_path / "t"
+    assert main(["table", "--moduli", "3-4", "--digits", "5", "--out", str(out), "--no-cache",
+                 "--quiet"]) == 0
+    index = json.loads((out / "table.json").read_text())
+    assert index["kind"] == "table" and len(index["rows"]) >= 4
+    assert all((out / r["certificate"]).is_file() for r in index["rows"])
+    assert "certificates/" in (out / "table.md").read_text()
+    assert main(["verify", str(out / "table.json")]) == 0
+    assert main(["verify", str(out)]) == 0
+    index["rows"][1]["lower"] = index["rows"][1]["lower"][:-1] + "9"
+    (out / "table.json").write_text(json.dumps(index))
+    assert main(["verify", str(out / "table.json")]) == 4
