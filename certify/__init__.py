@@ -6,6 +6,6 @@ L-functions used, LI); certify gathers evidence for them but proves neither.
 
 __version__ = "0.1.0"
 
-from .api import li_race, race, residue_race, weighted_race  # noqa: E402
+from .api import all_orders, li_race, order_race, race, residue_race, weighted_race  # noqa: E402
 
-__all__ = ["race", "residue_race", "weighted_race", "li_race", "__version__"]
+__all__ = ["race", "residue_race", "weighted_race", "li_race", "order_race", "all_orders", "__version__"]

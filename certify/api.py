@@ -49,6 +49,24 @@ def li_race(direction: str = "pi<li", sig_digits: int | None = 10, digits: int |
     return certify_li_race(direction, sig_digits=sig_digits, digits=digits, store=store)
 
 
+def order_race(q: int, *classes: int, digits: int = 6, store: SpectrumStore | None = None):
+    """delta(q; a_1, ..., a_r): density of x with pi(x;q,a_1) > ... > pi(x;q,a_r) (r >= 2).
+
+    Returns an OrderResult (docs/method.md, section 10), under GRH and LI.
+    """
+    from .orders import certify_order
+    from .race.order import ordering
+
+    return certify_order(ordering(q, *classes), digits, store=store)
+
+
+def all_orders(q: int, classes, digits: int = 6, store: SpectrumStore | None = None):
+    """Every ordering of ``classes`` mod q with the consistency checks (an OrderFamily)."""
+    from .orders import certify_orderings
+
+    return certify_orderings(q, tuple(classes), digits, store=store)
+
+
 # -- every other setting ----------------------------------------------------------
 
 def ffield_race(q, modulus: str, classes=None, weights=None, mode: str = "cumulative",
