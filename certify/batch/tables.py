@@ -282,7 +282,7 @@ def render_latex(rows: list[Row], digits: int, caption: str = "") -> str:
             dcell, omt = "{not certified}", ""
         if r.certified and not r.target_met and r.exact is None:  # marked: set as text, not aligned
             dcell = "{" + (dcell[1:-1] if dcell.startswith("{") else dcell) + r"$^{*}$}"
-        lines.append(f"{r.q} & {r.latex_label} & {dcell} & {omt} \\\\ % {r.source} "
+        lines.append(f"{r.q} & {r.latex_label} & {dcell} & {omt} \\\\ % {getattr(r, 'certificate', '') or r.source} "
                      f"sha256={r.sha256[:16]}{' (reverse race: 1 - delta)' if r.derived else ''}")
     lines.append(r"\end{longtable}")
     lines.append(r"\par\noindent{\footnotesize " + _latex_escape(HYPOTHESES_NOTE) + " "
@@ -328,7 +328,8 @@ def render_markdown(rows: list[Row], digits: int, title: str) -> str:
             om = one_minus_text(r, False)
         else:
             d, om = "not certified", ""
-        src = f"[{os.path.basename(r.source)}]({r.source})" + (" (1 - delta)" if r.derived else "")
+        cert = getattr(r, "certificate", "") or r.source
+        src = f"[{os.path.basename(cert)}]({cert})" + (" (1 - delta)" if r.derived else "")
         lines.append(f"| {r.q} | {r.label} | {d} | {om} | {src} |")
     return "\n".join(lines) + "\n"
 
@@ -415,8 +416,7 @@ def certificate_index(out: str, rows: list) -> list:
         index.append({"label": row.label, "lower": lower, "upper": upper, "certificate": rel,
                       "equals": cert["question"]["label"], "flip": flip,
                       "relation": row.relation or "computed"})
-        row.source = rel
-        row.sha256 = _file_digest(path)
+        row.certificate = rel  # the tables name it (the CSV keeps the result file and digest)
     return index
 
 
