@@ -523,7 +523,7 @@ class FFRaceResult(NotebookDisplay):
 
 
 _REF_WEIL = ("Weil's theorem (the Riemann hypothesis for curves over finite fields), as for "
-             "Dirichlet L-functions of F_q[t] in M. Rosen, Number Theory in Function Fields, "
+             "Dirichlet L-functions of F_q[t] in Number Theory in Function Fields, "
              "GTM 210 (2002), ch. 4-5")
 
 

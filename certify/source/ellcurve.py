@@ -179,7 +179,7 @@ class LocalData:
         return {"split": 1, "nonsplit": -1, "additive": 0}.get(self.reduction, 0)
 
 
-def tate(a, p: int) -> tuple[LocalData, tuple]:
+def local_reduction(a, p: int) -> tuple[LocalData, tuple]:
     """Tate's algorithm at p: (local data, a p-minimal integral model)."""
     a = tuple(a)
     changed = False
@@ -430,7 +430,7 @@ def curve_from_ainvs(ainvs) -> EllipticCurveQ:
     # minimal discriminant valuations from Tate's algorithm on the given model
     u = 1
     for p in primes:
-        ld, _ = tate(a, p)
+        ld, _ = local_reduction(a, p)
         dv = _v(D, p) - ld.disc_valuation
         if dv % 12:
             raise ArithmeticError("Tate's algorithm: discriminant scaling not a multiple of 12")
@@ -448,7 +448,7 @@ def curve_from_ainvs(ainvs) -> EllipticCurveQ:
     Dmin = discriminant(minimal)
     local = []
     for p in primes:
-        ld, _ = tate(minimal, p)
+        ld, _ = local_reduction(minimal, p)
         if ld.minimal_model_changed or ld.disc_valuation != _v(Dmin, p):
             raise ArithmeticError(f"model not minimal at {p} after reduction")
         w = local_root_number(ld, j)
