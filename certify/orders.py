@@ -82,8 +82,8 @@ class OrderResult:
         d = self.density
         p = d.places()
         status = "target met" if self.target_met else "TARGET NOT MET"
-        return (f"<OrderResult {self.question.label} in [{d.lower_str(p)}, {d.upper_str(p)}] "
-                f"(width {float(d.width):.2e}; {status}; conditional on GRH and LI)>")
+        return (f"<OrderResult {self.question.label} in {d.interval_text(p)} "
+                f"(width <= {d.width_text()}; {status}; conditional on GRH and LI)>")
 
     @property
     def variance(self):
@@ -97,7 +97,7 @@ class OrderResult:
                          "label": self.question.label, "statement": self.question.statement,
                          "classes": list(self.question.classes)},
             "density": {"lower": d.lower_str(places), "upper": d.upper_str(places),
-                        "width": f"{float(d.width):.3e}", "certified_digits": d.digits(),
+                        "width": d.width_text(), "certified_digits": d.digits(),
                         "target_width": f"1e-{self.digits_requested}",
                         "target_met": self.target_met},
             "mean": [str(m) for m in self.mean],

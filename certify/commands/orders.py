@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import shlex
 
+from ..arith import interval_text
 from ..errors import BadInput
+from ..result import headline_text
 from ..race.order import ordering
 
 
@@ -20,9 +22,10 @@ def screen(result) -> str:
     d = result.density
     places = d.places()
     lines = [
-        f"{result.question.label} = {d.digits() or '(no digit certified)'}",
+        headline_text(result.question.label, d, None, result.target_met,
+                      f"1e-{result.digits_requested}"),
         f"  {result.question.statement}",
-        f"  enclosure  [{d.lower_str(places)}, {d.upper_str(places)}]   width {float(d.width):.2e}"
+        f"  enclosure  {d.interval_text(places)}   width <= {d.width_text()}"
         + ("" if result.target_met else f"   (target 1e-{result.digits_requested} NOT met)"),
         f"  mean vector ({', '.join(map(str, result.mean))}); "
         f"{result.parameters['zeros_used']} zeros of {len(result.parameters['primitive_l_functions'])} "
@@ -31,7 +34,7 @@ def screen(result) -> str:
         "  error budget:",
     ]
     for e in result.budget:
-        lines.append(f"    {e.name:<30} <= {e.bound_float:.2e}")
+        lines.append(f"    {e.name:<30} <= {e.bound_text()}")
     lines.append("  hypotheses (assumed, not proven):")
     for h in result.hypotheses:
         lines.append(f"    {h.name}: {h.statement}")
@@ -46,12 +49,12 @@ def family_screen(fam) -> str:
     for r in fam.results:
         d = r.density
         p = d.places()
-        lines.append(f"  {r.question.label:<24} [{d.lower_str(p)}, {d.upper_str(p)}]  "
-                     f"width {float(d.width):.1e}" + ("" if r.target_met else "  (target NOT met)"))
+        lines.append(f"  {r.question.label:<24} {d.interval_text(p)}  "
+                     f"width <= {d.width_text(2)}" + ("" if r.target_met else "  (target NOT met)"))
     lines.append("consistency checks (exact identities; each interval must contain its reference):")
     for c in fam.checks:
-        lines.append(f"  {'ok  ' if c.ok else 'FAIL'} {c.name}: [{float(c.lower):.10f}, "
-                     f"{float(c.upper):.10f}] vs {c.reference}")
+        lines.append(f"  {'ok  ' if c.ok else 'FAIL'} {c.name}: {interval_text(c.lower, c.upper, 10)} "
+                     f"vs {c.reference}")
     lines.append(f"  {fam.caution}")
     return "\n".join(lines)
 

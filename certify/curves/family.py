@@ -226,7 +226,7 @@ def _member(E: EllipticCurve, f, mode: str, width: float, max_boxes: int) -> Mem
         status = "certified"
         if "relations" in R.parameters:
             status = (f"certified on the orbit closure (relations {R.parameters['relations']}); "
-                      f"width {float(R.density.width):.2g} with {R.parameters['max_boxes_per_class']} boxes per class")
+                      f"width <= {R.density.width_text(2)} with {R.parameters['max_boxes_per_class']} boxes per class")
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs,
                             R.density, mean, status, L.degrees_confirmed)
     except CertifyError as exc:
