@@ -70,8 +70,9 @@ def answer_record(result) -> dict:
     width = hi - lo
     places = places_for(width)
     margin = width / 10**6 if width > 0 else Fraction(1, 10 ** (places + 3))
-    lower = decimal_down(lo - margin, places)
-    upper = decimal_up(hi + margin, places)
+    # a density lies in [0, 1]: the widened ends are kept inside it
+    lower = decimal_down(max(lo - margin, Fraction(0)), places)
+    upper = decimal_up(min(hi + margin, Fraction(1)), places)
     flo, fhi = Fraction(lower), Fraction(upper)
     return {
         "enclosure": {"lower": lower, "upper": upper},

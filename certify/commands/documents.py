@@ -24,7 +24,7 @@ import sys
 from ..errors import BadInput
 from .options import (Limits, add_json, add_limits, add_name, add_out, add_progress, add_target,
                       check_out_dir, check_outputs, check_race_size, parse_int, progress,
-                      progress_enabled, target_digits, write_json)
+                      progress_enabled, target_digits, working, write_json)
 
 EXIT_MISMATCH = 4
 EXIT_REFUTED = 10
@@ -93,14 +93,16 @@ def run_certificate(args) -> int:
     d = target_digits(args)
     formats = parse_formats(args.formats)
     check_race_size(question, Limits.of(args), "certificate")
-    if getattr(question, "kind", "") == "ordering":  # three or more classes
-        from ..certificate.order import certify_order_with_certificate
-        from ..certificate.order import reproduce_command as order_command
+    with working(f"certifying {question.label}", progress_enabled(args)):
+        if getattr(question, "kind", "") == "ordering":  # three or more classes
+            from ..certificate.order import certify_order_with_certificate
+            from ..certificate.order import reproduce_command as order_command
 
-        result, cert = certify_order_with_certificate(question, d, command_line=order_command(question, d))
-    else:
-        result, cert = certify_with_certificate(question, d,
-                                                command_line=reproduce_command(question, d))
+            result, cert = certify_order_with_certificate(question, d,
+                                                          command_line=order_command(question, d))
+        else:
+            result, cert = certify_with_certificate(question, d,
+                                                    command_line=reproduce_command(question, d))
     paths = write_files(cert, args.out, formats, args.name)
     if args.json:
         write_json(json.loads(cert.to_json()), args.json)
@@ -199,7 +201,8 @@ def run_check(args) -> int:
     lo, hi, meaning, places = parse_value(args.claim)
     check_race_size(question, Limits.of(args), "check")
     claim = Claim(question, args.claim.strip(), lo, hi, meaning, places)
-    v = referee(claim, start, top, with_certificate=bool(args.out))
+    with working(f"checking {question.label}", progress_enabled(args)):
+        v = referee(claim, start, top, with_certificate=bool(args.out))
     if args.json != "-":
         print(v.summary())
         print(f"  digits tried: {', '.join(map(str, v.digits_tried))}; conditional on GRH and LI "
@@ -354,6 +357,7 @@ def register(sub) -> None:
     p.add_argument("--formats", default="json,md,tex,fragment",
                    help="comma-separated: json, md, tex, fragment, density, budget, plots, all")
     add_json(p, "the certificate")
+    add_progress(p)
     add_limits(p)
     p.set_defaults(func=run_certificate)
 
@@ -391,6 +395,7 @@ def register(sub) -> None:
     p.add_argument("--certificate", dest="out", metavar="DIR", help=argparse_suppress())
     add_name(p)
     add_json(p, "the verdict")
+    add_progress(p)
     add_limits(p)
     p.set_defaults(func=run_check)
 

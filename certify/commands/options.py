@@ -290,3 +290,36 @@ def check_race_size(question, limits: "Limits", what: str) -> None:
     limits.require("conductor", question.modulus, f"{what} {question.label}")
     limits.require("l-functions", race_l_functions(question.modulus, question.kind),
                    f"{what} {question.label}")
+
+
+@contextmanager
+def working(desc: str, enabled: bool = True):
+    """An elapsed-time display for one long computation (tqdm, on a terminal only).
+
+    The bar has no total (the driver's rounds are not known in advance): it
+    shows what is being computed and for how long, refreshed twice a second,
+    and disappears when the work ends.
+    """
+    import threading
+
+    from tqdm import tqdm
+
+    on = enabled and sys.stderr.isatty()
+    bar = tqdm(total=None, desc=desc, file=sys.stderr, leave=False, disable=not on,
+               bar_format="{desc}: {elapsed}", dynamic_ncols=True)
+    stop = threading.Event()
+
+    def tick():
+        while not stop.wait(0.5):
+            bar.refresh()
+
+    t = threading.Thread(target=tick, daemon=True) if on else None
+    if t is not None:
+        t.start()
+    try:
+        yield bar
+    finally:
+        stop.set()
+        if t is not None:
+            t.join(timeout=1)
+        bar.close()

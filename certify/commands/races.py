@@ -7,8 +7,9 @@ import shlex
 from ..race.question import parse_weight_items, residue_race, two_way, weighted
 from ..races import DEFAULT_DIGITS, MAX_DIGITS, certify_race
 from ..result import density_lines
-from .options import (Limits, add_json, add_limits, add_target, check_outputs, check_race_size,
-                      parse_int, target_digits, write_json)
+from .options import (Limits, add_json, add_limits, add_progress, add_target, check_outputs,
+                      check_race_size, parse_int, progress_enabled, target_digits, working,
+                      write_json)
 
 
 def _int(text: str, what: str) -> int:
@@ -18,6 +19,7 @@ def _int(text: str, what: str) -> int:
 def _add_common(p):
     add_target(p, DEFAULT_DIGITS, MAX_DIGITS)
     add_json(p)
+    add_progress(p)
     add_limits(p)
 
 
@@ -68,11 +70,12 @@ def screen(result) -> str:
 
 def _certify(question, d, args, command_line):
     """The race result; with --json also its certificate (the one shape every command writes)."""
-    if not args.json:
-        return certify_race(question, d, command_line=command_line), None
-    from ..certificate.build import certify_with_certificate
+    with working(f"certifying {question.label}", progress_enabled(args)):
+        if not args.json:
+            return certify_race(question, d, command_line=command_line), None
+        from ..certificate.build import certify_with_certificate
 
-    return certify_with_certificate(question, d, command_line=command_line)
+        return certify_with_certificate(question, d, command_line=command_line)
 
 
 def emit(result, args, cert=None) -> int:

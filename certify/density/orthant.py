@@ -486,6 +486,10 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
         rounding = arb(main.rad())
         ball = main + arb(0, err.upper())
         ball = arb(ball.upper()).union(arb(ball.lower()))
+        # a probability lies in [0, 1]: the exact enclosure is intersected with it (tiny
+        # densities would otherwise show a negative lower end); the ball is kept as computed
+        enc = Enclosure.from_arb(ball)
+        enc = Enclosure(max(enc.lower, Fraction(0)), min(enc.upper, Fraction(1)))
         budget = (
             ErrorTerm("aliasing", alias,
                       "sum_i P(|Y_i| >= L_i/2): periods L_i; Chernoff bounds with the exact variances"),
@@ -518,7 +522,7 @@ def _orthant(var, tau, signs, prec, per_side, max_points):
             "bessel_evaluations": bessel_calls,
             "xi_max": Xi,
         }
-        out[s] = DensityEnclosure(Enclosure.from_arb(ball), budget, params, ball)
+        out[s] = DensityEnclosure(enc, budget, params, ball)
     return out
 
 

@@ -299,3 +299,14 @@ def test_a_claims_file_with_a_bad_line_still_checks_the_others(files, tmp_path, 
     assert sum("CONSISTENT" in ln for ln in o.splitlines()) == 1
     data = json.loads((out / "claims_one_bad-report.json").read_text())
     assert len(data["claims"]) == 1 and len(data["bad_lines"]) == 1
+
+
+def test_raw_html_in_a_claims_file_is_escaped_in_the_markdown_report(tmp_path, capsys):
+    claims = tmp_path / "html.claims"
+    claims.write_text("delta(4;3,1) = 0.9959   # <img src=x onerror=alert(1)> <b>bold</b>\n")
+    rc = main(["claims", str(claims), "--out", str(tmp_path / "r"), "--max-digits", "6"])
+    capsys.readouterr()
+    assert rc == 0
+    report = (tmp_path / "r" / "html-report.md").read_text()
+    assert "<img" not in report and "<b>" not in report
+    assert "&lt;img src=x onerror=alert(1)&gt;" in report or "&lt;img src=x onerror=alert(1)>" in report

@@ -20,7 +20,8 @@ PRODUCES_RESULT = {"race", "residues", "weighted", "certificate", "verify", "che
 WRITES_FILES = {"certificate", "render", "check", "claims", "demo", "table", "twists"}
 HAS_TARGET = {"race", "residues", "weighted", "certificate", "check", "claims", "table", "ffrace",
               "curve", "twists", "ecrace", "lirace", "order"}
-LONG_RUNNING = {"verify", "claims", "table", "twists"}
+LONG_RUNNING = {"verify", "claims", "table", "twists", "race", "residues", "weighted", "certificate",
+                "check"}
 SIZE_LIMITED = {"race", "residues", "weighted", "certificate", "verify", "check", "claims", "table",
                 "ffrace", "fflpoly", "curve", "twists", "order"}
 
@@ -135,6 +136,15 @@ def test_long_commands_show_progress_and_can_hide_it(name):
 @pytest.mark.parametrize("name", sorted(SIZE_LIMITED))
 def test_commands_with_a_size_take_limit(name):
     assert "--limit" in _flags(COMMANDS[name])
+
+
+def test_working_display_is_off_when_not_a_terminal(capsys):
+    """The elapsed-time display writes nothing when standard error is not a terminal."""
+    from certify.commands.options import working
+
+    with working("certifying something", True):
+        pass
+    assert capsys.readouterr().err == ""
 
 
 def test_help_lists_the_same_names(capsys):

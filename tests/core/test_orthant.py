@@ -203,3 +203,13 @@ def test_truncated_mod8_law_against_bivariate_quadrature():
     ref = _bivariate_reference((0.0, 0.0), vecs, ws, T=60.0)
     assert float(out.enclosure.lower) - 1e-6 <= ref <= float(out.enclosure.upper) + 1e-6
     assert out.enclosure.width < 1e-5
+
+
+def test_enclosures_stay_inside_the_unit_interval():
+    # a law whose orthant has probability 0 (|mu| exceeds the sum of the weights): the
+    # enclosure is intersected with [0, 1], and must contain 0 (resp. 1 for the opposite)
+    ws = [0.3 / (j + 1) for j in range(10)]
+    var = VectorVariable((arb(-1.0),), tuple(VectorGroup((acb(0.5),), (arb(w),)) for w in ws))
+    out = orthant_enclosure(var, 1e-4)
+    assert out[(1,)].enclosure.lower == 0 < out[(1,)].enclosure.upper < 1e-4
+    assert out[(-1,)].enclosure.upper == 1 and out[(-1,)].enclosure.lower > 1 - 1e-4
