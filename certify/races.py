@@ -30,6 +30,7 @@ J01 = 2.404825557695773
 MAX_DIGITS = 60
 DEFAULT_DIGITS = 10
 MIN_HEIGHT = 4.0  # lowest isolation height (planning)
+PLAN_HEIGHT_FACTOR = 2.6  # isolation height per unit s xi / j01 assumed when planning xi_max
 
 REFERENCES = (
     "Chebyshev's bias, Experimental Mathematics 3 (1994) 173-197.",
@@ -299,7 +300,10 @@ class RacePlan:
     xi_max: float
     moments: int
     width: float
-    height_factor: float = 2.6
+    # heights are planned with a margin over the factor assumed when xi_max was planned
+    # (PLAN_HEIGHT_FACTOR): the engine's frequency range on the certified zeros often
+    # exceeds the model's, and a second round costs more than the extra zeros
+    height_factor: float = 3.4
     few_zeros: bool = True  # plan heights from each group's weight (no floor)
 
     def request(self, group) -> tuple[float, float, int, int]:
@@ -350,7 +354,7 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
             T1 = sp.power_sums[0] / (2 if g.is_real else 1)
             V += g.scale * g.scale * T1 / 2
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
-                                  height_factor=RacePlan.height_factor)
+                                  height_factor=PLAN_HEIGHT_FACTOR)
     width = min(1e-6, tau / (50 * (1 + xi_max)))
     return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
 

@@ -310,3 +310,33 @@ def test_raw_html_in_a_claims_file_is_escaped_in_the_markdown_report(tmp_path, c
     report = (tmp_path / "r" / "html-report.md").read_text()
     assert "<img" not in report and "<b>" not in report
     assert "&lt;img src=x onerror=alert(1)&gt;" in report or "&lt;img src=x onerror=alert(1)>" in report
+
+
+def test_two_claims_of_one_race_write_two_certificates(tmp_path, capsys):
+    claims = tmp_path / "twice.claims"
+    claims.write_text("delta(4;3,1) = 0.9959\ndelta(4;3,1) = 0.9959\n")
+    rc = main(["claims", str(claims), "--out", str(tmp_path / "r"), "--max-digits", "6",
+               "--certificates"])
+    capsys.readouterr()
+    assert rc == 0
+    written = sorted(p.name for p in (tmp_path / "r").glob("delta_4_3_1*.json"))
+    assert len(written) == 2 and written[0] != written[1], written
+
+
+def test_a_full_disk_under_the_cache_is_a_warning_not_a_traceback(tmp_path, monkeypatch, capsys):
+    """A cache write that fails (disk full) is reported on one line; the table still completes."""
+    import warnings as _w
+
+    from certify.batch.cache import SpectrumCache
+
+    def full(*a, **k):
+        raise sqlite3.OperationalError("database or disk is full")
+
+    monkeypatch.setattr(SpectrumCache, "_save_blob", full)
+    with _w.catch_warnings(record=True) as caught:
+        _w.simplefilter("always")
+        rc = main(["table", "--race", "5:1,4", "--kinds", "two-way", "--digits", "4", "--out",
+                   str(tmp_path / "t"), "--cache", str(tmp_path / "c.sqlite"), "--workers", "1"])
+    capsys.readouterr()
+    assert rc == 0
+    assert any("disk is full" in str(w.message) for w in caught)

@@ -128,8 +128,10 @@ def test_method_doc_states_the_planning_constants_of_the_code(store):
         g = spectral_groups(two_way(4, 3, 1))[0]
         h, w, k, bits = plan.request(g)
         s = float(g.scale.mid())
-        assert plan.height_factor == 2.6 and "2.6 · c_g ξ_max / j₀,₁" in text
-        expect = 2.6 * s * plan.xi_max / J01
+        # heights use h = 3.4 over the 2.6 assumed when xi_max is planned (section 5b)
+        assert plan.height_factor == 3.4 and "3.4 · c_g ξ_max / j₀,₁" in text
+        assert "planned assuming 2.6" in text
+        expect = 3.4 * s * plan.xi_max / J01
         expect = expect if plan.few_zeros else max(4.0, expect)
         # then moved up to the conductor's search grid (docs/method.md, section 7)
         from certify.spectrum.moments import round_height_to_grid
