@@ -19,6 +19,8 @@ L-function of E (docs/elliptic_curves_q.md, section 7).
 
 from __future__ import annotations
 
+from .result import NotebookDisplay
+
 import math
 import time
 from dataclasses import dataclass
@@ -130,7 +132,7 @@ class ECRaceQuestion:
 
 
 @dataclass(frozen=True)
-class ECRaceResult:
+class ECRaceResult(NotebookDisplay):
     """A certified density for the trace race of a curve, with everything behind it.
 
     The same field names as :class:`certify.races.RaceResult` (density, ball,

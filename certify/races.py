@@ -10,6 +10,8 @@ certificate needs, so nothing is recomputed downstream.
 
 from __future__ import annotations
 
+from .result import NotebookDisplay
+
 import math
 import time
 from dataclasses import dataclass
@@ -58,7 +60,7 @@ class GroupReport:
 
 
 @dataclass(frozen=True)
-class RaceResult:
+class RaceResult(NotebookDisplay):
     """A certified density with everything behind it.
 
     Attributes

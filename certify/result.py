@@ -67,7 +67,19 @@ class ErrorTerm:
 
 @dataclass(frozen=True)
 class Enclosure:
-    """A proven interval [lower, upper] for a real number (exact rationals)."""
+    """A proven interval [lower, upper] for a real number (exact rationals).
+
+    Decimal strings (documented attributes, for notebooks and reports):
+    ``lower_decimal`` (rounded down), ``upper_decimal`` (rounded up),
+    ``width_decimal`` (rounded up), ``digits_decimal`` (certified digits).
+
+    Examples
+    --------
+    >>> from fractions import Fraction
+    >>> e = Enclosure(Fraction(99591, 100000), Fraction(99593, 100000))
+    >>> e.lower_decimal, e.upper_decimal, e.digits_decimal
+    ('0.9959100', '0.9959300', '0.9959')
+    """
 
     lower: Fraction
     upper: Fraction
@@ -107,6 +119,26 @@ class Enclosure:
     def places(self) -> int:
         """Decimal places enough to show the width: two past its leading digit (4..80)."""
         return places_for_width(self.width)
+
+    @property
+    def lower_decimal(self) -> str:
+        """The lower end as a decimal string, rounded down, with enough places to show the width."""
+        return self.lower_str(self.places())
+
+    @property
+    def upper_decimal(self) -> str:
+        """The upper end as a decimal string, rounded up, with enough places to show the width."""
+        return self.upper_str(self.places())
+
+    @property
+    def width_decimal(self) -> str:
+        """The width in scientific notation, rounded up."""
+        return self.width_text()
+
+    @property
+    def digits_decimal(self) -> str:
+        """The certified digits (common to every point of the enclosure), as a string."""
+        return self.digits()
 
     def interval_text(self, places: int | None = None) -> str:
         """``[lower, upper]`` in fixed point, rounded outward (contains the enclosure)."""
@@ -249,3 +281,19 @@ def density_lines(label: str, enclosure: Enclosure, exact: ExactValue | None = N
     for name, text in auxiliary_intervals(enclosure, symbol):
         lines.append(f"  {name:<10} in {text}")
     return lines
+
+
+class NotebookDisplay:
+    """Mixin of every result class: displays as a table in Jupyter (``_repr_html_``) and
+    as the enclosure in LaTeX (``_repr_latex_``); see :mod:`certify.render.notebook`."""
+
+    def _repr_html_(self) -> str:
+        from .render.notebook import result_html
+
+        return result_html(self)
+
+    def _repr_latex_(self) -> str:
+        from .render.notebook import result_latex
+
+        return result_latex(self)
+

@@ -223,6 +223,14 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
                             "seconds": time.perf_counter() - t0})
                 continue
             d = r.to_dict()
+            # the row's certificate (verify re-checks it): built from this store's spectra
+            cert_doc = None
+            try:
+                from ..certificate.build import certificate_from_result
+
+                cert_doc = certificate_from_result(r, store).to_dict()
+            except CertifyError as exc:
+                d["certificate_error"] = str(exc)
             used = sorted({f"{c}.{n}" for g in r.groups for (c, n) in g.primitive_keys})
             for key in dict.fromkeys(store.computed):
                 base[key] = extended[key] = store.spectra[key]
@@ -231,7 +239,8 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
                 "spectra": {k: digests.get(k, "computed in this task") for k in used},
                 "spectra_extended_in_task": [f"{c}.{n}" for c, n in dict.fromkeys(store.computed)],
             }
-            out.append({"slug": slug, "ok": True, "result": d, "target_met": r.target_met,
+            out.append({"slug": slug, "ok": True, "result": d, "certificate": cert_doc,
+                        "target_met": r.target_met,
                         "timings": dict(r.timings), "seconds": time.perf_counter() - t0,
                         "z_calls": store.z_calls, "new_spectra": []})
         if out:

@@ -42,6 +42,11 @@ def result_path(out: str, item: RaceItem) -> str:
     return os.path.join(out, "results", item.slug + ".json")
 
 
+def certificate_path(out: str, item: RaceItem) -> str:
+    """The certificate of a computed race (``certify verify`` re-checks it)."""
+    return os.path.join(out, "certificates", item.slug + ".json")
+
+
 def _load_done(out: str, item: RaceItem, digits: int) -> dict | None:
     """A finished result for ``item`` at this target (None if absent, stale or unreadable)."""
     path = result_path(out, item)
@@ -245,6 +250,9 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                         prog.advance(1)
                         continue
                     write_atomic(result_path(out, it), json.dumps(res["result"], indent=1) + "\n")
+                    if res.get("certificate"):
+                        write_atomic(certificate_path(out, it),
+                                     json.dumps(res["certificate"], indent=1) + "\n")
                     done[it.slug] = res["result"]
                     pq = per_q[it.modulus]
                     pq["races"] += 1

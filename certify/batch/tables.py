@@ -282,7 +282,7 @@ def render_latex(rows: list[Row], digits: int, caption: str = "") -> str:
             dcell, omt = "{not certified}", ""
         if r.certified and not r.target_met and r.exact is None:  # marked: set as text, not aligned
             dcell = "{" + (dcell[1:-1] if dcell.startswith("{") else dcell) + r"$^{*}$}"
-        lines.append(f"{r.q} & {r.latex_label} & {dcell} & {omt} \\\\ % {r.source} "
+        lines.append(f"{r.q} & {r.latex_label} & {dcell} & {omt} \\\\ % {getattr(r, 'certificate', '') or r.source} "
                      f"sha256={r.sha256[:16]}{' (reverse race: 1 - delta)' if r.derived else ''}")
     lines.append(r"\end{longtable}")
     lines.append(r"\par\noindent{\footnotesize " + _latex_escape(HYPOTHESES_NOTE) + " "
@@ -328,7 +328,8 @@ def render_markdown(rows: list[Row], digits: int, title: str) -> str:
             om = one_minus_text(r, False)
         else:
             d, om = "not certified", ""
-        src = f"[{os.path.basename(r.source)}]({r.source})" + (" (1 - delta)" if r.derived else "")
+        cert = getattr(r, "certificate", "") or r.source
+        src = f"[{os.path.basename(cert)}]({cert})" + (" (1 - delta)" if r.derived else "")
         lines.append(f"| {r.q} | {r.label} | {d} | {om} | {src} |")
     return "\n".join(lines) + "\n"
 
@@ -380,6 +381,45 @@ def ranking(rows: list[Row], top: int) -> list[Row]:
     return out[:top]
 
 
+def _one_minus(x: str) -> str:
+    from decimal import Decimal, localcontext
+
+    with localcontext() as ctx:
+        ctx.prec = len(x) + 10
+        return str(Decimal(1) - Decimal(x))
+
+
+def certificate_index(out: str, rows: list) -> list:
+    """Rows of the table index: each names its certificate and shows the certificate's
+    enclosure (or 1 minus it, ends swapped, for a row equal to a reversed race).  A row
+    whose result has a certificate names that file in every table instead of the result."""
+    import json
+
+    index = []
+    for row in rows:
+        if row.lower is None or not row.source.startswith("results" + os.sep):
+            continue
+        rel = os.path.join("certificates", row.source[len("results" + os.sep):])
+        path = os.path.join(out, rel)
+        if not os.path.exists(path):
+            continue
+        with open(path, encoding="utf-8") as fh:
+            cert = json.load(fh)
+        enc = cert["answer"]["enclosure"]
+        clo, chi = Fraction(enc["lower"]), Fraction(enc["upper"])
+        mid = (row.lower + row.upper) / 2
+        # a row equal to the reversed race shows 1 - delta; ties (delta = 1/2) need the labels
+        flip = (row.label != cert["question"]["label"]
+                and abs(mid - (1 - (clo + chi) / 2)) <= abs(mid - (clo + chi) / 2))
+        lower, upper = ((_one_minus(enc["upper"]), _one_minus(enc["lower"])) if flip
+                        else (enc["lower"], enc["upper"]))
+        index.append({"label": row.label, "lower": lower, "upper": upper, "certificate": rel,
+                      "equals": cert["question"]["label"], "flip": flip,
+                      "relation": row.relation or "computed"})
+        row.certificate = rel  # the tables name it (the CSV keeps the result file and digest)
+    return index
+
+
 def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: str = "",
                  equivalences=None) -> dict:
     """Write table.{tex,csv,md} and ranking.{tex,md,csv}; returns {kind: path}.
@@ -389,6 +429,7 @@ def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: st
     """
     rows = (rows_from_equivalences(out, ordered, equivalences) if equivalences is not None
             else rows_from_results(out, ordered))
+    index = certificate_index(out, rows)
     shown = leader_first(rows)
     best = ranking(rows, top)
     files = {
@@ -398,7 +439,16 @@ def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: st
         "ranking_tex": os.path.join(out, "ranking.tex"),
         "ranking_md": os.path.join(out, "ranking.md"),
         "ranking_csv": os.path.join(out, "ranking.csv"),
+        "table_index": os.path.join(out, "table.json"),
     }
+    import json
+
+    from ..certificate.model import envelope
+
+    write_atomic(files["table_index"], json.dumps(envelope("table", {
+        "title": "prime races", "rows": index,
+        "note": "each row names the certificate it comes from; `certify verify table.json` "
+                "re-checks every certificate and every row against it"}), indent=1) + "\n")
     moduli = sorted({r.q for r in rows})
     span = f"{moduli[0]}..{moduli[-1]}" if moduli else ""
     write_atomic(files["table_tex"], render_latex(shown, digits))

@@ -41,13 +41,32 @@ def _ball(x: arb) -> dict:
     return ball_record(x)
 
 
+def question_record(E, mode: str) -> dict:
+    from types import SimpleNamespace
+
+    from ..curves.race import TraceRaceResult
+
+    cd = E.as_dict()
+    return {"setting": "E/F_q(t)", "q": E.q, "A": cd["A_input"], "B": cd["B_input"],
+            "mode": mode, "label": f"delta_{mode}(E: {E.describe()})",
+            "statement": TraceRaceResult.statement(SimpleNamespace(mode=mode)),
+            "definition": DEFINITION}
+
+
+def _question(cert: Certificate) -> dict:
+    from ..curves.model import make_curve
+
+    q = cert.question
+    if q["mode"] not in ("cumulative", "degree"):
+        raise BadInput(f"unknown mode {q['mode']!r}")
+    return question_record(make_curve(q["q"], q["A"], q["B"]), q["mode"])
+
+
 def curve_certificate(R, target: Fraction, confirm: int, max_boxes: int,
                       seconds: float | None = None) -> Certificate:
     E, L = R.curve, R.lpoly
     cd = E.as_dict()
-    question = {"setting": "E/F_q(t)", "q": E.q, "A": cd["A_input"], "B": cd["B_input"],
-                "mode": R.mode, "label": f"delta_{R.mode}(E: {E.describe()})",
-                "statement": R.statement(), "definition": DEFINITION}
+    question = question_record(E, R.mode)
     params = {k: v for k, v in R.parameters.items() if k != "command"}
     params.update({"prec": int(R.parameters.get("prec", 128)), "max_boxes": max_boxes,
                    "confirm": confirm, "target_width": str(target)})
@@ -103,4 +122,4 @@ def _rebuild(cert: Certificate) -> Certificate:
 
 def verify_curve(cert: Certificate):
     """Recount a ``curve-race`` certificate (a :class:`~.verify.VerifyReport`)."""
-    return timed_report(cert.label, cert, _rebuild)
+    return timed_report(cert.label, cert, _rebuild, _question)

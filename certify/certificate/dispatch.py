@@ -101,11 +101,23 @@ def _verify_table(path: str, data: dict, seen: set) -> list:
         except CertifyError as exc:
             rep.add(f"row {i + 1}: certificate {name} readable", False, str(exc))
             continue
-        shown = {k: row.get(k) for k in ("label", "lower", "upper")}
-        stored = {"label": cert.label, "lower": cert.answer["enclosure"]["lower"],
-                  "upper": cert.answer["enclosure"]["upper"]}
-        rep.add(f"row {i + 1}: label and enclosure are those of {name}", shown == stored,
-                f"row shows {shown}, the certificate holds {stored}")
+        enc = cert.answer["enclosure"]
+        if row.get("flip"):
+            # a row equal to the reversed race: 1 - delta, ends swapped (exact decimals)
+            from decimal import Decimal, localcontext
+
+            with localcontext() as ctx:
+                ctx.prec = 400
+                want = (str(Decimal(1) - Decimal(enc["upper"])),
+                        str(Decimal(1) - Decimal(enc["lower"])))
+            shown = (row.get("equals"), row.get("lower"), row.get("upper"))
+            stored = (cert.label, *want)
+        else:
+            shown = (row.get("equals"), row.get("lower"), row.get("upper"))
+            stored = (cert.label, enc["lower"], enc["upper"])
+        rep.add(f"row {i + 1} ({str(row.get('label'))[:40]}): enclosure is that of {name}"
+                + (" (1 - delta)" if row.get("flip") else ""), shown == stored,
+                f"row shows {shown}, the certificate gives {stored}")
         real = os.path.realpath(cpath)
         if real not in seen:
             seen.add(real)
@@ -113,15 +125,43 @@ def _verify_table(path: str, data: dict, seen: set) -> list:
     return out
 
 
+def _is_document(path: str) -> bool:
+    """True unless the file is JSON without a ``schema`` key (a batch summary, a result)."""
+    import json
+
+    try:
+        with open(path, encoding="utf-8") as fh:
+            head = fh.read(4096)
+    except OSError:
+        return True
+    if '"schema"' in head:
+        return True
+    try:
+        with open(path, encoding="utf-8") as fh:
+            data = json.load(fh)
+    except (OSError, ValueError, RecursionError):
+        return True  # unreadable: reported as such
+    return not isinstance(data, dict) or "schema" in data
+
+
 def expand(paths: list) -> list:
-    """Files to verify: the given files, and every ``*.json`` file of a given folder."""
+    """Files to verify: the given files, and every certify ``*.json`` document of a given
+    folder (a table index there covers the certificates it names in sub-folders; JSON files
+    that are not certify documents, such as batch summaries, are skipped)."""
+    import sys
+
     files = []
     for p in paths:
         if os.path.isdir(p):
             names = sorted(n for n in os.listdir(p) if n.endswith(".json") and not n.startswith("."))
-            if not names:
-                raise BadInput(f"{p}: no .json file in this folder")
-            files.extend(os.path.join(p, n) for n in names)
+            docs = [os.path.join(p, n) for n in names if _is_document(os.path.join(p, n))]
+            for n in names:
+                if os.path.join(p, n) not in docs:
+                    print(f"certify: note: {os.path.join(p, n)} is not a certify document; skipped",
+                          file=sys.stderr)
+            if not docs:
+                raise BadInput(f"{p}: no certify .json document in this folder")
+            files.extend(docs)
         else:
             files.append(p)
         if len(files) > MAX_FILES:

@@ -55,14 +55,22 @@ def command_line(qn, digits_or_target, leader_bound: int) -> str:
     return " ".join(shlex.quote(a) for a in base)
 
 
+def question_record(qn) -> dict:
+    return {"setting": "F_q[t]", "q": qn.q, "modulus": qn.modulus,
+            "classes": list(qn.classes), "weights": list(qn.weights), "mode": qn.mode,
+            "label": qn.label, "statement": qn.statement, "definition": DEFINITION,
+            "normalisation": NORMALISATION}
+
+
+def _question(cert: Certificate) -> dict:
+    return question_record(rebuild_question(cert.question)[0])
+
+
 def ffield_certificate(res, target: Fraction, prec: int, max_boxes: int, coeff_bound: int,
                        leader_bound: int, seconds: float | None = None) -> Certificate:
     """The certificate of an F_q[t] race result computed with these parameters."""
     qn = res.question
-    question = {"setting": "F_q[t]", "q": qn.q, "modulus": qn.modulus,
-                "classes": list(qn.classes), "weights": list(qn.weights), "mode": qn.mode,
-                "label": qn.label, "statement": qn.statement, "definition": DEFINITION,
-                "normalisation": NORMALISATION}
+    question = question_record(qn)
     params = {k: v for k, v in res.parameters.items()}
     params.update({"prec": prec, "max_boxes": max_boxes, "coeff_bound": coeff_bound,
                    "leader_bound": leader_bound, "target_width": str(target), "case": res.case})
@@ -136,4 +144,4 @@ def _rebuild(cert: Certificate) -> Certificate:
 
 def verify_ffield(cert: Certificate):
     """Recount an ``ffield-race`` certificate (a :class:`~.verify.VerifyReport`)."""
-    return timed_report(cert.label, cert, _rebuild)
+    return timed_report(cert.label, cert, _rebuild, _question)

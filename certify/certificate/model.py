@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import json
 import os
+import re
 from dataclasses import dataclass
 from fractions import Fraction
 from types import MappingProxyType
@@ -33,8 +34,8 @@ SUPPORTED_VERSIONS = (2,)
 CERTIFICATE_KINDS = ("dirichlet-race", "ffield-race", "curve-race", "order-race", "ecq-race")
 #: Kinds of other documents certify writes with ``--json`` (same envelope, same schema).
 REPORT_KINDS = ("verify-report", "referee-report", "table", "l-polynomials", "twist-family",
-                "order-family",
-                "cache-report")
+                "cache-report", "batch-report", "ec-race-result", "order-result",
+                "order-family", "li-race-result")
 
 #: Limits applied before any work starts (the schema states the same bounds).
 MAX_FILE_BYTES = 64 * 2**20
@@ -68,10 +69,28 @@ def ball_record(x: arb) -> dict:
     return {"mid": mid, "rad": rad}
 
 
+_NUMBER = re.compile(r"-?[0-9]{1,15}(\.[0-9]{1,8000})?|-?[0-9](\.[0-9]{1,60})?e[-+]?[0-9]{1,4}"
+                     r"|-?[0-9]{1,400}/[0-9]{1,400}")
+_ABSURD = re.compile(r"^[-+]?[0-9.]*[0-9][eE][-+]?[0-9]{5,}$")
+
+
+def safe_fraction(text, where: str = "number") -> Fraction:
+    """Fraction(text) for the bounded forms certify writes (decimal, scientific with an exponent
+    of at most 4 digits, p/q); anything else is refused before any big-number work."""
+    if isinstance(text, int) and not isinstance(text, bool) and abs(text) < 10**400:
+        return Fraction(text)
+    if not isinstance(text, str) or not _NUMBER.fullmatch(text):
+        raise BadInput(f"{where}: {str(text)[:40]!r} is not a bounded decimal, scientific or "
+                       "rational number")
+    return Fraction(text)
+
+
 def ball_of(record: Mapping, where: str = "ball") -> arb:
     """The ball of a ``{"mid", "rad"}`` record (containing the ball that was stored)."""
     try:
         mid, rad = record["mid"], record["rad"]
+        safe_fraction(mid, where)
+        safe_fraction(rad, where)
         if Fraction(rad) < 0:
             raise ValueError("negative radius")
         return ball_from_strings(mid, rad)
@@ -239,6 +258,28 @@ def _refuse_constant(name):
     raise ValueError(f"{name} is not a number certify accepts")
 
 
+def _parse_float(text: str) -> float:
+    if _ABSURD.match(text) or len(text) > 400:
+        raise ValueError(f"the number {text[:40]} has an absurd exponent or length")
+    v = float(text)
+    if v != v or v in (float("inf"), float("-inf")):
+        raise ValueError(f"the number {text[:40]} is not finite")
+    return v
+
+
+def _scan(obj, depth: int = 0) -> None:
+    """Refuse strings that are numbers with absurd exponents, anywhere in a document."""
+    if isinstance(obj, str):
+        if len(obj) < 400 and _ABSURD.match(obj.strip()):
+            raise ValueError(f"the number {obj[:40]!r} has an absurd exponent")
+    elif isinstance(obj, dict):
+        for v in obj.values():
+            _scan(v, depth + 1)
+    elif isinstance(obj, list):
+        for v in obj:
+            _scan(v, depth + 1)
+
+
 def _depth(text: str) -> int:
     """Nesting depth of brackets outside strings (a cheap guard before parsing)."""
     depth = best = 0
@@ -274,7 +315,10 @@ def parse_json_strict(text: str, source: str) -> Any:
     if _depth(text) > MAX_DEPTH:
         raise BadInput(f"{source}: JSON nested deeper than {MAX_DEPTH} levels")
     try:
-        return json.loads(text, object_pairs_hook=_no_duplicates, parse_constant=_refuse_constant)
+        data = json.loads(text, object_pairs_hook=_no_duplicates, parse_constant=_refuse_constant,
+                          parse_float=_parse_float)
+        _scan(data)
+        return data
     except _DuplicateKey as exc:
         raise BadInput(f"{source}: duplicate key {str(exc)[:60]!r} in a JSON object") from None
     except json.JSONDecodeError as exc:

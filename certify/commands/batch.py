@@ -69,7 +69,7 @@ def run_table(args) -> int:
                         command_line=cmd, use_cache=not args.no_cache,
                         symmetries=args.symmetries)
     if args.json:
-        write_json(summary, args.json)
+        write_json(summary, args.json, "batch-report")
     if args.json == "-":
         return _table_exit(summary)
     t = summary["timings_seconds"]

@@ -217,7 +217,7 @@ def run_check(args) -> int:
         from ..render.report import claims_report_dict
 
         d = claims_report_dict("command line", [v], {0: written.get("json", "")})
-        write_json(d, args.json)
+        write_json(d, args.json, "referee-report")
     return {"consistent": 0, "refuted": EXIT_REFUTED}.get(v.verdict, EXIT_UNDECIDED)
 
 
@@ -308,7 +308,7 @@ def run_claims(args) -> int:
                                         show_progress=progress_enabled(args))
     if args.json:
         with open(paths["json"], encoding="utf-8") as fh:
-            write_json(json.load(fh), args.json)
+            write_json(json.load(fh), args.json, "referee-report")
     counts = {k: sum(1 for v in verdicts if v.verdict == k) for k in ("consistent", "refuted", "undecided")}
     bad = len(paths["errors"])
     if args.json != "-":
@@ -326,7 +326,7 @@ def run_demo(args) -> int:
     if args.json:
         write_json({"ok": summary["ok"], "paths": summary["paths"],
                     "verify": [{"file": p, "ok": ok, "seconds": round(s, 3)}
-                               for p, ok, s, _ in summary["verify"]]}, args.json)
+                               for p, ok, s, _ in summary["verify"]]}, args.json, "referee-report")
     if args.json != "-":
         print(summary["text"])
     return 0 if summary["ok"] else 1

@@ -101,7 +101,9 @@ def run_ecrace(args) -> int:
         d = result.to_dict()
         if obs is not None:
             d["observed"] = obs.as_dict()
-        text = json.dumps(d, indent=2)
+        from ..certificate.model import envelope
+
+        text = json.dumps(envelope("ec-race-result", d), indent=2, default=str)
         if args.json == "-":
             sys.stdout.write(text + "\n")
         else:

@@ -135,7 +135,10 @@ def run_lirace(args) -> int:
     if args.json:
         d = result.to_dict()
         d["rh_to_height"] = rh
-        text = json.dumps(d, indent=2)
+        from ..certificate.model import envelope
+
+        # the result in the common envelope; --certificate DIR writes the certificate
+        text = json.dumps(envelope("li-race-result", d), indent=2, default=str)
         if args.json == "-":
             sys.stdout.write(text + "\n")
         else:

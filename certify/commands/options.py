@@ -204,10 +204,18 @@ def check_outputs(args) -> None:
     check_name(getattr(args, "name", None))
 
 
-def write_json(obj, path: str) -> None:
-    """Write ``obj`` as JSON to ``path`` atomically, or to standard output for ``-``."""
+def write_json(obj, path: str, kind: str | None = None) -> None:
+    """Write ``obj`` as JSON to ``path`` atomically, or to standard output for ``-``.
+
+    A document that is not already a certify document is put in the common envelope
+    (``schema``, ``schema_version``, ``kind``) so that one schema validates every output.
+    """
     from ..io import write_atomic
 
+    if kind is not None and not (isinstance(obj, dict) and "schema" in obj):
+        from ..certificate.model import envelope
+
+        obj = envelope(kind, obj if isinstance(obj, dict) else {"items": obj})
     text = json.dumps(obj, indent=2, default=str)
     if path == "-":
         sys.stdout.write(text + "\n")

@@ -202,7 +202,9 @@ def run_twists(args) -> int:
         text = "\n\n".join(f"## twist degree {r.twist_degree}\n\n{r.table()}" for r in results)
         _write(text, table_path)
     if args.json:
-        _write(json.dumps(out, indent=2, default=str), args.json)
+        from ..certificate.model import envelope
+
+        _write(json.dumps(envelope("twist-family", out), indent=2, default=str), args.json)
     if args.json != "-":
         print(family_screen(results, c))
     return 0

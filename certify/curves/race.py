@@ -20,6 +20,8 @@ P(mu_r + sum_k w_k cos Theta_k > 0), computed by the shared density engine.
 
 from __future__ import annotations
 
+from ..result import NotebookDisplay
+
 import math
 from dataclasses import dataclass, field
 from fractions import Fraction
@@ -204,7 +206,7 @@ def _width_floor(k: int, target: float) -> float:
 
 
 @dataclass(frozen=True)
-class TraceRaceResult:
+class TraceRaceResult(NotebookDisplay):
     """Everything a certificate for a curve's trace race needs."""
 
     curve: EllipticCurve

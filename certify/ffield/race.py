@@ -33,6 +33,8 @@ density enclosed by box subdivision.
 
 from __future__ import annotations
 
+from ..result import NotebookDisplay
+
 import math
 import time
 from dataclasses import dataclass, field
@@ -457,7 +459,7 @@ def residue_leader_report(G: CharacterGroup, wd: dict[int, int], bound: int, mod
 
 # ---------------------------------------------------------------- certification
 @dataclass(frozen=True, eq=False)
-class FFRaceResult:
+class FFRaceResult(NotebookDisplay):
     """Everything a certificate needs about one function-field race."""
 
     question: FFRaceQuestion

@@ -1,0 +1,283 @@
+"""Tampered certificates of every kind are rejected (non-zero exit, within 10 s); clean ones pass.
+
+Issue 10's tamper suite: one variant per field a document shows, plus duplicated,
+upgraded and inserted entries and crafted sizes (a radius of 1e30, a bound of
+1e-999999999, a working precision of 10^8 bits).  Each variant is written to a
+file and checked through ``certify verify`` (``certify.cli.main``), as a referee
+would; the clean file of each kind must verify.
+"""
+
+import copy
+import json
+import time
+
+import pytest
+
+from certify.cli import main
+
+LIMIT_SECONDS = 10.0
+
+
+@pytest.fixture(scope="module")
+def clean(tmp_path_factory):
+    """One certificate per kind, written by the CLI: {kind: dict}."""
+    d = tmp_path_factory.mktemp("clean")
+    out = {}
+    assert main(["race", "4", "3", "1", "--digits", "8", "--json", str(d / "q.json")]) == 0
+    assert main(["ffrace", "3", "t^2+1", "t+1", "1", "--digits", "6", "--leaders", "10",
+                 "--json", str(d / "f.json")]) == 0
+    # five non-torsion angles, LI assumed (the curve of tests/curves/test_race.py)
+    assert main(["curve", "5", "2 + 2*t + 2*t^2 + 4*t^5", "4 + 4*t + t^7 + t^8", "--digits", "6",
+                 "--json", str(d / "c.json")]) == 0
+    for k, name in (("dirichlet-race", "q"), ("ffield-race", "f"), ("curve-race", "c")):
+        out[k] = json.loads((d / f"{name}.json").read_text())
+        assert out[k]["kind"] == k
+    return out
+
+
+def _run(tmp_path, text: str) -> tuple[int, float]:
+    p = tmp_path / "t.json"
+    p.write_text(text, encoding="utf-8")
+    t0 = time.time()
+    code = main(["verify", str(p)])
+    return code, time.time() - t0
+
+
+@pytest.mark.parametrize("kind", ["dirichlet-race", "ffield-race", "curve-race"])
+def test_clean_certificates_verify(clean, tmp_path, kind):
+    code, secs = _run(tmp_path, json.dumps(clean[kind]))
+    assert code == 0 and secs < LIMIT_SECONDS
+    # a byte-order mark is accepted
+    code, _ = _run(tmp_path, "\ufeff" + json.dumps(clean[kind]))
+    assert code == 0
+
+
+def _hyp(d, name):
+    return next(h for h in d["hypotheses"] if h["name"] == name)
+
+
+def _ev(d, hyp, kind):
+    return next(e for e in _hyp(d, hyp)["evidence"] if e["kind"] == kind)
+
+
+def _grp(d):
+    return d["spectrum"]["groups"][0]
+
+
+def _bump(s: str, k: int = 3) -> str:
+    """Change the k-th decimal digit of a decimal string (far above any stored radius)."""
+    i = s.index(".") + k
+    return s[:i] + str((int(s[i]) + 5) % 10) + s[i + 1:]
+
+
+def _narrow(d):
+    e = d["answer"]["enclosure"]
+    from fractions import Fraction
+    lo, hi = Fraction(e["lower"]), Fraction(e["upper"])
+    w = hi - lo
+    e["lower"] = str(round(float(lo + w / 3), 25))
+    e["upper"] = str(round(float(hi - w / 3), 25))
+
+
+def _insert_grh_theorem(d):
+    fake = copy.deepcopy(_hyp(d, "GRH"))
+    fake["status"] = "theorem"
+    d["hypotheses"].insert(0, fake)
+
+
+def _dup_evidence(d):
+    e = copy.deepcopy(_ev(d, "GRH", "zero-count"))
+    e["data"]["height"] = "10000"
+    e["data"]["count"] = 10000
+    _hyp(d, "GRH")["evidence"].append(e)
+
+
+def _raise_height(d):
+    g = _grp(d)
+    g["isolation_height"] = str(float(g["isolation_height"]) + 15)
+    for e in _hyp(d, "GRH")["evidence"]:
+        if e["kind"] in ("zeros-on-critical-line", "zero-count"):
+            key = "isolation_height" if e["kind"] == "zeros-on-critical-line" else "height"
+            e["data"][key] = g["isolation_height"]
+
+
+def _drop_zero(d):
+    del _grp(d)["zeros"][5]
+
+
+DIRICHLET = {
+    "question statement reversed": lambda d: d["question"].update(
+        statement=d["question"]["statement"].replace("pi(x;4,3) > pi(x;4,1)", "pi(x;4,1) > pi(x;4,3)")),
+    "definition: natural density": lambda d: d["question"].update(definition="natural density"),
+    "normalisation changed": lambda d: d["question"].update(normalisation="E(x) = pi(x)"),
+    "label changed": lambda d: d["question"].update(label="delta(4;1,3)"),
+    "modulus changed": lambda d: d["question"].update(modulus=8),
+    "classes swapped": lambda d: d["question"].update(classes=[1, 3]),
+    "weights changed": lambda d: d["question"]["weights"][0].update(weight="2"),
+    "race kind changed": lambda d: d["question"].update(kind="residues"),
+    "GRH upgraded to theorem": lambda d: _hyp(d, "GRH").update(status="theorem"),
+    "LI upgraded to verified": lambda d: _hyp(d, "LI").update(status="verified"),
+    "second GRH entry inserted": _insert_grh_theorem,
+    "LI duplicated": lambda d: d["hypotheses"].append(copy.deepcopy(_hyp(d, "LI"))),
+    "GRH removed": lambda d: d.update(hypotheses=[h for h in d["hypotheses"] if h["name"] != "GRH"]),
+    "LI removed": lambda d: d.update(hypotheses=[h for h in d["hypotheses"] if h["name"] != "LI"]),
+    "hypotheses reordered": lambda d: d["hypotheses"].reverse(),
+    "GRH statement changed": lambda d: _hyp(d, "GRH").update(statement="GRH holds."),
+    "reference added": lambda d: _hyp(d, "GRH").update(reference="a proof, Annals 2030"),
+    "unexpected hypothesis": lambda d: d["hypotheses"].append(
+        {"name": "Extra", "statement": "s", "status": "verified", "evidence": [], "reference": ""}),
+    "evidence text rewritten": lambda d: _ev(d, "GRH", "zero-count").update(
+        text="GRH verified to height 10000"),
+    "evidence duplicated with invented data": _dup_evidence,
+    "evidence removed": lambda d: _hyp(d, "LI").update(
+        evidence=[e for e in _hyp(d, "LI")["evidence"] if e["kind"] != "central-value"]),
+    "zero count changed": lambda d: _ev(d, "GRH", "zero-count")["data"].update(count=3),
+    "completeness height raised": lambda d: _ev(d, "GRH", "moment-completeness")["data"].update(
+        complete_below="9999"),
+    "simple zeros inflated": lambda d: _ev(d, "LI", "simple-zeros")["data"].update(proven_simple=99),
+    "relation norm bound raised": lambda d: _ev(d, "LI", "integer-relation-search")["data"].update(
+        norm_lower_bound="99999"),
+    "central value changed": lambda d: _ev(d, "LI", "central-value")["data"]["re"].update(mid="0.5"),
+    "published verification text": lambda d: _ev(d, "GRH", "published-verification").update(
+        text="GRH has been verified for every conductor"),
+    "caution rewritten": lambda d: d.update(caution="Unconditional theorem."),
+    "references changed": lambda d: d["references"].append("an invented reference"),
+    "isolation height raised past missing zeros": _raise_height,
+    "zero dropped": _drop_zero,
+    "zero moved": lambda d: _grp(d)["zeros"][3].update(mid=_bump(_grp(d)["zeros"][3]["mid"], 6)),
+    "moment changed": lambda d: _grp(d)["moments"]["target_sums"][1].update(
+        mid=_bump(_grp(d)["moments"]["target_sums"][1]["mid"], 6)),
+    "residual sum changed": lambda d: _grp(d)["moments"]["residual_sums"][0].update(mid="0.5"),
+    "scale changed": lambda d: _grp(d)["scale"].update(mid="3"),
+    "group label changed": lambda d: _grp(d).update(label="chi_{4,1}"),
+    "parity flipped": lambda d: _grp(d)["l_functions"][0].update(parity=0),
+    "enclosure narrowed": _narrow,
+    "enclosure shifted": lambda d: d["answer"]["enclosure"].update(lower="0.2", upper="0.3"),
+    "width changed": lambda d: d["answer"].update(width="1e-20"),
+    "digits inflated": lambda d: d["answer"].update(certified_digits="0.995927923279"),
+    "target changed": lambda d: d["answer"].update(target_width="1e-30"),
+    "target_met flipped": lambda d: d["answer"].update(target_met=not d["answer"]["target_met"]),
+    "gap to one changed": lambda d: d["answer"]["gap_to_one"].update(lower="1e-9"),
+    "mean changed": lambda d: d["answer"].update(mean="1/3"),
+    "variance changed": lambda d: d["answer"]["variance"].update(mid="0.9"),
+    "engine ball moved": lambda d: d["answer"]["engine_ball"].update(mid="0.5"),
+    "exact value claimed": lambda d: d["answer"].update(exact={"value": "1/2", "reason": "symmetry"}),
+    "bound lowered": lambda d: d["error_budget"][0].update(bound="1e-30"),
+    "budget entry duplicated": lambda d: d["error_budget"].append(copy.deepcopy(d["error_budget"][0])),
+    "budget entry removed": lambda d: d["error_budget"].pop(),
+    "budget description changed": lambda d: d["error_budget"][0].update(description="nothing"),
+    "period changed": lambda d: d["parameters"].update(period_L="100/7"),
+    "terms changed": lambda d: d["parameters"].update(terms=d["parameters"]["terms"] + 1),
+    "digits requested changed": lambda d: d["parameters"].update(digits_requested=20),
+    "zeros used changed": lambda d: d["parameters"].update(zeros_used=1000),
+    "target width parameter changed": lambda d: d["parameters"].update(target_width="1e-3"),
+    "input digest changed": lambda d: d["provenance"].update(input_digest="sha256:" + "0" * 64),
+    "crafted: radius 1e30": lambda d: _grp(d)["zeros"][0].update(rad="1" + "0" * 30),
+    "crafted: bound 1e-999999999": lambda d: d["error_budget"][0].update(bound="1e-999999999"),
+    "crafted: precision 10^8 bits": lambda d: d["parameters"].update(working_precision_bits=10**8),
+    "crafted: precision 20000 bits": lambda d: d["parameters"].update(working_precision_bits=20000),
+    "crafted: tiny radius": lambda d: _grp(d)["zeros"][0].update(rad="0." + "0" * 7990 + "1"),
+    "crafted: moments at 10^6 bits": lambda d: _grp(d)["moments"].update(source_bits=10**6),
+    "crafted: 10^4 moments": lambda d: _grp(d)["moments"].update(count=10**4, source_count=10**4),
+    "crafted: huge modulus": lambda d: d["question"].update(modulus=10**40),
+    "crafted: isolation height 1e9": lambda d: _grp(d).update(isolation_height="1000000000"),
+    "schema version changed": lambda d: d.update(schema_version=3),
+    "kind changed": lambda d: d.update(kind="curve-race"),
+    "unknown top-level key": lambda d: d.update(verified_by="a referee"),
+}
+
+FFIELD = {
+    "enclosure narrowed": _narrow,
+    "L coefficient changed": lambda d: d["spectrum"]["l_polynomials"][0]["coefficients"].__setitem__(
+        0, "7"),
+    "inverse root moved": lambda d: d["spectrum"]["l_polynomials"][0]["inverse_roots"][0]["re"].update(
+        mid="1.5"),
+    "relation changed": lambda d: d["spectrum"]["relations"][0].__setitem__(0, 5),
+    "relations hypothesis removed": lambda d: d.update(
+        hypotheses=[h for h in d["hypotheses"] if h["name"] != "relations"]),
+    "Weil downgraded": lambda d: _hyp(d, "Weil").update(status="assumed"),
+    "relations upgraded": lambda d: _hyp(d, "relations").update(status="theorem"),
+    "hypothesis duplicated": lambda d: d["hypotheses"].append(copy.deepcopy(d["hypotheses"][0])),
+    "bound lowered": lambda d: d["error_budget"][0].update(bound="1e-40"),
+    "evidence rewritten": lambda d: _hyp(d, "Weil")["evidence"][0].update(text="all fine"),
+    "statement changed": lambda d: d["question"].update(statement="natural density of nothing"),
+    "classes changed": lambda d: d["question"].update(classes=["t+2", "1"]),
+    "mode changed": lambda d: d["question"].update(mode="degree"),
+    "caution rewritten": lambda d: d.update(caution="Unconditional."),
+    "digits inflated": lambda d: d["answer"].update(certified_digits="0.62878810366"),
+    "exact value claimed": lambda d: d["answer"].update(exact="2/3"),
+    "crafted: precision 10^8 bits": lambda d: d["parameters"].update(prec=10**8),
+    "crafted: 10^9 boxes": lambda d: d["parameters"].update(max_boxes=10**9),
+    "crafted: target 1e-999999999": lambda d: d["parameters"].update(target_width="1e-999999999"),
+    "crafted: huge field": lambda d: d["question"].update(q=10**9),
+    "parameter changed": lambda d: d["parameters"].update(boxes=1),
+}
+
+CURVE = {
+    "enclosure narrowed": _narrow,
+    "L coefficient changed": lambda d: d["spectrum"]["l_polynomial"]["coefficients"].__setitem__(1, 3),
+    "rank changed": lambda d: d["spectrum"]["l_polynomial"].update(analytic_rank=2),
+    "hypothesis removed": lambda d: d["hypotheses"].pop(0),
+    "LI upgraded": lambda d: _hyp(d, "LI").update(status="theorem"),
+    "bound lowered": lambda d: d["error_budget"][0].update(bound="1e-40"),
+    "curve changed": lambda d: d["question"].update(A="2 + 2*t + 2*t^2 + 3*t^5"),
+    "LI downgraded evidence": lambda d: _hyp(d, "LI")["evidence"].append(
+        {"kind": "recount", "text": "LI proven", "data": {}}),
+    "statement changed": lambda d: d["question"].update(statement="density of everything"),
+    "bad place changed": lambda d: d["spectrum"]["curve"]["bad_places"][0].update(kodaira="II"),
+    "crafted: confirm 100": lambda d: d["parameters"].update(confirm=100),
+    "crafted: precision 10^8 bits": lambda d: d["parameters"].update(prec=10**8),
+}
+
+CASES = ([("dirichlet-race", k) for k in DIRICHLET] + [("ffield-race", k) for k in FFIELD]
+         + [("curve-race", k) for k in CURVE])
+MUTATORS = {"dirichlet-race": DIRICHLET, "ffield-race": FFIELD, "curve-race": CURVE}
+
+
+def test_the_suite_is_large_enough():
+    assert len(CASES) >= 60 and all(len(m) >= 10 for m in MUTATORS.values())
+
+
+@pytest.mark.parametrize("kind,name", CASES)
+def test_tampered_certificate_rejected(clean, tmp_path, kind, name):
+    d = copy.deepcopy(clean[kind])
+    MUTATORS[kind][name](d)
+    assert d != clean[kind], "the mutation changed nothing"
+    code, secs = _run(tmp_path, json.dumps(d))
+    assert code != 0, f"{kind}: '{name}' was accepted"
+    assert secs < LIMIT_SECONDS, f"{kind}: '{name}' took {secs:.1f} s"
+
+
+RAW = {
+    "duplicate key": lambda t: t.replace('"caution":', '"caution": "x", "caution":', 1),
+    "deep nesting": lambda t: t[:-2] + ', "x": ' + "[" * 100000 + "]" * 100000 + "}\n",
+    "NaN": lambda t: t.replace('"terms": ', '"terms": NaN, "t2": ', 1),
+    "huge integer": lambda t: t.replace('"terms": ', '"terms": 1' + "0" * 5000 + ', "t3": ', 1),
+    "truncated": lambda t: t[: len(t) // 2],
+}
+
+
+@pytest.mark.parametrize("name", list(RAW))
+def test_malformed_json_refused_cleanly(clean, tmp_path, capsys, name):
+    text = RAW[name](json.dumps(clean["dirichlet-race"]))
+    code, secs = _run(tmp_path, text)
+    err = capsys.readouterr().err
+    assert code == 2 and secs < LIMIT_SECONDS and "Traceback" not in err
+    assert len(err.strip().splitlines()) == 1
+
+
+def test_a_table_folder_verifies_whole_and_a_tampered_row_fails(tmp_path, capsys):
+    """Every row of `certify table` names a certificate that verify accepts; the folder and
+    the index verify whole; a row whose shown enclosure is changed fails."""
+    out = tmp_path / "t"
+    assert main(["table", "--moduli", "3-4", "--digits", "5", "--out", str(out), "--no-cache",
+                 "--quiet"]) == 0
+    index = json.loads((out / "table.json").read_text())
+    assert index["kind"] == "table" and len(index["rows"]) >= 4
+    assert all((out / r["certificate"]).is_file() for r in index["rows"])
+    assert "certificates/" in (out / "table.md").read_text()
+    assert main(["verify", str(out / "table.json")]) == 0
+    assert main(["verify", str(out)]) == 0
+    index["rows"][1]["lower"] = index["rows"][1]["lower"][:-1] + "9"
+    (out / "table.json").write_text(json.dumps(index))
+    assert main(["verify", str(out / "table.json")]) == 4
