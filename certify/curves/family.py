@@ -290,8 +290,9 @@ def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = Non
         Hypothesis("RH for each L(E_f,u)", "inverse roots of modulus q", "theorem",
                    ("enclosed and checked for every member",), "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
         Hypothesis("LI for each member", "the non-torsion angles of each member together with 1 are Q-linearly independent",
-                   "assumed", (f"LLL relation search for each of the {len(members)} members; members where a relation "
-                               "appeared are listed as not certified",)),
+                   "assumed", (f"LLL relation search for each of the {len(members)} members; a member whose angles "
+                               "satisfy relations (each confirmed exactly) is certified on the orbit closure "
+                               "instead, or listed as not certified with the reason",)),
     )
     params = {"q": q, "A": A, "B": B, "n": n, "d": d, "mode": mode, "target_width": target_width,
               "max_boxes_relation_case": max_boxes,
