@@ -115,13 +115,14 @@ def rebuild_question(rec):
 
 
 def certify_ffield(qn, G, wd, target: Fraction, prec: int = 160, max_boxes: int = 200000,
-                   coeff_bound: int = 60, leader_bound: int = 60):
-    """(result, certificate) of an F_q[t] race."""
+                   coeff_bound: int = 60, leader_bound: int = 60, progress=None):
+    """(result, certificate) of an F_q[t] race (``progress(message)`` is told each stage)."""
     from ..ffield.race import certify_ffrace
 
     t0 = time.time()
     res = certify_ffrace(qn, G, wd, target_width=float(target), prec=prec,
-                         leader_bound=leader_bound, max_boxes=max_boxes, coeff_bound=coeff_bound)
+                         leader_bound=leader_bound, max_boxes=max_boxes, coeff_bound=coeff_bound,
+                         progress=progress)
     return res, ffield_certificate(res, target, prec, max_boxes, coeff_bound, leader_bound,
                                    time.time() - t0)
 
