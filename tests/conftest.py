@@ -34,18 +34,12 @@ class _Terminal:
 
 
 @pytest.fixture
-def fake_terminal(monkeypatch):
-    """Standard error replaced by a stream that is a terminal: progress displays switch on."""
-    import sys
-
-    term = _Terminal()
-    monkeypatch.setattr(sys, "stderr", term)
-    return term
-
-
-@pytest.fixture
 def make_terminal(monkeypatch):
-    """A function that replaces standard error by a fresh terminal stream and returns it."""
+    """A function that replaces standard error by a fresh terminal stream and returns it.
+
+    Call it in the test's body: pytest's capture sets sys.stderr again when the call
+    phase starts, so a fixture's own replacement would not last.
+    """
     import sys
 
     def make():

@@ -80,8 +80,9 @@ _SLOW_RACES = [
 
 
 @pytest.mark.parametrize("argv,needle", _SLOW_RACES)
-def test_formerly_silent_races_explain_themselves_quickly(argv, needle, fake_terminal):
+def test_formerly_silent_races_explain_themselves_quickly(argv, needle, make_terminal):
     import time
+    fake_terminal = make_terminal()
     t0 = time.time()
     rc = main(argv)
     elapsed = time.time() - t0
