@@ -312,6 +312,10 @@ def json_key(obj) -> str:
 
 def _evidence_then_rebuild(cert: Certificate, report) -> Certificate:
     check_evidence(cert, report)
+    if report.failures:  # evidence that does not follow from its data: no costly recount
+        from ..errors import Inconsistent
+
+        raise Inconsistent("the evidence does not follow from its data; recount skipped")
     return _rebuild(cert)
 
 
