@@ -40,8 +40,9 @@ def main() -> None:
     wr = sp["worker_recheck"]
     print(f"table --moduli 3-{a.max_q} --digits {a.digits} --workers {a.workers} --no-cache")
     print(f"  races {s['races']}; spectra computed by workers {sp['computed']}")
-    print(f"  worker spectra re-checked by the coordinator: {wr['entries']} in {wr['seconds']:.2f} s "
-          f"({1000 * wr['seconds'] / max(wr['entries'], 1):.1f} ms each), refused {wr['refused']}")
+    print(f"  worker spectra re-checked by the coordinator: {wr['entries']} in {wr['seconds']:.2f} s wall, "
+          f"{wr['cpu_seconds']:.2f} s CPU ({1000 * wr['cpu_seconds'] / max(wr['entries'], 1):.1f} ms CPU "
+          f"each), refused {wr['refused']}")
     print(f"  spectra phase {t['spectra']:.1f} s wall; races phase {t['races']:.1f} s; total "
           f"{t['total']:.1f} s wall; coordinator CPU {cpu:.1f} s")
     print(f"  re-check share: {100 * wr['seconds'] / max(t['total'], 1e-9):.1f}% of the run's wall time")

@@ -82,14 +82,14 @@ def recheck_worker_spectrum(req, res: dict, stats: dict):
     stored in the cache holds the re-derived balls.  A spectrum that fails is refused
     with a warning (not shipped, not stored): the races that need it compute it in
     their own task, where the race driver checks every quantity itself.
-    ``stats`` accumulates ``entries``, ``seconds`` and ``refused``.
+    ``stats`` accumulates ``entries``, ``seconds`` (wall), ``cpu_seconds`` and ``refused``.
     """
     import warnings
 
     from .recheck import recheck_spectrum
     from .serial import encode
 
-    t0 = time.perf_counter()
+    t0, c0 = time.perf_counter(), time.process_time()
     name = f"chi_{{{req.conductor},{req.label}}}"
     try:
         sp = decode(res["blob"], res["digest"])
@@ -100,6 +100,7 @@ def recheck_worker_spectrum(req, res: dict, stats: dict):
     except (CertifyError, ArithmeticError, ValueError, KeyError, TypeError) as exc:
         stats["refused"] += 1
         stats["seconds"] += time.perf_counter() - t0
+        stats["cpu_seconds"] += time.process_time() - c0
         warnings.warn(f"the spectrum of {name} computed by a worker was refused on re-check "
                       f"({exc}); the races that need it compute it themselves",
                       WorkerSpectrumWarning, stacklevel=2)
@@ -107,6 +108,7 @@ def recheck_worker_spectrum(req, res: dict, stats: dict):
     blob, digest = encode(sp)
     stats["entries"] += 1
     stats["seconds"] += time.perf_counter() - t0
+    stats["cpu_seconds"] += time.process_time() - c0
     return sp, blob, digest
 
 
@@ -213,7 +215,7 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
             summary["executor"] = {"kind": executor.name, "workers": executor.workers}
         per_conductor = defaultdict(lambda: {"characters": 0, "zeros_s": 0.0, "moments_s": 0.0,
                                              "central_s": 0.0, "z_calls": 0, "zeros": 0})
-        worker_recheck = {"entries": 0, "seconds": 0.0, "refused": 0}
+        worker_recheck = {"entries": 0, "seconds": 0.0, "cpu_seconds": 0.0, "refused": 0}
         summary["spectra"]["worker_recheck"] = worker_recheck
         if todo:
             prog = Progress("spectra", len(todo), sum(r.cost for r, _ in todo), "L-functions",
@@ -264,6 +266,7 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                 prog.advance(1, r.cost)
             prog.finish()
         worker_recheck["seconds"] = round(worker_recheck["seconds"], 3)
+        worker_recheck["cpu_seconds"] = round(worker_recheck["cpu_seconds"], 3)
         summary["per_conductor"] = {str(c): {k: (round(v, 3) if isinstance(v, float) else v)
                                              for k, v in d.items()}
                                     for c, d in sorted(per_conductor.items())}
