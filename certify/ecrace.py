@@ -32,7 +32,7 @@ from .density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .result import CAUTION, Enclosure, Hypothesis
 from .source.ell_l import EllipticL, check_conductor_for_l
-from .source.ellcurve import EllipticCurveQ, curve_from_ainvs
+from .source.ellcurve import EllipticCurveQ, curve_from_ainvs, with_global_root_number
 from .spectrum.lfunction import zero_power_sums_of
 from .spectrum.spectrum import residual_checks, residual_sums
 from .spectrum.zeros import find_zeros_of
@@ -51,6 +51,7 @@ REFERENCES = (
     "Lecture Notes in Mathematics 476 (1975).",
     "Variation of the root number in families of elliptic curves, "
     "Compositio Mathematica 87 (1993).",
+    "Galois theory, elliptic curves, and root numbers, Compositio Mathematica 100 (1996).",
     "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
     "IEEE Transactions on Computers 66 (2017).",
 )
@@ -336,6 +337,8 @@ def certify_ec_race(curve, digits: int = DEFAULT_DIGITS, max_rounds: int = 5,
     if E.root_number_local is not None and fe_eps != E.root_number_local:
         raise Inconsistent(f"root number from local data ({E.root_number_local:+d}) contradicts "
                            f"the functional equation ({fe_eps:+d}); not certified")
+    # an open local factor (additive at 2 or 3, no formula) is derived from the proven sign
+    E = with_global_root_number(E, fe_eps)
     timings = {}
     t0 = time.time()
     rank = analytic_rank(L)
