@@ -132,6 +132,46 @@ class ECRaceQuestion:
                 f"for E: [{','.join(map(str, self.ainvs))}] of conductor {self.conductor}")
 
 
+MAX_CLAIM_DIGITS = 12  # a curve claim is decided at most to this width (the recount limit)
+
+
+@dataclass(frozen=True)
+class CurveRace:
+    """A side of a curve's trace race, as claims name it: ``delta(E[a1,a2,a3,a4,a6]>0)``.
+
+    ``side`` is ">0" (the density of x with sum_{p <= x} a_p/sqrt(p) > 0) or "<0"
+    (its complement, 1 - delta(>0) exactly under LI).  The a-invariants are kept as
+    given; the certificate is that of the side ">0".
+    """
+
+    ainvs: tuple
+    side: str = ">0"
+    kind: str = "ecq-trace-sum"
+
+    @property
+    def label(self) -> str:
+        return f"delta(E[{','.join(map(str, self.ainvs))}]{self.side})"
+
+    @property
+    def statement(self) -> str:
+        rel = ">" if self.side == ">0" else "<"
+        return (f"the logarithmic density of the set of x >= 2 with sum_(p <= x) a_p(E)/sqrt(p) "
+                f"{rel} 0, E = [{','.join(map(str, self.ainvs))}]")
+
+    def enclosure(self, result) -> tuple:
+        """(lower, upper) of this side from a result of :func:`certify_ec_race`."""
+        d = result.density if self.side == ">0" else result.negative_density
+        return d.lower, d.upper
+
+
+def curve_race(ainvs, side: str = ">0") -> CurveRace:
+    """A checked :class:`CurveRace` (BadInput, one line, for a singular or malformed curve)."""
+    if side not in (">0", "<0"):
+        raise BadInput(f"the side of a curve race is >0 or <0, got {side!r}")
+    E = curve_from_ainvs(ainvs)
+    return CurveRace(tuple(E.ainvs), side)
+
+
 @dataclass(frozen=True)
 class ECRaceResult(NotebookDisplay):
     """A certified density for the trace race of a curve, with everything behind it.
