@@ -301,6 +301,11 @@ def _hypotheses(E, L, zl, rank: RankReport, notes) -> tuple:
               f"changes of the Hardy Z-function up to height {zl.height:g}",
               *notes,
               f"root number {L.eps:+d} ({L.eps_source}); functional equation checked in balls"]
+    if not any(str(n).startswith("GRH ") for n in notes):
+        ev_grh.append("no zero count: GRH is not verified to any height here (the residual sums "
+                      "detect a missing zero but do not prove its absence); `certify ecrace "
+                      "--grh-height T` counts the zeros up to T by the argument principle and "
+                      "`certify verify` re-proves that count")
     cm = ""
     if E.has_cm:
         cm = (" E has complex multiplication: L(E, s) is a Hecke L-function of an imaginary "
