@@ -195,7 +195,7 @@ def _model_ordinates(conductor: int, height: float) -> tuple[float, ...]:
 
 
 def plan_frequency_range(groups, V: float, mu: float, tau: float,
-                         height_factor: float | None = None) -> float:
+                         height_factor: float | None = None, sums=None) -> float:
     """Frequency range where the truncation bound falls below tau/8, on model zeros.
 
     With ``height_factor`` h, a group of scale s is taken to isolate only its
@@ -203,6 +203,11 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
     residual weight asks at the frequency xi, docs/method.md section 5b), so
     groups of small weight isolate few or no zeros and rely on their moments;
     without it every zero counts (the old, optimistic plan).
+
+    With ``sums`` (per group, the floats T_1..T_K of its exact power sums) the
+    model is the bound of section 4c: the residual groups' Gaussian factors and
+    largest residual weights count too, so a race with many characters needs far
+    fewer zeros; without it, the isolated weights alone (section 4).
 
     Planning only (floating point): the engine later evaluates the bound rigorously
     on the certified zeros.
@@ -213,25 +218,54 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
     L = 2 * (abs(mu) + t)
     eps = 2 * math.pi / L
     parts = []
-    for g in groups:
+    for gi, g in enumerate(groups):
         s = float(g.scale.mid())
+        gams = []
         for (qs, _) in g.primitive_keys:
-            gam = np.asarray(_model_ordinates(qs, 2000.0))
-            parts.append((s, gam, s / np.hypot(0.5, gam)))
+            gams.append(np.asarray(_model_ordinates(qs, 2000.0)))
+        gam = np.sort(np.concatenate(gams)) if gams else np.zeros(0)
+        parts.append((s, gam, s / np.hypot(0.5, gam)))
+    use_residual = sums is not None and height_factor is not None and len(sums) == len(parts)
     xi = eps
     while xi < 1e4:
         if height_factor is None:
             weights = np.concatenate([w for _, _, w in parts]) if parts else np.zeros(0)
         else:
-            sel = [w[: int(np.searchsorted(gam, height_factor * s * xi / J01, side="right"))]
-                   for s, gam, w in parts]
+            cut = [int(np.searchsorted(gam, height_factor * s * xi / J01, side="right"))
+                   for s, gam, _ in parts]
+            sel = [w[:c] for (_, _, w), c in zip(parts, cut)]
             weights = np.concatenate(sel) if sel else np.zeros(0)
-        f = 2 / (math.pi * weights * xi)
-        small = f[f < 1]
-        if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
-            return xi
+        if use_residual:
+            if _model_tail(parts, cut, sums, weights, eps, xi, tau / 16) < tau / 16:
+                return xi
+        else:
+            f = 2 / (math.pi * weights * xi)
+            small = f[f < 1]
+            if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
+                return xi
         xi *= 1.15
     return xi
+
+
+def _model_tail(parts, cut, sums, iso, eps: float, xi: float, goal: float) -> float:
+    """Float model of the section-4c truncation bound from the frequency xi (planning only).
+
+    Per group: the isolated model zeros (the first ``cut``), and residual sums
+    T_k minus their contributions (floored at a tiny positive value).
+    """
+    import numpy as np
+
+    from .density.bessel import tail_data_from_floats, tail_float
+
+    res = []
+    for (s, gam, _), c, T in zip(parts, cut, sums):
+        a = 1 / (0.25 + gam[:c] ** 2)
+        R = [max(float(Tk) - float((a ** k).sum()), 1e-300) for k, Tk in enumerate(T, start=1)]
+        res.append((s, R))
+    d = tail_data_from_floats(np.asarray(iso, dtype=float), res)
+    N = max(1, int(xi / eps))
+    N = N if N % 2 == 1 else N + 1
+    return tail_float(d, eps, N, goal)
 
 
 def planned_zero_count(conductor: int, height: float) -> int:
@@ -314,7 +348,10 @@ class RacePlan:
         # the Rayleigh condition asks |rho| > s xi / j01 of every residual zero at the
         # largest frequency; below that height the group's zeros are isolated, above it
         # its moments carry them (a group of small weight may isolate none)
-        height = self.height_factor * s * self.xi_max / J01
+        # |rho| = sqrt(1/4 + gamma^2) >= 1/2 for every zero, so the condition holds with the
+        # margin h once sqrt(1/4 + T^2) >= h s xi / j01: below that no zero needs isolating
+        reach = self.height_factor * s * self.xi_max / J01
+        height = math.sqrt(max(0.0, reach * reach - 0.25))
         if height < MIN_HEIGHT and not self.few_zeros:
             height = MIN_HEIGHT
         # end on a point of the conductor's common search grid, so that every point the
@@ -350,13 +387,16 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
         k_bits = max(prec, int(digits * 3.33 + 2 * moments + 40))
         store.prefetch([(c, n, moments, k_bits) for g in groups for (c, n) in g.primitive_keys])
         V = arb(0)
+        sums = []
         for g in groups:
             c, n = g.primitive_keys[0]
             sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
-            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
+            div = 2 if g.is_real else 1
+            T1 = sp.power_sums[0] / div
             V += g.scale * g.scale * T1 / 2
+            sums.append([float(x.mid()) / div for x in sp.power_sums[:moments]])
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
-                                  height_factor=PLAN_HEIGHT_FACTOR)
+                                  height_factor=PLAN_HEIGHT_FACTOR, sums=sums)
     width = min(1e-6, tau / (50 * (1 + xi_max)))
     return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
 
