@@ -14,7 +14,7 @@ from .result import NotebookDisplay
 
 import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import lru_cache
 
@@ -341,6 +341,9 @@ class RacePlan:
     # exceeds the model's, and a second round costs more than the extra zeros
     height_factor: float = 3.4
     few_zeros: bool = True  # plan heights from each group's weight (no floor)
+    # per group (its first primitive key): min_k T_k^(1/(2k)) from the exact power sums, which
+    # bounds 1/|rho| over all its zeros; a group whose moments alone give y <= 1/h isolates none
+    inverse_rho: dict = field(default_factory=dict)
 
     def request(self, group) -> tuple[float, float, int, int]:
         """(height, zero width, moments, moment accuracy bits) for a spectral group."""
@@ -352,6 +355,10 @@ class RacePlan:
         # margin h once sqrt(1/4 + T^2) >= h s xi / j01: below that no zero needs isolating
         reach = self.height_factor * s * self.xi_max / J01
         height = math.sqrt(max(0.0, reach * reach - 0.25))
+        inv = self.inverse_rho.get(group.primitive_keys[0])
+        if inv is not None and self.few_zeros and reach * inv <= 1:
+            # the moments alone bound y by s xi inv / j01 <= 1/h (docs/method.md, section 5b)
+            height = 0.0
         if height < MIN_HEIGHT and not self.few_zeros:
             height = MIN_HEIGHT
         # end on a point of the conductor's common search grid, so that every point the
@@ -388,17 +395,22 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
         store.prefetch([(c, n, moments, k_bits) for g in groups for (c, n) in g.primitive_keys])
         V = arb(0)
         sums = []
+        inverse_rho = {}
         for g in groups:
             c, n = g.primitive_keys[0]
-            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
+            sp = store.get(c, n, g.parity, 0.0, 1e-3, moments, k_bits)
             div = 2 if g.is_real else 1
             T1 = sp.power_sums[0] / div
             V += g.scale * g.scale * T1 / 2
             sums.append([float(x.mid()) / div for x in sp.power_sums[:moments]])
+            pos = [(k, x) for k, x in enumerate(sums[-1], start=1) if x > 0]
+            if pos:
+                inverse_rho[g.primitive_keys[0]] = min(x ** (1 / (2 * k)) for k, x in pos)
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
                                   height_factor=PLAN_HEIGHT_FACTOR, sums=sums)
     width = min(1e-6, tau / (50 * (1 + xi_max)))
-    return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
+    return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width,
+                    inverse_rho=inverse_rho)
 
 
 def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
