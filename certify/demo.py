@@ -29,7 +29,7 @@ def run_demo(out_dir: str = "reports", quiet: bool = False) -> dict:
     """Run the scenario; returns {"ok", "text", "verdicts", "paths", "verify"}."""
     from .certificate.model import read_certificate
     from .certificate.referee import MAX_REFEREE_DIGITS, START_DIGITS
-    from .certificate.verify import verify_certificate
+    from .certificate.dispatch import verify_any
     from .commands.documents import check_claims_file
     from .render.files import write_files
 
@@ -58,7 +58,7 @@ def run_demo(out_dir: str = "reports", quiet: bool = False) -> dict:
     # re-verify every certificate written
     checks = []
     for p in paths["certificates"] + [shown["json"]]:
-        rep = verify_certificate(read_certificate(p))
+        rep = verify_any(read_certificate(p))
         checks.append((p, rep.ok, rep.seconds, rep.original_seconds))
         lines.append(f"  verify {os.path.basename(p)}: {'VERIFIED' if rep.ok else 'MISMATCH'} "
                      f"in {rep.seconds:.2f} s")

@@ -32,7 +32,7 @@ from .density.bessel import BesselVariable, ResidualGroup, density_enclosure
 from .errors import BadInput, Inconsistent, PrecisionExhausted
 from .result import CAUTION, Enclosure, Hypothesis
 from .source.ell_l import EllipticL, check_conductor_for_l
-from .source.ellcurve import EllipticCurveQ, curve_from_ainvs
+from .source.ellcurve import EllipticCurveQ, curve_from_ainvs, with_global_root_number
 from .spectrum.lfunction import zero_power_sums_of
 from .spectrum.spectrum import residual_checks, residual_sums
 from .spectrum.zeros import find_zeros_of
@@ -51,6 +51,7 @@ REFERENCES = (
     "Lecture Notes in Mathematics 476 (1975).",
     "Variation of the root number in families of elliptic curves, "
     "Compositio Mathematica 87 (1993).",
+    "Galois theory, elliptic curves, and root numbers, Compositio Mathematica 100 (1996).",
     "Arb: efficient arbitrary-precision midpoint-radius interval arithmetic, "
     "IEEE Transactions on Computers 66 (2017).",
 )
@@ -129,6 +130,46 @@ class ECRaceQuestion:
     def statement(self) -> str:
         return ("the logarithmic density of the set of x >= 2 with sum_{p <= x} a_p(E)/sqrt(p) > 0, "
                 f"for E: [{','.join(map(str, self.ainvs))}] of conductor {self.conductor}")
+
+
+MAX_CLAIM_DIGITS = 12  # a curve claim is decided at most to this width (the recount limit)
+
+
+@dataclass(frozen=True)
+class CurveRace:
+    """A side of a curve's trace race, as claims name it: ``delta(E[a1,a2,a3,a4,a6]>0)``.
+
+    ``side`` is ">0" (the density of x with sum_{p <= x} a_p/sqrt(p) > 0) or "<0"
+    (its complement, 1 - delta(>0) exactly under LI).  The a-invariants are kept as
+    given; the certificate is that of the side ">0".
+    """
+
+    ainvs: tuple
+    side: str = ">0"
+    kind: str = "ecq-trace-sum"
+
+    @property
+    def label(self) -> str:
+        return f"delta(E[{','.join(map(str, self.ainvs))}]{self.side})"
+
+    @property
+    def statement(self) -> str:
+        rel = ">" if self.side == ">0" else "<"
+        return (f"the logarithmic density of the set of x >= 2 with sum_(p <= x) a_p(E)/sqrt(p) "
+                f"{rel} 0, E = [{','.join(map(str, self.ainvs))}]")
+
+    def enclosure(self, result) -> tuple:
+        """(lower, upper) of this side from a result of :func:`certify_ec_race`."""
+        d = result.density if self.side == ">0" else result.negative_density
+        return d.lower, d.upper
+
+
+def curve_race(ainvs, side: str = ">0") -> CurveRace:
+    """A checked :class:`CurveRace` (BadInput, one line, for a singular or malformed curve)."""
+    if side not in (">0", "<0"):
+        raise BadInput(f"the side of a curve race is >0 or <0, got {side!r}")
+    E = curve_from_ainvs(ainvs)
+    return CurveRace(tuple(E.ainvs), side)
 
 
 @dataclass(frozen=True)
@@ -260,6 +301,11 @@ def _hypotheses(E, L, zl, rank: RankReport, notes) -> tuple:
               f"changes of the Hardy Z-function up to height {zl.height:g}",
               *notes,
               f"root number {L.eps:+d} ({L.eps_source}); functional equation checked in balls"]
+    if not any(str(n).startswith("GRH ") for n in notes):
+        ev_grh.append("no zero count: GRH is not verified to any height here (the residual sums "
+                      "detect a missing zero but do not prove its absence); `certify ecrace "
+                      "--grh-height T` counts the zeros up to T by the argument principle and "
+                      "`certify verify` re-proves that count")
     cm = ""
     if E.has_cm:
         cm = (" E has complex multiplication: L(E, s) is a Hecke L-function of an imaginary "
@@ -336,6 +382,8 @@ def certify_ec_race(curve, digits: int = DEFAULT_DIGITS, max_rounds: int = 5,
     if E.root_number_local is not None and fe_eps != E.root_number_local:
         raise Inconsistent(f"root number from local data ({E.root_number_local:+d}) contradicts "
                            f"the functional equation ({fe_eps:+d}); not certified")
+    # an open local factor (additive at 2 or 3, no formula) is derived from the proven sign
+    E = with_global_root_number(E, fe_eps)
     timings = {}
     t0 = time.time()
     rank = analytic_rank(L)

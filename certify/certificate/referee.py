@@ -20,8 +20,10 @@ itself (reusing the spectra) up to a limit.
 
 Claims files hold one claim per line: ``RACE = VALUE``, where RACE is
 ``delta(q;a,b)``, ``delta(q;N,R)`` (non-residues against residues),
-``weighted(q; a:w, b:w, ...)``, ``delta(pi>li)`` or ``delta(pi<li)``; ``#`` starts a comment, blank lines are
-skipped.  See docs/certificates.md.
+``weighted(q; a:w, b:w, ...)``, ``delta(pi>li)`` or ``delta(pi<li)``, or a curve over Q
+``delta(E[a1,a2,a3,a4,a6]>0)`` / ``delta(E[...]<0)`` (the density of x with
+sum_{p <= x} a_p/sqrt(p) > 0, resp. < 0; docs/elliptic_curves_q.md); ``#`` starts a
+comment, blank lines are skipped.  See docs/certificates.md.
 """
 
 from __future__ import annotations
@@ -185,6 +187,13 @@ def _parse_value(t: str) -> tuple[Fraction, Fraction, str, int]:
 def parse_race(text: str) -> RaceQuestion:
     """A race from ``delta(q;a,b)``, ``delta(q;N,R)`` or ``weighted(q; a:w, ...)``."""
     t = text.strip().replace(" ", "")
+    if len(t) > 400:
+        raise BadInput(f"race of {len(t)} characters: too long")
+    m = re.fullmatch(r"(?:delta|δ)\(E(\[[^\]]*\]|\([^)]*\))([<>]0)?\)", t)
+    if m:
+        from ..ecrace import curve_race
+
+        return curve_race(m.group(1), m.group(2) or ">0")
     m = re.fullmatch(r"(?:delta|δ)\((pi[<>]li)\)", t, flags=re.IGNORECASE)
     if m:
         return prime_vs_li(m.group(1).lower())
@@ -203,8 +212,9 @@ def parse_race(text: str) -> RaceQuestion:
     if m:
         weights = parse_weight_items(m.group(2).split(","), ":")
         return weighted(int(m.group(1)), weights)
-    raise BadInput(f"race {text.strip()!r} is not delta(q;a,b), delta(q;a,b,c,...), delta(q;N,R), "
-                   "weighted(q; a:w, b:w, ...), delta(pi>li) or delta(pi<li)")
+    raise BadInput(f"race {text.strip()[:80]!r} is not delta(q;a,b), delta(q;a,b,c,...), delta(q;N,R), "
+                   "weighted(q; a:w, b:w, ...), delta(pi>li), delta(pi<li) or a curve "
+                   "delta(E[a1,a2,a3,a4,a6]>0)")
 
 
 def parse_claim_line(line: str, source: str = "") -> Claim | None:
@@ -274,11 +284,33 @@ def _is_ordering(race) -> bool:
     return getattr(race, "kind", "") == "ordering"
 
 
+def _is_curve(race) -> bool:
+    return getattr(race, "kind", "") == "ecq-trace-sum"
+
+
+def _enclosure(race, result) -> tuple:
+    """(lower, upper) of the claimed side from a result."""
+    if _is_curve(race):
+        return race.enclosure(result)
+    return result.density.lower, result.density.upper
+
+
 def _certify(race, digits: int, store):
-    """The race's certified density: the line engine, or the orthant engine for an ordering."""
+    """The race's certified density: the line engine, the orthant engine for an ordering,
+    or the trace race of a curve over Q."""
+    if _is_curve(race):
+        from ..ecrace import MAX_CLAIM_DIGITS, certify_ec_race
+
+        return certify_ec_race(race.ainvs, min(digits, MAX_CLAIM_DIGITS))
     if _is_ordering(race):
         return certify_order(race, min(digits, MAX_ORDER_DIGITS), store=store)
     return certify_race(race, digits, store=store)
+
+
+def _curve_max_digits() -> int:
+    from ..ecrace import MAX_CLAIM_DIGITS
+
+    return MAX_CLAIM_DIGITS
 
 
 def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MAX_REFEREE_DIGITS,
@@ -311,12 +343,16 @@ def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MA
         except PrecisionExhausted as exc:
             reason = f"not decided: {exc}"
             break
-        lo, hi = result.density.lower, result.density.upper
+        lo, hi = _enclosure(claim.race, result)
         verdict, margin = decide(lo, hi, claim)
         if verdict != UNDECIDED:
             cert = None
             if with_certificate:
-                if _is_ordering(claim.race):
+                if _is_curve(claim.race):
+                    from .ecq import ecq_certificate
+
+                    cert = ecq_certificate(result, 0.0, result.timings.get("total", 0.0))
+                elif _is_ordering(claim.race):
                     from .order import order_certificate
 
                     cert = order_certificate(result, store)
@@ -325,6 +361,10 @@ def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MA
 
                     cert = certificate_from_result(result, store)
             return RefereeVerdict(claim, verdict, lo, hi, margin, tuple(tried), "", result, cert)
+        if _is_curve(claim.race) and d >= _curve_max_digits():
+            reason = (f"undecided at {d} digits (the limit for curves): the certified enclosure "
+                      f"{interval_str(lo, hi)} straddles an end of the claim")
+            break
         if _is_ordering(claim.race) and d >= MAX_ORDER_DIGITS:
             reason = (f"undecided at {d} digits (the limit for orderings): the certified enclosure "
                       f"{interval_str(lo, hi)} straddles an end of the claim")
@@ -334,6 +374,7 @@ def referee(claim: Claim, start_digits: int = START_DIGITS, max_digits: int = MA
                       f"{interval_str(lo, hi)} straddles an end of the claim")
             break
         d = min(max_digits, _next_digits(d, lo, hi, claim))
-    lo = result.density.lower if result else None
-    hi = result.density.upper if result else None
+        if _is_curve(claim.race):
+            d = min(d, _curve_max_digits())
+    lo, hi = _enclosure(claim.race, result) if result else (None, None)
     return RefereeVerdict(claim, UNDECIDED, lo, hi, None, tuple(tried), reason, result, None)

@@ -36,6 +36,8 @@ def run_table(args) -> int:
     from ..batch.run import run_batch
 
     check_outputs(args)
+    if getattr(args, "curves", None) is not None:
+        return run_curve_table(args)
     if args.cache is not None:
         _check_cache_path(args.cache)
     limits = Limits.of(args)
@@ -87,6 +89,50 @@ def run_table(args) -> int:
     print(f"  results      {os.path.join(args.out, 'results')}/  (one JSON per race)")
     print("Every density is conditional on GRH and LI for the L-functions used; "
           "certify proves neither.")
+    return _table_exit(summary, digits)
+
+
+def run_curve_table(args) -> int:
+    """``certify table --curves FILE``: one certified row per elliptic curve over Q."""
+    from ..batch.ectable import read_curves, run_curve_table as run
+    from ..certificate.ecq import LIMITS
+
+    if args.moduli or args.race or args.symmetries or args.kinds != "two-way,residues":
+        raise BadInput("--curves makes a table of elliptic curves over Q: give it without "
+                       "--moduli, --race, --kinds or --symmetries")
+    digits = target_digits(args)
+    if digits > LIMITS["digits"]:
+        raise BadInput(f"--digits {digits}: a curve's certificate is made to at most "
+                       f"{LIMITS['digits']} digits (the limit of its recount)")
+    workers = _int(args.workers, "--workers", 1) if args.workers is not None else None
+    if workers is not None and workers > 256:
+        raise BadInput(f"--workers must be at most 256, got {workers}")
+    curves = read_curves(args.curves)
+    limits = Limits.of(args)
+    limits.require("races", len(curves), f"table of {len(curves)} curves")
+    for c in curves:
+        from ..source.ellcurve import curve_from_ainvs
+
+        N = curve_from_ainvs(c.ainvs).conductor
+        if N > LIMITS["conductor"]:
+            raise BadInput(f"{c.source}: conductor {N} is above {LIMITS['conductor']}, the largest "
+                           "a curve's certificate is made for")
+    cmd = " ".join(shlex.quote(x) for x in ["certify", "table", "--curves", args.curves,
+                                            "--digits", str(digits), "--out", args.out])
+    summary = run(curves, digits, args.out, workers=workers, command_line=cmd,
+                  show_progress=progress_enabled(args) and not args.quiet)
+    if args.json:
+        write_json(summary, args.json, "batch-report")
+    if args.json != "-":
+        print(f"{summary['curves']} curves ({summary['computed']} certified now, "
+              f"{summary['reused']} certificates reused) in "
+              f"{summary['timings_seconds']['total']:.1f} s")
+        for k, v in summary["files"].items():
+            print(f"  {k:<12} {os.path.join(args.out, v)}")
+        print(f"  certificates {os.path.join(args.out, 'certificates')}/  (one per curve; "
+              f"`certify verify {os.path.join(args.out, 'table.json')}` re-checks them all)")
+        print("Every density is conditional on GRH and LI for L(E, s) (and on the rank where it is "
+              "marked assumed); certify proves none of them.")
     return _table_exit(summary, digits)
 
 
@@ -180,7 +226,8 @@ def register(sub) -> None:
     p = sub.add_parser(
         "table", help="certify every race for a range of moduli and write tables",
         description="Certify every two-way race delta(q;a,b) (a < b; the reverse is 1 - delta) "
-        "and the residue race for each modulus, sharing each primitive L-function's spectrum "
+        "and the residue race for each modulus (or, with --curves, the trace race of each "
+        "elliptic curve over Q of a file), sharing each primitive L-function's spectrum "
         "through a persistent cache, and write LaTeX/CSV/Markdown tables and a ranking of the "
         "most biased races.  Resumable: run the same command again after an interruption.  "
         "The number of races, L-functions and memory are estimated first and refused beyond "
@@ -189,6 +236,10 @@ def register(sub) -> None:
     p.add_argument("--race", action="append", metavar="RACE",
                    help="an extra race: Q:A,B (two-way), Q:N,R (residues) or Q:A=W,B=W,... "
                    "(weighted); repeatable")
+    p.add_argument("--curves", metavar="FILE",
+                   help="instead of moduli: a file of elliptic curves over Q, one [a1,a2,a3,a4,a6] "
+                   "per line (# comments); one certified row and certificate per curve, ranked "
+                   "by bias |delta - 1/2| (docs/elliptic_curves_q.md, section 13)")
     p.add_argument("--kinds", default="two-way,residues",
                    help="race kinds for each modulus (default two-way,residues)")
     add_target(p, 8, 60)

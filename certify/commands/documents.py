@@ -94,7 +94,17 @@ def run_certificate(args) -> int:
     formats = parse_formats(args.formats)
     check_race_size(question, Limits.of(args), "certificate")
     with working(f"certifying {question.label}", progress_enabled(args)):
-        if getattr(question, "kind", "") == "ordering":  # three or more classes
+        if getattr(question, "kind", "") == "ecq-trace-sum":  # a curve over Q
+            from ..certificate.ecq import LIMITS, certify_ecq
+
+            if d > LIMITS["digits"]:
+                raise BadInput(f"--digits {d}: a curve's certificate is made to at most "
+                               f"{LIMITS['digits']} digits (the limit of its recount)")
+            if question.side != ">0":
+                raise BadInput("a curve's certificate is that of the side >0 (the side <0 is "
+                               "1 minus it); ask for delta(E[...]>0)")
+            result, cert = certify_ecq(question.ainvs, d)
+        elif getattr(question, "kind", "") == "ordering":  # three or more classes
             from ..certificate.order import certify_order_with_certificate
             from ..certificate.order import reproduce_command as order_command
 

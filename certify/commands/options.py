@@ -295,6 +295,15 @@ def check_race_size(question, limits: "Limits", what: str) -> None:
     """Refuse a race over Q whose L-function count exceeds the limit (estimated from q)."""
     from ..batch.limits import race_l_functions
 
+    if getattr(question, "kind", "") == "ecq-trace-sum":  # a curve over Q: its conductor
+        from ..certificate.ecq import LIMITS as ECQ_LIMITS
+        from ..source.ellcurve import curve_from_ainvs
+
+        N = curve_from_ainvs(question.ainvs).conductor
+        if N > ECQ_LIMITS["conductor"]:
+            raise BadInput(f"{what} {question.label}: conductor {N} is above {ECQ_LIMITS['conductor']}, "
+                           "the largest a curve claim or table row is certified for")
+        return
     limits.require("conductor", question.modulus, f"{what} {question.label}")
     limits.require("l-functions", race_l_functions(question.modulus, question.kind),
                    f"{what} {question.label}")

@@ -82,6 +82,17 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
                      + ("; ".join(str(list(r)) for r in sp["relations"]) or "none"))
         lines.append(f"orbit closure: {sp['orbit_closure']}")
         return lines
+    if cert.kind == "ecq-race":
+        E, rk = sp["curve"], sp["analytic_rank"]
+        loc = ", ".join(f"p = {ld['p']} {ld['kodaira']} ({ld['reduction']}, w = "
+                        f"{'open' if ld['root_number'] is None else ld['root_number']})"
+                        for ld in E["local_data"])
+        return [f"E = {E['minimal_model']} (minimal model), conductor {E['conductor']}, "
+                f"j = {E['j_invariant']}; local data: {loc}",
+                f"root number {rk['root_number']:+d}; analytic rank {rk['value']} "
+                f"({'certified' if rk['certified'] else 'not certified: at most ' + str(rk['upper_bound'])})",
+                f"{len(sp['zeros'])} zeros of L(E, s) isolated to height {sp['isolation_height']}; "
+                f"{len(sp['power_sums_all_zeros'])} exact power sums; mean 1 - 2r = {sp['mean']}"]
     if cert.kind == "order-race":
         lines = []
         for g in sp["groups"]:
@@ -114,6 +125,9 @@ def recount_context(cert: Certificate, file_name: str) -> dict:
         setting = (f"Ordering of {len(q['classes'])} classes modulo {q['modulus']}: "
                    + " > ".join(f"pi(x;{q['modulus']},{c})" for c in q["classes"])
                    + f"; mean vector ({a['mean']})")
+    elif cert.kind == "ecq-race":
+        setting = (f"Bias of the Frobenius traces of the elliptic curve E = {q['ainvs']} over Q: "
+                   "sum_(p <= x) a_p(E)/sqrt(p) > 0")
     else:
         setting = f"Trace race of an elliptic curve over F_{q['q']}(t) ({q['mode']})"
     hyps = [{"name": h["name"], "statement": h["statement"], "status": h["status"],

@@ -81,17 +81,18 @@ def terms_for(N: int, bits: float, sigma_max: float = 2.0, t0: float = 1.0,
     return hi
 
 
-def _upper_gamma_series(s: acb_series, z: arb) -> acb_series:
+def _upper_gamma_series(s: acb_series, z: arb, gamma_s: acb_series | None = None) -> acb_series:
     """Gamma(s, z) for a power series s and z > 0, as Gamma(s) - gamma(s, z).
 
     gamma(s, z) = z^s e^(-z) / s * 1F1(1; s + 1; z) (positive terms; Arb's
-    rigorous hypergeometric series with series parameters).
+    rigorous hypergeometric series with series parameters).  ``gamma_s`` is the
+    series Gamma(s) when the caller has it already (it does not depend on z).
     """
     zc = acb(z)
     one = acb_series([acb(1)])
     h = acb_series.hypgeom([one], [s + 1], acb_series([zc]))
     lower = (s * zc.log()).exp() * (-zc).exp() / s * h
-    return s.gamma() - lower
+    return (s.gamma() if gamma_s is None else gamma_s) - lower
 
 
 class EllipticL(AnalyticL):
@@ -244,6 +245,7 @@ class EllipticL(AnalyticL):
             s = acb_series([c, acb(1)])
             s2 = acb_series([2 - c, acb(-1)])
             total = acb_series([acb(0)])
+            g1, g2 = s.gamma(), s2.gamma()  # Gamma(s), Gamma(2 - s): the same for every n
             for n in range(1, M + 1):
                 if a[n] == 0:
                     continue
@@ -252,8 +254,8 @@ class EllipticL(AnalyticL):
                 # accuracy only, so the cancellation costs no extra bits
                 with workprec(wp):
                     lx = acb(x.log())
-                    t1 = (-s * lx).exp() * _upper_gamma_series(s, x)
-                    t2 = ((s - 2) * lx).exp() * _upper_gamma_series(s2, x)
+                    t1 = (-s * lx).exp() * _upper_gamma_series(s, x, g1)
+                    t2 = ((s - 2) * lx).exp() * _upper_gamma_series(s2, x, g2)
                     total += (t1 + self.eps * t2) * a[n]
             tb = arb(tail_bound(N, M, sig_hi, 1.0, sig_lo)).upper()
             coeffs = total.coeffs()

@@ -24,10 +24,17 @@ with additive reduction, (-1/p) if potentially multiplicative, and for
 potentially good reduction with e = 12 / gcd(12, v_p(Delta_min)):
 (-1/p) if e = 2 or 6, (-3/p) if e = 3, (-2/p) if e = 4 ("Variation of the
 root number in families of elliptic curves", Compositio Math. 87 (1993)).
-For additive reduction at 2 or 3 no formula is implemented: the local
-root number is left open (None) and the global one is then decided by the
-functional equation alone (certify.source.ell_l).  The global root number is
-eps = -prod_p w_p.
+At p = 2 and 3 (any additive p, in fact): if some quadratic twist E^(d) by
+a d ramified at p has good or multiplicative reduction at p, then
+w_p(E) = (-1, d)_p, the Hilbert symbol (section 2 of the doc derives it from
+the epsilon factors of rho (x) chi_d; potentially multiplicative reduction
+is always of this kind, "Galois theory, elliptic curves, and root numbers",
+Compositio Math. 100 (1996)).  The remaining additive cases at 2 and 3
+(potentially good reduction that no quadratic twist makes good) are left
+open here (None, source "open"); :func:`certify.source.ell_l.complete_root_numbers`
+then derives the single open factor from the root number proven by the
+functional equation, or, with open factors at both 2 and 3, only their
+product.  The global root number is eps = -prod_p w_p.
 """
 
 from __future__ import annotations
@@ -172,6 +179,7 @@ class LocalData:
     reduction: str
     root_number: int | None
     minimal_model_changed: bool = False
+    root_number_source: str = ""  # how w_p was obtained (a formula, a twist, derived, open)
 
     @property
     def a_p(self) -> int:
@@ -299,22 +307,55 @@ def reduced_model(c4: int, c6: int):
     return (a1, (b2 - a1) // 4, a3, (b4 - a1 * a3) // 2, (b6 - a3) // 4)
 
 
-def local_root_number(ld: LocalData, j: Fraction) -> int | None:
-    """w_p from the local data (None where no formula is implemented)."""
+def hilbert_minus_one(d: int, p: int) -> int:
+    """The Hilbert symbol (-1, d)_p for a non-zero integer d and a prime p."""
+    k = _v(d, p)
+    u = d // p**k
+    if p == 2:
+        return 1 if u % 4 == 1 else -1
+    return legendre(-1, p) ** k
+
+
+# representatives of the quadratic characters of Q_p^x ramified at p (Q_p^x / squares)
+RAMIFIED_TWISTS = {2: (-1, 3, 2, -2, 6, -6), 3: (3, -3)}
+
+
+def quadratic_twist_ainvs(c4: int, c6: int, d: int) -> tuple:
+    """An integral model of the twist E^(d): y^2 = x^3 - 27 d^2 c4 x - 54 d^3 c6."""
+    return (0, 0, 0, -27 * d * d * c4, -54 * d**3 * c6)
+
+
+def semistable_twist(c4: int, c6: int, p: int):
+    """(d, local data of E^(d) at p) for a d ramified at p making E semistable at p, or None."""
+    for d in RAMIFIED_TWISTS.get(p, ()):
+        a = quadratic_twist_ainvs(c4, c6, d)
+        ld, _ = local_reduction(a, p)
+        if ld.reduction != "additive":
+            return d, ld
+    return None
+
+
+def local_root_number(ld: LocalData, j: Fraction, c4: int = 0, c6: int = 0) -> tuple[int | None, str]:
+    """(w_p, how it was obtained) from the local data (None where no formula applies)."""
     p = ld.p
     if ld.reduction in ("good", "split", "nonsplit"):
-        return ld.root_number
+        return ld.root_number, ld.reduction + " reduction"
     if p <= 3:
-        return None
+        tw = semistable_twist(c4, c6, p) if (c4 or c6) else None
+        if tw is not None:
+            d, tld = tw
+            return hilbert_minus_one(d, p), (
+                f"(-1, {d})_{p}: the twist by {d} has {tld.reduction} reduction at {p}")
+        return None, "open"
     if _v(j.denominator, p) > 0:  # potentially multiplicative
-        return legendre(-1, p)
+        return legendre(-1, p), "(-1/p): potentially multiplicative"
     e = 12 // math.gcd(12, ld.disc_valuation)
     if e in (2, 6):
-        return legendre(-1, p)
+        return legendre(-1, p), f"(-1/p): potentially good, e = {e}"
     if e == 3:
-        return legendre(-3, p)
+        return legendre(-3, p), "(-3/p): potentially good, e = 3"
     if e == 4:
-        return legendre(-2, p)
+        return legendre(-2, p), "(-2/p): potentially good, e = 4"
     raise ArithmeticError(f"unexpected semistability defect e = {e} at p = {p}")
 
 
@@ -380,7 +421,8 @@ class EllipticCurveQ:
             "local_data": [
                 {"p": ld.p, "kodaira": ld.kodaira, "conductor_exponent": ld.conductor_exponent,
                  "disc_valuation": ld.disc_valuation, "tamagawa": ld.tamagawa,
-                 "reduction": ld.reduction, "root_number": ld.root_number}
+                 "reduction": ld.reduction, "root_number": ld.root_number,
+                 "root_number_source": ld.root_number_source}
                 for ld in self.local],
         }
 
@@ -451,9 +493,9 @@ def curve_from_ainvs(ainvs) -> EllipticCurveQ:
         ld, _ = local_reduction(minimal, p)
         if ld.minimal_model_changed or ld.disc_valuation != _v(Dmin, p):
             raise ArithmeticError(f"model not minimal at {p} after reduction")
-        w = local_root_number(ld, j)
+        w, how = local_root_number(ld, j, c4, c6)
         ld = LocalData(ld.p, ld.kodaira, ld.conductor_exponent, ld.disc_valuation, ld.tamagawa,
-                       ld.reduction, w)
+                       ld.reduction, w, False, how)
         if ld.conductor_exponent > 0:
             local.append(ld)
     N = 1
@@ -466,3 +508,48 @@ def curve_from_ainvs(ainvs) -> EllipticCurveQ:
     if cm is not None:
         notes.append(f"E has complex multiplication by the order of discriminant {cm}")
     return EllipticCurveQ(a, minimal, D, Dmin, c4, c6, j, N, tuple(local), cm, eps, tuple(notes))
+
+
+def with_global_root_number(E: EllipticCurveQ, eps: int) -> EllipticCurveQ:
+    """E with its open local root numbers derived from a proven global root number ``eps``.
+
+    ``eps`` must be proven independently (the functional equation,
+    :meth:`certify.source.ell_l.EllipticL.decide_root_number`).  With all w_p
+    known, -prod w_p must equal eps (else Inconsistent).  With one open w_p
+    (additive at 2 or 3 and no formula applies), w_p = -eps / prod_{q != p} w_q
+    is derived and says so.  With open factors at both 2 and 3 only their
+    product is determined: they stay open and a note gives the product.
+    """
+    from ..errors import Inconsistent
+
+    open_ = [ld for ld in E.local if ld.root_number is None]
+    known = math.prod(ld.root_number for ld in E.local if ld.root_number is not None)
+    if not open_:
+        if -known != eps:
+            raise Inconsistent(f"the local root numbers give {-known:+d} but the functional equation "
+                               f"proves {eps:+d}; not certified")
+        return E
+    notes = list(E.notes)
+    local = list(E.local)
+    if len(open_) == 1:
+        ld = open_[0]
+        w = -eps * known
+        i = local.index(ld)
+        local[i] = LocalData(ld.p, ld.kodaira, ld.conductor_exponent, ld.disc_valuation,
+                             ld.tamagawa, ld.reduction, w, False,
+                             f"derived: -eps / prod of the other w_q, eps = {eps:+d} proven by "
+                             "the functional equation (no local formula applied)")
+        notes.append(f"w_{ld.p} = {w:+d} derived from the root number proven by the functional "
+                     "equation (no local formula implemented for this reduction)")
+    else:
+        prod = -eps * known
+        ps = " w_".join(str(ld.p) for ld in open_)
+        local = [LocalData(ld.p, ld.kodaira, ld.conductor_exponent, ld.disc_valuation,
+                           ld.tamagawa, ld.reduction, None, False,
+                           f"open: only the product w_{ps} = {prod:+d} is determined (from the "
+                           "functional equation)") if ld in open_ else ld for ld in local]
+        notes.append(f"the product w_{ps} = {prod:+d} is derived from the root number proven by "
+                     "the functional equation; the factors themselves are not computed")
+    return EllipticCurveQ(E.ainvs, E.minimal, E.discriminant, E.minimal_discriminant, E.c4, E.c6,
+                          E.j, E.conductor, tuple(local), E.cm_discriminant, E.root_number_local,
+                          tuple(notes))
