@@ -195,7 +195,8 @@ def _model_ordinates(conductor: int, height: float) -> tuple[float, ...]:
 
 
 def plan_frequency_range(groups, V: float, mu: float, tau: float,
-                         height_factor: float | None = None, sums=None) -> float:
+                         height_factor: float | None = None, sums=None,
+                         inverse_rho=None) -> float:
     """Frequency range where the truncation bound falls below tau/8, on model zeros.
 
     With ``height_factor`` h, a group of scale s is taken to isolate only its
@@ -207,7 +208,10 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
     With ``sums`` (per group, the floats T_1..T_K of its exact power sums) the
     model is the bound of section 4c: the residual groups' Gaussian factors and
     largest residual weights count too, so a race with many characters needs far
-    fewer zeros; without it, the isolated weights alone (section 4).
+    fewer zeros; without it, the isolated weights alone (section 4).  The zeros taken
+    as isolated then follow the height rule of :meth:`RacePlan.request`: those with
+    1/4 + gamma^2 below the square of the reach h s xi / j_{0,1}, and none when
+    ``inverse_rho`` (per group, min_k T_k^(1/(2k))) times the reach is at most 1.
 
     Planning only (floating point): the engine later evaluates the bound rigorously
     on the certified zeros.
@@ -218,22 +222,39 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
     L = 2 * (abs(mu) + t)
     eps = 2 * math.pi / L
     parts = []
+    models: dict = {}  # conductors of a group -> (model ordinates, suffix power sums)
+    K = max((len(T) for T in sums), default=1) if sums is not None else 1
     for gi, g in enumerate(groups):
         s = float(g.scale.mid())
-        gams = []
-        for (qs, _) in g.primitive_keys:
-            gams.append(np.asarray(_model_ordinates(qs, 2000.0)))
-        gam = np.sort(np.concatenate(gams)) if gams else np.zeros(0)
-        parts.append((s, gam, s / np.hypot(0.5, gam)))
+        key = tuple(qs for (qs, _) in g.primitive_keys)
+        if key not in models:
+            gams = [np.asarray(_model_ordinates(qs, 2000.0)) for qs in key]
+            gam = np.sort(np.concatenate(gams)) if gams else np.zeros(0)
+            suffix = None
+            if sums is not None:
+                a = 1 / (0.25 + gam ** 2)
+                pw = a[:, None] ** np.arange(1, K + 1)[None, :]
+                suffix = np.vstack([np.cumsum(pw[::-1], axis=0)[::-1], np.zeros((1, K))])
+            models[key] = (gam, suffix)
+        gam, suffix = models[key]
+        parts.append((s, gam, s / np.hypot(0.5, gam), suffix))
     use_residual = sums is not None and height_factor is not None and len(sums) == len(parts)
     xi = eps
     while xi < 1e4:
         if height_factor is None:
-            weights = np.concatenate([w for _, _, w in parts]) if parts else np.zeros(0)
+            weights = np.concatenate([w for _, _, w, _ in parts]) if parts else np.zeros(0)
         else:
-            cut = [int(np.searchsorted(gam, height_factor * s * xi / J01, side="right"))
-                   for s, gam, _ in parts]
-            sel = [w[:c] for (_, _, w), c in zip(parts, cut)]
+            cut = []
+            for i, (s, gam, _, _) in enumerate(parts):
+                reach = height_factor * s * xi / J01
+                if use_residual:
+                    inv = inverse_rho[i] if inverse_rho is not None else None
+                    if inv is not None and reach * inv <= 1:
+                        cut.append(0)
+                        continue
+                    reach = math.sqrt(max(0.0, reach * reach - 0.25))
+                cut.append(int(np.searchsorted(gam, reach, side="right")))
+            sel = [w[:c] for (_, _, w, _), c in zip(parts, cut)]
             weights = np.concatenate(sel) if sel else np.zeros(0)
         if use_residual:
             if _model_tail(parts, cut, sums, weights, eps, xi, tau / 16) < tau / 16:
@@ -250,19 +271,29 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
 def _model_tail(parts, cut, sums, iso, eps: float, xi: float, goal: float) -> float:
     """Float model of the section-4c truncation bound from the frequency xi (planning only).
 
-    Per group: the isolated model zeros (the first ``cut``), and residual sums
-    T_k minus their contributions (floored at a tiny positive value).
+    A group that isolates nothing keeps its exact sums T_k.  One that isolates its
+    first ``cut`` model zeros keeps T_1 less their contributions (the Gaussian term)
+    and takes R_k, k >= 2, from the model zeros above them: the exact T_k less model
+    zeros would mix two zero sets, and for large k (where the lowest zero dominates)
+    leave meaningless differences.
     """
     import numpy as np
 
     from .density.bessel import tail_data_from_floats, tail_float
 
-    res = []
-    for (s, gam, _), c, T in zip(parts, cut, sums):
-        a = 1 / (0.25 + gam[:c] ** 2)
-        R = [max(float(Tk) - float((a ** k).sum()), 1e-300) for k, Tk in enumerate(T, start=1)]
-        res.append((s, R))
-    d = tail_data_from_floats(np.asarray(iso, dtype=float), res)
+    K = max((len(T) for T in sums), default=1)
+    R = np.full((len(sums), K), 1e-300)
+    for i, T in enumerate(sums):
+        R[i, :len(T)] = T
+    for i, c in enumerate(cut):
+        if c:
+            suffix = parts[i][3]
+            r1 = R[i, 0] - (suffix[0, 0] - suffix[c, 0])
+            R[i] = suffix[c]
+            if r1 > 0:
+                R[i, 0] = r1
+    R = np.maximum(R, 1e-300)
+    d = tail_data_from_floats(np.asarray(iso, dtype=float), np.array([p[0] for p in parts]), R)
     N = max(1, int(xi / eps))
     N = N if N % 2 == 1 else N + 1
     return tail_float(d, eps, N, goal)
@@ -407,7 +438,9 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
             if pos:
                 inverse_rho[g.primitive_keys[0]] = min(x ** (1 / (2 * k)) for k, x in pos)
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
-                                  height_factor=PLAN_HEIGHT_FACTOR, sums=sums)
+                                  height_factor=PLAN_HEIGHT_FACTOR, sums=sums,
+                                  inverse_rho=[inverse_rho.get(g.primitive_keys[0])
+                                               for g in groups])
     width = min(1e-6, tau / (50 * (1 + xi_max)))
     return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width,
                     inverse_rho=inverse_rho)

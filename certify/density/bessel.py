@@ -149,21 +149,20 @@ def _tail_data(weights, residuals) -> _TailData:
                   for c, _, _, m2 in groups]))
 
 
-def tail_data_from_floats(iso, groups) -> _TailData:
-    """Float-only tail data (planning): ``iso`` weights, ``groups`` as (scale, [R_1..R_K])."""
+def tail_data_from_floats(iso, scales, R) -> _TailData:
+    """Float-only tail data (planning): ``iso`` weights, group ``scales`` and residual sums
+    ``R`` (array: one row R_1..R_K per group, all positive)."""
     import numpy as np
 
-    K1 = max((len(R) - 1 for _, R in groups), default=0)
-    logrk = np.full((len(groups), max(K1, 1)), -np.inf)
-    m = np.zeros(len(groups))
-    for i, (c, R) in enumerate(groups):
-        for j, r in enumerate(R[1:]):
-            if r > 0:
-                logrk[i, j] = math.log(r)
-        ratios = [R[k] / R[k - 1] for k in range(1, len(R)) if R[k] > 0 and R[k - 1] > 0]
-        m[i] = c * math.sqrt(max(ratios)) if ratios else 0.0
-    return _TailData([], [], np.asarray(iso, dtype=float), np.array([c for c, _ in groups]),
-                     np.array([max(R[0], 0.0) for _, R in groups]), logrk, m)
+    R = np.asarray(R, dtype=float).reshape(len(scales), -1)
+    scales = np.asarray(scales, dtype=float)
+    logrk = np.log(R[:, 1:]) if R.shape[1] > 1 else np.full((len(scales), 1), -np.inf)
+    if R.shape[1] > 1:
+        m = scales * np.sqrt((R[:, 1:] / R[:, :-1]).max(axis=1))
+    else:
+        m = np.zeros(len(scales))
+    return _TailData([], [], np.asarray(iso, dtype=float), scales, np.maximum(R[:, 0], 0.0),
+                     logrk, m)
 
 
 def _odd_blocks(N: int):
@@ -525,9 +524,8 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
             ErrorTerm("frequency truncation", trunc,
                       "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on the isolated weights"
                       if method == TRUNCATION_ISOLATED else
-                      "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on the isolated weights and the "
-                      "largest residual weight of each group, and the Gaussian bound of each "
-                      "residual group (docs/method.md, section 4c)"),
+                      "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on isolated weights; residual "
+                      "groups by power sums (4c)"),
             ErrorTerm("residual zeros", rayleigh,
                       "tail of the Rayleigh expansion of the product over zeros not isolated"),
             ErrorTerm("rounding and zero enclosures", rounding,

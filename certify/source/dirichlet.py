@@ -121,9 +121,8 @@ class Character:
         """e with chi(a) = exp(2 pi i e / order), or None if gcd(a, q) > 1."""
         if math.gcd(a, self.modulus) != 1:
             return None
-        g = dirichlet_group(self.modulus)
-        e = dirichlet_char(self.modulus, self.label).chi_exponent(a % self.modulus)
-        return (int(e) * self.order // int(g.exponent())) % self.order
+        e = _flint_char(self.modulus, self.label).chi_exponent(a % self.modulus)
+        return (int(e) * self.order // _group_exponent(self.modulus)) % self.order
 
     def value(self, a: int) -> acb:
         """chi(a) as a complex ball (0 if gcd(a, q) > 1)."""
@@ -134,6 +133,16 @@ class Character:
 
     def __str__(self) -> str:
         return f"chi_{{{self.modulus},{self.label}}}"
+
+
+@lru_cache(maxsize=64)
+def _group_exponent(q: int) -> int:
+    return int(dirichlet_group(q).exponent())
+
+
+@lru_cache(maxsize=4096)
+def _flint_char(q: int, n: int):
+    return dirichlet_char(q, n)
 
 
 def _value_fraction(q: int, n: int, a: int) -> Fraction:
