@@ -316,6 +316,11 @@ def _hypotheses(question, group_reports) -> tuple:
     zeta = question.is_li_race
     ev_grh = []
     for g in group_reports:
+        if not g.zeros:
+            # moments only (docs/method.md, section 5b): no zero was located, none is claimed
+            ev_grh.append(f"{g.label}: no zero isolated (its exact power sums carry it); "
+                          "residual power sums non-negative")
+            continue
         ev_grh.append(
             f"{g.label}: {len(g.zeros)} zeros certified on the critical line by sign changes "
             f"of the Hardy Z-function up to height {decimal_down(Fraction(g.height), 4)}; "
