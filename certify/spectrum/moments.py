@@ -30,6 +30,7 @@ from flint import acb_series, dirichlet_char, dirichlet_group
 
 from ..arith import acb, arb, series_cap, workprec
 from ..errors import PrecisionExhausted
+from ..source.dirichlet import factor, primitive_root
 from .lfunction import AnalyticL, power_sums, zero_power_sums_of
 
 
@@ -209,38 +210,6 @@ def central_value(conductor: int, label: int, prec: int = 64) -> acb:
 
 # --- every character of a conductor at once (docs/method.md, section 2c) ---------------
 
-def _factor(n: int) -> dict:
-    """{prime: exponent} of n >= 1 by trial division (moduli here are at most ~10^7)."""
-    out: dict = {}
-    d = 2
-    while d * d <= n:
-        while n % d == 0:
-            out[d] = out.get(d, 0) + 1
-            n //= d
-        d += 1 if d == 2 else 2
-    if n > 1:
-        out[n] = out.get(n, 0) + 1
-    return out
-
-
-def _primitive_root(p: int, e: int) -> int:
-    """The least primitive root modulo p^e (p an odd prime).
-
-    g generates (Z/p^e)^* iff it generates (Z/p)^* (g^((p-1)/r) != 1 mod p for each prime
-    r | p - 1) and, when e >= 2, g^(p-1) != 1 mod p^2.
-    """
-    rs = list(_factor(p - 1))
-    for g in range(2, p * p):
-        if g % p == 0:
-            continue
-        if any(pow(g, (p - 1) // r, p) == 1 for r in rs):
-            continue
-        if e >= 2 and pow(g, p - 1, p * p) == 1:
-            continue
-        return g
-    raise ValueError(f"no primitive root modulo {p}^{e}")
-
-
 def _group_axes(q: int):
     """The unit group mod q as a product of cyclic axes.
 
@@ -250,14 +219,14 @@ def _group_axes(q: int):
     powers of q (two for 2^e with e >= 3: -1 and 5), generators lifted by CRT.
     """
     parts = []  # (p^e, [(generator mod p^e, order)])
-    for p, e in sorted(_factor(q).items()):
+    for p, e in sorted(factor(q).items()):
         pe = p ** e
         if p == 2:
             if e == 1:
                 continue
             gens = [(pe - 1, 2)] + ([(5, 2 ** (e - 2))] if e >= 3 else [])
         else:
-            gens = [(_primitive_root(p, e), pe // p * (p - 1))]
+            gens = [(primitive_root(p, e), pe // p * (p - 1))]
         parts.append((pe, gens))
     axes = []
     tables = []  # per prime power: dict residue -> exponent tuple (over its own gens)
