@@ -119,6 +119,8 @@ class EllipticL(AnalyticL):
         self.central_order = central_order
         self.A_float = math.sqrt(E.conductor) / (2 * math.pi)
         self._an: list[int] = [0, 1]
+        self._z_memo: dict = {}
+        self.z_computed = 0  # Hardy Z values computed (memo hits excluded)
         self._traces = None
         self.eps = eps if eps is not None else E.root_number_local
         self.eps_source = "local root numbers" if eps is None and self.eps is not None else "given"
@@ -199,7 +201,27 @@ class EllipticL(AnalyticL):
         return good[0]
 
     def hardy_z(self, t: arb, prec: int) -> arb:
-        """Z(t) real with |Z(t)| = |L(E, 1 + i t)| (analytic: s = 1/2 + i t)."""
+        """Z(t) real with |Z(t)| = |L(E, 1 + i t)| (analytic: s = 1/2 + i t).
+
+        Values at exact points are remembered per (t, prec): the zero search asks
+        again for the ends of each bracket it found (same point, same precision).
+        """
+        key = None
+        if t.rad() == 0:
+            m, e = t.mid().man_exp()
+            key = (int(m), int(e), int(prec))
+            hit = self._z_memo.get(key)
+            if hit is not None:
+                return hit
+        v = self._hardy_z(t, prec)
+        self.z_computed += 1
+        if key is not None:
+            if len(self._z_memo) > 20000:
+                self._z_memo.clear()
+            self._z_memo[key] = v
+        return v
+
+    def _hardy_z(self, t: arb, prec: int) -> arb:
         with workprec(prec + 20):
             tt = arb(t)
             s = acb(1, tt)
