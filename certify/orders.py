@@ -395,19 +395,24 @@ class OrderFamily:
 
 def certify_orderings(q, classes, digits: int = DEFAULT_ORDER_DIGITS,
                       store: SpectrumStore | None = None, marginals: bool = True,
-                      command_line: str = "") -> OrderFamily:
+                      command_line: str = "", progress=None) -> OrderFamily:
     """All r! orderings of ``classes`` mod q, each certified, with the consistency checks.
 
     Checks (each recorded, never silently passed):
     * the r! enclosures sum to an interval containing 1;
     * for each pair (a, b), the sum of the orderings with a before b meets the
       certified two-way density delta(q;a,b) (certify.races).
+
+    ``progress(message)``, when given, is told each ordering pair as it starts.
     """
     t0 = time.time()
     store = store or SpectrumStore()
     base = ordering(q, *classes)
     results = []
-    for ch in chains(base.modulus, base.classes):
+    todo = list(chains(base.modulus, base.classes))
+    for i, ch in enumerate(todo):
+        if progress is not None:
+            progress(f"orderings {2 * i + 1}-{2 * i + 2} of {2 * len(todo)}")
         a, b = certify_chain(ch, digits, store, command_line=command_line)
         results.extend([a, b])
     checks = []

@@ -122,3 +122,71 @@ def twist_members(q: int, n: int, d: int) -> int:
     """Monic square-free polynomials of degree d over F_{q^n}: Q^d - Q^(d-1) (d >= 2), Q (d = 1)."""
     Q = q ** n
     return Q if d == 1 else Q ** d - Q ** (d - 1)
+
+
+# -- races over Q of a single L-function: zeros to isolate, primes to count ------------
+
+J01 = 2.404825557695773
+
+
+def zero_count_estimate(height: float, conductor: int = 1, degree: int = 1) -> int:
+    """Estimated number of zeros with 0 < gamma <= height (the main term of N(T), plus 1).
+
+    Degree 1 (zeta, conductor 1): (T/2 pi) log(T/2 pi e) + 7/8.  Degree 2 (L(E, s),
+    conductor N): (T/pi) log(sqrt(N) T / 2 pi e) + 1.  Planning only: the count is
+    what decides how long a zero search runs, not a bound anything certified rests on.
+    """
+    T = max(float(height), 1.0)
+    if degree == 1:
+        main = T / (2 * math.pi) * math.log(max(T * conductor / (2 * math.pi * math.e), 1.0)) + 7 / 8
+    else:
+        main = T / math.pi * math.log(max(math.sqrt(conductor) * T / (2 * math.pi * math.e), 1.0)) + 1
+    return int(math.ceil(max(main, 0.0)))
+
+
+def ec_race_estimate(conductor: int, digits: int) -> dict:
+    """{'zeros', 'height'} an elliptic-curve race over Q will isolate (the driver's first plan).
+
+    The driver plans the frequency range with the exact variance of the limit law;
+    here the variance is taken from the model ordinates (sum 2/(1/4 + gamma^2)) and
+    the mean as 1 (rank 0): the same planning function, from the conductor alone.
+    """
+    import numpy as np
+
+    from ..ecrace import _model_ordinates, plan_xi
+
+    gam = np.asarray(_model_ordinates(int(conductor), 3000.0))
+    V = float((2 / (0.25 + gam * gam)).sum()) if gam.size else 1.0
+    xi = plan_xi(int(conductor), V, 1.0, 10.0 ** (-int(digits)))
+    height = max(6.0, 2.2 * 2 * xi / J01)
+    return {"height": height, "zeros": zero_count_estimate(height, conductor, 2)}
+
+
+def li_race_estimate(digits: int, kind: str = "pi<li") -> dict:
+    """{'zeros', 'height'} of zeta's zeros the race of pi(x) against li(x) isolates at width 10^-digits.
+
+    The first-round plan of the race driver (its frequency range and height factor,
+    :class:`certify.races.RacePlan`) with the exact variance 2 + gamma_E - log 4 pi
+    of the limit law.
+    """
+    from ..race.question import mean_of, prime_vs_li, spectral_groups
+    from ..races import PLAN_HEIGHT_FACTOR, RacePlan, plan_frequency_range
+
+    question = prime_vs_li(kind)
+    groups = spectral_groups(question)
+    V = 2 + 0.5772156649015329 - math.log(4 * math.pi)
+    mu = float(mean_of(question))
+    tau = 10.0 ** (-int(digits))
+    xi = plan_frequency_range(groups, V, mu, tau, height_factor=PLAN_HEIGHT_FACTOR)
+    s = max(float(g.scale.mid()) for g in groups)
+    height = RacePlan.height_factor * s * xi / J01
+    return {"height": height, "zeros": zero_count_estimate(height, 1, 1)}
+
+
+def prime_count_bound(x: int) -> int:
+    """An upper bound for pi(x): 1.25506 x / log x for x > 1 (a proven inequality,
+    Illinois Journal of Mathematics 6 (1962)), computed in floating point with a margin."""
+    x = int(x)
+    if x < 17:
+        return 6
+    return int(1.25506 * x / math.log(x) * (1 + 1e-9)) + 1

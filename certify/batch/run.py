@@ -67,6 +67,51 @@ def _load_done(out: str, item: RaceItem, digits: int) -> dict | None:
     return d
 
 
+class WorkerSpectrumWarning(UserWarning):
+    """A spectrum computed by a worker failed its re-check; the races compute it themselves."""
+
+
+def recheck_worker_spectrum(req, res: dict, stats: dict):
+    """A worker's spectrum, re-checked before anything uses it: ``(spectrum, blob, digest)`` or None.
+
+    A worker is another process (or another machine): what it sends back is data.
+    The coordinator applies the cache's re-check (:func:`certify.batch.recheck.recheck_spectrum`:
+    power sums and L(1/2) re-derived, here by the per-character path where the worker
+    used the batched one for its conductor; every zero's sign change re-certified) and
+    checks that the spectrum is the one asked for.  What is shipped to the race tasks and
+    stored in the cache holds the re-derived balls.  A spectrum that fails is refused
+    with a warning (not shipped, not stored): the races that need it compute it in
+    their own task, where the race driver checks every quantity itself.
+    ``stats`` accumulates ``entries``, ``seconds`` (wall), ``cpu_seconds`` and ``refused``.
+    """
+    import warnings
+
+    from .recheck import recheck_spectrum
+    from .serial import encode
+
+    t0, c0 = time.perf_counter(), time.process_time()
+    name = f"chi_{{{req.conductor},{req.label}}}"
+    try:
+        sp = decode(res["blob"], res["digest"])
+        if (sp.conductor, sp.label, sp.parity) != (req.conductor, req.label, req.parity):
+            raise BadInput(f"the worker returned chi_{{{sp.conductor},{sp.label}}} (parity "
+                           f"{sp.parity}) for {name} (parity {req.parity})")
+        sp, _ = recheck_spectrum(sp)
+    except (CertifyError, ArithmeticError, ValueError, KeyError, TypeError) as exc:
+        stats["refused"] += 1
+        stats["seconds"] += time.perf_counter() - t0
+        stats["cpu_seconds"] += time.process_time() - c0
+        warnings.warn(f"the spectrum of {name} computed by a worker was refused on re-check "
+                      f"({exc}); the races that need it compute it themselves",
+                      WorkerSpectrumWarning, stacklevel=2)
+        return None
+    blob, digest = encode(sp)
+    stats["entries"] += 1
+    stats["seconds"] += time.perf_counter() - t0
+    stats["cpu_seconds"] += time.process_time() - c0
+    return sp, blob, digest
+
+
 def _chunks(items: list[RaceItem], size: int) -> list[list[RaceItem]]:
     by_q = defaultdict(list)
     for it in items:
@@ -170,6 +215,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
             summary["executor"] = {"kind": executor.name, "workers": executor.workers}
         per_conductor = defaultdict(lambda: {"characters": 0, "zeros_s": 0.0, "moments_s": 0.0,
                                              "central_s": 0.0, "z_calls": 0, "zeros": 0})
+        worker_recheck = {"entries": 0, "seconds": 0.0, "cpu_seconds": 0.0, "refused": 0}
+        summary["spectra"]["worker_recheck"] = worker_recheck
         if todo:
             prog = Progress("spectra", len(todo), sum(r.cost for r, _ in todo), "L-functions",
                             enabled=progress)
@@ -202,10 +249,12 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                         f"not certified: the spectrum of chi_{{{r.conductor},{r.label}}} could "
                         f"not be computed ({type(res).__name__}: {res})")
                 sp_seconds = sum(res["timings"].values())
-                sp = decode(res["blob"], res["digest"])
-                cache.save_blob(sp, res["blob"], res["digest"], sp_seconds)
-                # computed just now by our own worker: shipped as computed (not re-derived)
-                blobs[f"{r.conductor}.{r.label}"] = (res["blob"], res["digest"])
+                # a worker's output is data: re-checked before it is stored or shipped
+                checked = recheck_worker_spectrum(r, res, worker_recheck)
+                if checked is not None:
+                    sp, blob, digest = checked
+                    cache.save_blob(sp, blob, digest, sp_seconds)
+                    blobs[f"{r.conductor}.{r.label}"] = (blob, digest)
                 pc = per_conductor[r.conductor]
                 pc["characters"] += 1
                 pc["zeros_s"] += res["timings"]["zeros"]
@@ -216,6 +265,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                 summary["spectra"]["computed"] += 1
                 prog.advance(1, r.cost)
             prog.finish()
+        worker_recheck["seconds"] = round(worker_recheck["seconds"], 3)
+        worker_recheck["cpu_seconds"] = round(worker_recheck["cpu_seconds"], 3)
         summary["per_conductor"] = {str(c): {k: (round(v, 3) if isinstance(v, float) else v)
                                              for k, v in d.items()}
                                     for c, d in sorted(per_conductor.items())}

@@ -166,12 +166,14 @@ def compare(cert: Certificate, fresh: Certificate, report: VerifyReport) -> None
                        f"stored {a['bound']}, re-derived {b['bound']}")
 
 
-def timed_report(label: str, cert: Certificate, rebuild, question=None) -> VerifyReport:
+def timed_report(label: str, cert: Certificate, rebuild, question=None,
+                 with_report: bool = False) -> VerifyReport:
     """Run ``rebuild(cert) -> fresh certificate`` and compare; failures become checks.
 
     ``question(cert)``, when given, rebuilds the question record cheaply from the stored
     inputs; a stored question that differs is reported before the (costly) recount,
-    which is then skipped.
+    which is then skipped.  With ``with_report``, ``rebuild(cert, report)`` may add its
+    own checks (the evidence re-derived from its data) before it recounts.
     """
     from ..errors import CertifyError
 
@@ -184,7 +186,7 @@ def timed_report(label: str, cert: Certificate, rebuild, question=None) -> Verif
                            f"differs at {', '.join(d[:5])}"):
                 rep.seconds = time.time() - t0
                 return rep
-        fresh = rebuild(cert)
+        fresh = rebuild(cert, rep) if with_report else rebuild(cert)
         compare(cert, fresh, rep)
     except CertifyError as exc:
         rep.add("recount from the stored inputs", False, f"{type(exc).__name__}: {exc}")

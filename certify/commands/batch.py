@@ -84,6 +84,11 @@ def run_table(args) -> int:
     if rc_.get("entries") or rc_.get("skipped"):
         print(f"  cached spectra re-derived before use: {rc_['entries']} in {rc_['seconds']:.2f} s"
               + (f"; {rc_['skipped']} entries failed and were recomputed" if rc_.get("skipped") else ""))
+    wr = sp.get("worker_recheck") or {}
+    if wr.get("entries") or wr.get("refused"):
+        print(f"  spectra from the workers re-checked before use: {wr['entries']} in "
+              f"{wr['seconds']:.2f} s" + (f"; {wr['refused']} refused (their races computed them)"
+                                          if wr.get("refused") else ""))
     for k, v in summary["files"].items():
         print(f"  {k:<12} {os.path.join(args.out, v)}")
     print(f"  results      {os.path.join(args.out, 'results')}/  (one JSON per race)")

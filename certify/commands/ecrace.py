@@ -55,18 +55,40 @@ def screen(result, obs=None) -> str:
     return "\n".join(lines)
 
 
+def check_ec_size(E, digits: int, observe_bound: int, limits) -> dict:
+    """Refuse, before any work, a race whose estimated cost exceeds the stated limits.
+
+    The estimates (:mod:`certify.batch.limits`): the conductor (the cost of each
+    evaluation of L(E, s) grows like its square root), the zeros the driver's first
+    plan isolates at this target, and the primes of the observed race (pi(X) at most
+    1.25506 X / log X).
+    """
+    from ..batch.limits import ec_race_estimate, prime_count_bound
+
+    what = f"ecrace for E of conductor {E.conductor} at {digits} digits"
+    limits.require("ec-conductor", E.conductor, what)
+    est = ec_race_estimate(E.conductor, digits)
+    limits.require("zeros", est["zeros"], what + f" (zeros of L(E, s) to height {est['height']:.4g})")
+    if observe_bound:
+        est["primes"] = prime_count_bound(observe_bound)
+        limits.require("primes", est["primes"], f"ecrace --observe {observe_bound}")
+    return est
+
+
 def run_ecrace(args) -> int:
     from ..ecrace import MAX_DIGITS, certify_ec_race
     from ..ecobserve import observe, plot_observation
     from ..source.ellcurve import curve_from_ainvs
 
-    from .options import check_json_path
+    from .options import Limits, check_json_path, parse_height, progress_enabled, stages
 
+    # outputs and inputs checked, and sizes bounded, before any work
     check_json_path(args.json)
     check_json_path(args.plot)
+    check_json_path(args.certificate)
     if len(str(args.ainvs)) > 400:
         raise BadInput("the a-invariants are longer than 400 characters")
-    E = curve_from_ainvs(args.ainvs)
+    limits = Limits.of(args)
     digits = _int(args.digits, "--digits")
     if not (1 <= digits <= MAX_DIGITS):
         raise BadInput(f"--digits must be between 1 and {MAX_DIGITS} (got {digits})")
@@ -77,23 +99,24 @@ def run_ecrace(args) -> int:
 
         if not (10 <= bound <= MAX_OBSERVE):
             raise BadInput(f"--observe must be 0 or between 10 and {MAX_OBSERVE} (got {bound})")
+    grh = parse_height(args.grh_height, "--grh-height")
+    E = curve_from_ainvs(args.ainvs)
+    check_ec_size(E, digits, bound, limits)
     cmd = "certify " + " ".join(shlex.quote(a) for a in sys.argv[1:])
-    try:
-        grh = float(args.grh_height)
-    except ValueError:
-        raise BadInput(f"--grh-height must be a number, got {args.grh_height!r}") from None
-    if not (0 <= grh <= 200):
-        raise BadInput(f"--grh-height must lie in [0, 200] (got {grh:g})")
     t_run = __import__("time").time()
-    result = certify_ec_race(E, digits, command_line=cmd, grh_height=grh)
-    if args.certificate:
-        from ..certificate.ecq import ecq_certificate
-        from ..certificate.model import write_certificate
+    with stages("ecrace", progress_enabled(args)) as say:
+        say(f"certifying the trace race of E (conductor {E.conductor}) to width 1e-{digits}")
+        result = certify_ec_race(E, digits, command_line=cmd, grh_height=grh)
+        if args.certificate:
+            from ..certificate.ecq import ecq_certificate
+            from ..certificate.model import write_certificate
 
-        write_certificate(ecq_certificate(result, grh, __import__("time").time() - t_run),
-                          args.certificate)
-    if bound:
-        obs = observe(E, bound)
+            say("writing the certificate")
+            write_certificate(ecq_certificate(result, grh, __import__("time").time() - t_run),
+                              args.certificate)
+        if bound:
+            say(f"observed race: a_p for p <= {bound}")
+            obs = observe(E, bound)
     if args.plot:
         if obs is None:
             raise BadInput("--plot needs --observe X > 0 (the observed race to plot)")
@@ -132,9 +155,14 @@ def register(sub) -> None:
                    help="also compute the observed race from the a_p up to X (default 10^6; 0 to skip)")
     p.add_argument("--plot", metavar="PATH", help="figure of the observed race beside the limit law (PNG)")
     p.add_argument("--grh-height", default="0", metavar="T",
-                   help="also verify GRH for L(E,s) up to height T (at most the isolation height) by "
-                        "counting zeros with the argument principle (slow; default 0: skip)")
+                   help="also verify GRH for L(E,s) up to height T (0 <= T <= 200, at most the "
+                        "isolation height) by counting zeros with the argument principle (slow; "
+                        "default 0: skip)")
     p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
     p.add_argument("--certificate", metavar="PATH",
                    help="write a certificate (kind ecq-race) that `certify verify` re-checks by a recount")
+    from .options import add_limits, add_progress
+
+    add_progress(p)
+    add_limits(p)
     p.set_defaults(func=run_ecrace)

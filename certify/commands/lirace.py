@@ -104,11 +104,43 @@ def _int(text, what: str) -> int:
         raise BadInput(f"{what} must be an integer, got {text!r}") from None
 
 
+def check_li_size(direction: str, digits: int | None, sig: int | None, limits) -> dict:
+    """Refuse, before any work, a target whose estimated zeros of zeta exceed the limit.
+
+    The absolute width the final round needs is 10^-(S + 8) for S significant digits
+    of the small side (about 2.6e-7: :func:`certify.lirace.digits_for`), or 10^-D
+    for ``--digits D``; the estimate is the race driver's first plan at that width
+    (:func:`certify.batch.limits.li_race_estimate`).
+    """
+    from ..batch.limits import li_race_estimate
+    from ..lirace import DEFAULT_SIG_DIGITS, MAX_SIG_DIGITS, digits_for
+    from ..races import MAX_DIGITS
+
+    if digits is None:
+        s = DEFAULT_SIG_DIGITS if sig is None else sig
+        if not 1 <= s <= MAX_SIG_DIGITS:
+            raise BadInput(f"--sig-digits must lie in 1..{MAX_SIG_DIGITS} (got {s})")
+        # the small side is about 2.6e-7 (docs/method.md section 9): 2e-7 as its planned size
+        from fractions import Fraction
+
+        d = digits_for(Fraction(2, 10**7), s)
+    else:
+        if not 1 <= digits <= MAX_DIGITS:
+            raise BadInput(f"--digits must lie in 1..{MAX_DIGITS} (got {digits})")
+        d = digits
+    est = li_race_estimate(d, direction)
+    limits.require("zeros", est["zeros"], f"lirace at width 1e-{d} (zeros of zeta to height "
+                   f"{est['height']:.4g})")
+    return est
+
+
 def run_lirace(args) -> int:
     from ..lirace import certify_li_race
-    from .options import check_json_path
+    from .options import (Limits, check_json_path, check_out_dir, progress_enabled, stages)
 
     check_json_path(args.json)  # before any work: an empty or folder --json is refused at once
+    check_out_dir(args.certificate, "--certificate")
+    limits = Limits.of(args)
     direction = direction_of(args.direction)
     if args.digits is not None and args.sig_digits is not None:
         raise BadInput("give either --sig-digits or --digits, not both")
@@ -121,6 +153,7 @@ def run_lirace(args) -> int:
         sig = _int(args.sig_digits, "--sig-digits") if args.sig_digits is not None else None
         if sig is not None:
             tail += ["--sig-digits", str(sig)]
+    check_li_size(direction, digits, sig, limits)
     from ..spectrum.spectrum import SpectrumStore
 
     formats = None
@@ -129,9 +162,13 @@ def run_lirace(args) -> int:
 
         formats = parse_formats(args.formats)
     store = SpectrumStore()
-    result = certify_li_race(direction, sig_digits=sig, digits=digits, store=store,
-                             command_line="certify " + " ".join(shlex.quote(a) for a in tail))
-    rh = rh_to_height(result)
+    with stages("lirace", progress_enabled(args)) as say:
+        say("certifying " + direction + (f" to {sig} significant digits" if sig else
+                                        f" to width 1e-{digits}" if digits else ""))
+        result = certify_li_race(direction, sig_digits=sig, digits=digits, store=store,
+                                 command_line="certify " + " ".join(shlex.quote(a) for a in tail))
+        say("RH to a height: the argument-principle count of zeta's zeros")
+        rh = rh_to_height(result)
     if args.json:
         d = result.to_dict()
         d["rh_to_height"] = rh
@@ -185,4 +222,8 @@ def register(sub) -> None:
                    "re-checks it)")
     p.add_argument("--formats", default="json,md",
                    help="certificate formats: json, md, tex, fragment, plots, all (default json,md)")
+    from .options import add_limits, add_progress
+
+    add_progress(p)
+    add_limits(p)
     p.set_defaults(func=run_lirace)

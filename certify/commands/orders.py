@@ -95,9 +95,13 @@ def run_order(args) -> int:
     from .options import check_outputs
 
     check_outputs(args)
+    from .options import progress_enabled, stages
+
     store = SpectrumStore()
     if args.all:
-        fam = certify_orderings(q, question.classes, d, store=store, command_line=cmd)
+        with stages("order", progress_enabled(args)) as say:
+            fam = certify_orderings(q, question.classes, d, store=store, command_line=cmd,
+                                    progress=say)
         if args.json:
             # one document: the family's consistency checks and every ordering's certificate
             from ..certificate.model import envelope
@@ -115,7 +119,9 @@ def run_order(args) -> int:
         if not fam.ok:
             return 4
         return 0 if all(r.target_met for r in fam.results) else 5
-    result = certify_order(question, d, store=store, command_line=cmd)
+    with stages("order", progress_enabled(args)) as say:
+        say(f"certifying {question.label} to width 1e-{d}")
+        result = certify_order(question, d, store=store, command_line=cmd)
     if args.json:  # the certificate: the one shape every command writes with --json
         from ..certificate.order import order_certificate
 
@@ -156,7 +162,8 @@ def register(sub) -> None:
                    "JSON to PATH (- or no PATH: standard output)")
     p.add_argument("--certificate", metavar="DIR",
                    help="also write certificates (JSON for `certify verify`, Markdown) into DIR")
-    from .options import add_limits
+    from .options import add_limits, add_progress
 
+    add_progress(p)
     add_limits(p)
     p.set_defaults(func=run_order)

@@ -9,7 +9,7 @@ import sys
 
 from ..commands.options import (Limits, add_json, add_limits, add_out, add_progress, add_target,
                                 check_json_path, check_outputs, parse_float, parse_int,
-                                progress, progress_enabled, target_width)
+                                progress, progress_enabled, stages, target_width)
 from ..errors import BadInput
 from ..arith import interval_text
 from ..result import CAUTION, ExactValue, caution_text, headline_text
@@ -110,9 +110,13 @@ def run_curve(args) -> int:
     confirm = parse_int(args.confirm, "--confirm", 0, 6)
     max_boxes = parse_int(args.max_boxes, "--max-boxes", 1, 10**7)
     _check_curve_size(args, "curve")
-    E = make_curve(args.q, args.A, args.B)
-    L = l_polynomial(E, confirm=confirm)
-    R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=max_boxes)
+    with stages("curve", progress_enabled(args)) as say:
+        say("the curve's bad places and conductor")
+        E = make_curve(args.q, args.A, args.B)
+        say(f"L(E, u) of degree {E.l_degree} from point counts over F_{E.q}^k")
+        L = l_polynomial(E, confirm=confirm)
+        say(f"the density of the trace race ({args.mode}) to width {width:.0e}")
+        R = trace_race(E, L, args.mode, width, observe=observe, max_boxes=max_boxes)
     if args.json:
         # --json writes the certificate: the one shape of every certify document
         from fractions import Fraction
@@ -216,6 +220,7 @@ def register(sub) -> None:
                                    "Frobenius trace sum is certified under LI (assumed, with LLL evidence).")
     _add_curve_args(p)
     add_target(p, 8, 30)
+    add_progress(p)
     p.add_argument("--observe", default="0", help="also list the exact trace sums for X <= this (0..12)")
     p.add_argument("--confirm", default="1", help="extra degrees of point counts that confirm L (default 1)")
     p.add_argument("--max-boxes", default="100000",

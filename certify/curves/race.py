@@ -28,7 +28,7 @@ from fractions import Fraction
 
 from flint import fmpz_mat
 
-from ..arith import acb, arb, fmpq, workprec
+from ..arith import acb, arb, fmpq, lower_fraction, sci_text, workprec
 from ..density.bessel import BesselVariable, density_enclosure
 from ..errors import BadInput, Inconsistent, PrecisionExhausted
 from ..result import CAUTION, DensityEnclosure, Enclosure, ErrorTerm, Hypothesis
@@ -222,6 +222,9 @@ class TraceRaceResult(NotebookDisplay):
     relation_bound: arb | None
     observed: tuple[dict, ...] = field(default=())
     caution: str = CAUTION
+    #: {hypothesis name: ((kind, data), ...)}: the evidence as data, each sentence generated
+    #: from its data by :func:`evidence_sentence` (certificates store the items)
+    evidence: dict = field(default_factory=dict)
 
     @property
     def rank(self) -> int:
@@ -333,23 +336,21 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
     var = race_variable(L, mode, prec)
     k = len(var.weights)
     rel_bound = None
+    ev = base_evidence(L)
     hyps = [
         Hypothesis(
             "RH for L(E,u)", "every inverse root of L(E, u) has absolute value q",
-            "theorem",
-            (f"all {L.degree} inverse roots enclosed by Arb; ||gamma| - q| <= {L.max_modulus_error:.3g} for each",),
+            "theorem", _sentences(ev["RH for L(E,u)"]),
             "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
         Hypothesis(
             "Degree and functional equation",
             f"L(E, u) has degree deg N - 4 = {L.degree} and satisfies L(u) = eps (qu)^N' L(1/(q^2 u))",
-            "theorem",
-            (f"eps = {L.sign:+d} read from point counts of degrees <= {L.degrees_used}; "
-             f"confirmed by the exact point counts of degrees {list(L.degrees_confirmed)}",),
+            "theorem", _sentences(ev["Degree and functional equation"]),
             "Formule de Lefschetz et rationalité des fonctions L, Sém. Bourbaki 279 (1965); "
             "Caractéristique d'Euler-Poincaré d'un faisceau, Sém. Bourbaki 286 (1965)"),
         Hypothesis(
             "Weight bound for Sym^2", "the Sym^2 trace sums over places of degree m are O(q^(3m/2))",
-            "theorem", ("used only for the prime-square term's limit (docs/elliptic_curves.md)",),
+            "theorem", _sentences(ev["Weight bound for Sym^2"]),
             "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
     ]
     if k == 0:
@@ -364,22 +365,23 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
                     f"not certified: the limit of the normalised sum is 0 on the progression "
                     f"X = {res} mod {var.period} (every inverse root is q times a root of unity), "
                     "so its sign there is decided by lower-order terms")
+        ev["LI"] = (("torsion-only", {"period": var.period}),)
         hyps.append(Hypothesis("LI", "no non-torsion inverse roots: nothing to assume", "verified",
-                               ("every inverse root is q times a root of unity (exact cyclotomic factors)",)))
+                               _sentences(ev["LI"])))
         dens, budget = _combine(encs)
         params = {"engine": "exact (periodic limit)", "period": var.period}
     else:
         cands, rel_bound = relation_search(list(var.angles), prec=max(256, 2 * prec))
         if cands:
-            return _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe)
+            return _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe, ev)
+        ev["LI"] = (("relation-search", {"angles": k,
+                                         "norm_lower_bound": sci_text(lower_fraction(rel_bound), 4,
+                                                                      up=False)}),
+                    ("torsion-roots", {"representatives": len(var.torsion), "period": var.period}))
         hyps.append(Hypothesis(
             "LI", f"the numbers 1, theta_1/2pi, ..., theta_{k}/2pi of the {k} non-torsion angles are "
             "linearly independent over Q",
-            "assumed",
-            (f"LLL on {k} angles found no relation; any integer relation has Euclidean norm >= "
-             f"{float(rel_bound.lower()):.4g} (certified from exact Gram-Schmidt norms)",
-             f"{len(var.torsion)} torsion root representative(s) handled exactly (period {var.period} in X)"),
-        ))
+            "assumed", _sentences(ev["LI"])))
         width = _width_floor(k, target_width)
         encs = []
         cache: dict = {}
@@ -399,10 +401,63 @@ def trace_race(E: EllipticCurve, L: LPolynomial, mode: str = "cumulative", targe
     per = tuple(e.enclosure if isinstance(e, DensityEnclosure) else e for e in encs)
     params.update({"mode": mode, "prec": prec, "q": E.q, "l_degree": L.degree, "rank": L.rank})
     obs = observed_race(E, L, var, observe, prec) if observe > 0 else ()
-    return TraceRaceResult(E, L, mode, var, dens, per, budget, tuple(hyps), params, rel_bound, obs)
+    return TraceRaceResult(E, L, mode, var, dens, per, budget, tuple(hyps), params, rel_bound, obs,
+                           evidence=ev)
 
 
-def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe) -> TraceRaceResult:
+# -- evidence: (kind, data) items; each sentence is generated from its data alone, so that
+# ``certify verify`` can regenerate it (certify/certificate/curves.py re-derives the data)
+
+def base_evidence(L) -> dict:
+    """The evidence of the three theorems a curve race uses, from its L-polynomial."""
+    c = list(L.frobenius_sums[1:])
+    return {
+        "RH for L(E,u)": (("inverse-roots", {
+            "degree": L.degree, "coefficients": [int(x) for x in L.coeffs],
+            "max_modulus_error": sci_text(Fraction(L.max_modulus_error), 3, up=True)}),),
+        "Degree and functional equation": (("point-counts", {
+            "degree": L.degree, "sign": L.sign, "degrees_used": L.degrees_used,
+            "degrees_confirmed": list(L.degrees_confirmed),
+            "frobenius_sums": [int(x) for x in c]}),),
+        "Weight bound for Sym^2": (("usage-note", {"term": "prime squares"}),),
+    }
+
+
+def evidence_sentence(kind: str, d: dict) -> str:
+    """The sentence of an evidence item, from its data alone (KeyError for an unknown kind)."""
+    if kind == "inverse-roots":
+        return (f"all {d['degree']} inverse roots enclosed by Arb; ||gamma| - q| <= "
+                f"{d['max_modulus_error']} for each")
+    if kind == "point-counts":
+        return (f"eps = {d['sign']:+d} read from point counts of degrees <= {d['degrees_used']}; "
+                f"confirmed by the exact point counts of degrees {list(d['degrees_confirmed'])}")
+    if kind == "usage-note" and d == {"term": "prime squares"}:
+        return "used only for the prime-square term's limit (docs/elliptic_curves.md)"
+    if kind == "torsion-only":
+        return ("every inverse root is q times a root of unity (exact cyclotomic factors; "
+                f"period {d['period']} in X)")
+    if kind == "relation-search":
+        return (f"LLL on {d['angles']} angles found no relation; any integer relation has "
+                f"Euclidean norm >= {d['norm_lower_bound']} (certified from exact Gram-Schmidt norms)")
+    if kind == "torsion-roots":
+        return (f"{d['representatives']} torsion root representative(s) handled exactly "
+                f"(period {d['period']} in X)")
+    if kind == "relations-confirmed":
+        return (f"all {len(d['relations'])} relation(s) confirmed exactly (separation bound for "
+                "algebraic integers: prod (gamma_j/q)^(P k_j) = 1)")
+    if kind == "orbit-closure":
+        return f"orbit closure: {d['description']}"
+    if kind == "no-further-relation":
+        return f"LLL found no further short relation among the {d['angles']} angles"
+    raise KeyError(f"unknown evidence kind {kind!r}")
+
+
+def _sentences(items) -> tuple:
+    return tuple(evidence_sentence(k, d) for k, d in items)
+
+
+def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe,
+                   ev=None) -> TraceRaceResult:
     """The angles satisfy integer relations: the density on the orbit closure, by box subdivision.
 
     With P the period, X = r + P s and y_j = P theta_j / 2 pi, the orbit {s y} fills the
@@ -475,15 +530,18 @@ def _relation_case(E, L, var, mode, target_width, prec, hyps, max_boxes, observe
     budget = (ErrorTerm("undecided volume", arb(float(und_avg)) + arb(0, 1e-15) if und_avg else arb(0),
                         "Haar measure of the boxes of the orbit closure where the sign of the limit "
                         "function was not decided (averaged over the residue classes of X)"),)
+    ev = dict(ev if ev is not None else base_evidence(L))
+    ev["Relations among the angles"] = (("relations-confirmed", {"relations": [list(r) for r in rels]}),
+                                        ("orbit-closure", {"description": H.describe()}),
+                                        ("no-further-relation", {"angles": J}))
     hyps.append(Hypothesis(
         "Relations among the angles", f"the integer relations among 1/{P}, theta_1/2pi, ..., theta_{J}/2pi are "
         f"generated by the {len(rels)} relation(s) {rels}", "assumed",
-        (f"all {len(rels)} relation(s) confirmed exactly (separation bound for algebraic integers: "
-         "prod (gamma_j/q)^(P k_j) = 1)",
-         f"orbit closure: {H.describe()}", "LLL found no further short relation")))
+        _sentences(ev["Relations among the angles"])))
     params = {"engine": "box subdivision on the orbit closure (certify.ffield.torus)", "period": P,
               "relations": rels, "relations_confirmed_exactly": True, "orbit_closure": H.describe(), "boxes": boxes_total,
               "max_boxes_per_class": max_boxes, "non_torsion_angles": J,
               "mode": mode, "prec": prec, "q": q, "l_degree": L.degree, "rank": L.rank}
     obs = observed_race(E, L, var, observe, prec) if observe > 0 else ()
-    return TraceRaceResult(E, L, mode, var, dens, tuple(encs), budget, tuple(hyps), params, None, obs)
+    return TraceRaceResult(E, L, mode, var, dens, tuple(encs), budget, tuple(hyps), params, None, obs,
+                           evidence=ev)

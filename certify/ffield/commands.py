@@ -14,11 +14,8 @@ its prime field is written ``z`` (see ``certify.ffield.poly``).
 
 from __future__ import annotations
 
-import sys
-
-
-from ..commands.options import (Limits, add_json, add_limits, add_target, check_outputs, parse_int,
-                                target_width, write_json)
+from ..commands.options import (Limits, add_json, add_limits, add_progress, add_target, check_outputs,
+                                parse_int, progress_enabled, stages, target_width, write_json)
 from ..errors import BadInput
 from ..result import ExactValue, caution_text, headline_text
 
@@ -101,19 +98,19 @@ def run_race(args) -> int:
     else:
         qn, G, wd = parse_race(args.q, args.modulus, list(args.classes), args.weights, args.mode)
 
-    def say(msg: str) -> None:
-        print(f"ffrace: {msg}", file=sys.stderr, flush=True)
+    # each stage that can take long is shown on a terminal (never in a log or a pipe)
+    with stages(NAME_RACE, progress_enabled(args)) as say:
+        if args.json:
+            # --json writes the certificate: the one shape of every certify document
+            from fractions import Fraction
 
-    if args.json:
-        # --json writes the certificate: the one shape of every certify document
-        from fractions import Fraction
+            from ..certificate.ffield import certify_ffield
 
-        from ..certificate.ffield import certify_ffield
-
-        res, cert = certify_ffield(qn, G, wd, Fraction(repr(width)), leader_bound=leaders)
-        write_json(cert.to_dict(), args.json)
-    else:
-        res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders, progress=say)
+            res, cert = certify_ffield(qn, G, wd, Fraction(repr(width)), leader_bound=leaders,
+                                       progress=say)
+            write_json(cert.to_dict(), args.json)
+        else:
+            res = certify_ffrace(qn, G, wd, target_width=width, leader_bound=leaders, progress=say)
     if args.json != "-":
         print(screen(res))
     return 0 if res.target_met else 5
@@ -179,6 +176,7 @@ def register(subparsers) -> None:
     p.add_argument("--leaders", default="60", metavar="N",
                    help="report leaders from exact counts up to degree N (0: skip; default 60)")
     add_json(p)
+    add_progress(p)
     add_limits(p)
     p.set_defaults(func=run_race)
 

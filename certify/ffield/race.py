@@ -666,11 +666,9 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
     t3 = time.time()
     hyps = [Hypothesis("Weil", "Every inverse root of L(u, chi) has modulus sqrt(q) or 1 "
                        "(the Riemann hypothesis for curves over finite fields).", "theorem",
-                       tuple(f"L(u, {L.character}): {L.weil.describe()}" for L in ldata),
+                       tuple(evidence_sentence(k, d) for k, d in weil_evidence(ldata)),
                        _REF_WEIL)]
-    ev = [f"LLL at {rel_prec} bits found no relation with coefficients <= {coeff_bound} "
-          f"other than those listed" + (" (none)" if not confirmed else ""),
-          "the search is evidence only: a relation with larger coefficients is not excluded"]
+    ev = [evidence_sentence(k, d) for k, d in search_evidence(rel_prec, coeff_bound, confirmed)]
     if case == "no angles":
         pass  # the limit function depends on the parity of X only: nothing to assume
     elif case == "LI":
@@ -679,13 +677,10 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
             "inverse roots of modulus sqrt(q), one per conjugate pair) are linearly independent "
             "over Q.", "assumed", tuple(ev)))
     else:
-        rel_txt = "; ".join(
-            " + ".join(f"{k}*{'pi' if i == 0 else f'theta_{i}'}" for i, k in enumerate(r) if k)
-            + " = 0 mod 2 pi" for r in confirmed)
         hyps.append(Hypothesis(
             "relations", "Every Q-linear relation among pi, theta_1, ..., theta_" + str(J)
             + " follows from the listed relations (confirmed exactly).", "assumed",
-            tuple(["confirmed exactly (separation bound for algebraic integers and ball sign): " + rel_txt] + ev)))
+            tuple([evidence_sentence("relations-confirmed", {"relations": confirmed})] + ev)))
     leaders = None
     if leader_bound:
         say(f"exact prime counts to degree {leader_bound} for the leaders")
@@ -700,6 +695,54 @@ def certify_ffrace(question: FFRaceQuestion, G: CharacterGroup, wd: dict[int, in
         tuple(points), tuple(tuple(r) for r in confirmed), H, mu0, mupi, c2, leaders,
         target_width, {"spectrum": t1 - t0, "relations": t2 - t1, "density": t3 - t2,
                        "leaders": t4 - t3, "total": t4 - t0})
+
+
+# -- evidence for the hypotheses: (kind, data) items, their sentences generated from the data
+# (the certificate stores the items; ``certify verify`` regenerates each sentence and re-derives
+# the data, see certify/certificate/ffield.py)
+
+SEARCH_CAVEAT = "the search is evidence only: a relation with larger coefficients is not excluded"
+
+
+def weil_evidence(ldata) -> list[tuple[str, dict]]:
+    """One ``weil-check`` item per L-polynomial: its exact coefficients and the root census."""
+    return [("weil-check", {"character": L.character, "coefficients": list(L.coefficients),
+                            "degree": L.weil.degree, "expected_degree": L.weil.expected_degree,
+                            "roots_modulus_sqrt_q": L.weil.n_sqrt_q, "roots_modulus_1": L.weil.n_unit,
+                            "expected_modulus_1": L.weil.expected_unit,
+                            "undecided": L.weil.undecided})
+            for L in ldata]
+
+
+def search_evidence(rel_prec: int, coeff_bound: int, confirmed) -> list[tuple[str, dict]]:
+    """The relation search (LLL) and its caveat, as evidence items."""
+    return [("relation-search", {"precision_bits": int(rel_prec), "coefficient_bound": int(coeff_bound),
+                                 "relations": [list(map(int, r)) for r in confirmed]}),
+            ("search-caveat", {"coefficient_bound": int(coeff_bound)})]
+
+
+def _relation_text(r) -> str:
+    return (" + ".join(f"{k}*{'pi' if i == 0 else f'theta_{i}'}" for i, k in enumerate(r) if k)
+            + " = 0 mod 2 pi")
+
+
+def evidence_sentence(kind: str, data: dict) -> str:
+    """The sentence of an evidence item, generated from its data alone (KeyError if unknown)."""
+    if kind == "weil-check":
+        return (f"L(u, {data['character']}): degree {data['degree']} (expected "
+                f"{data['expected_degree']}); {data['roots_modulus_sqrt_q']} roots of modulus "
+                f"sqrt(q), {data['roots_modulus_1']} of modulus 1 (expected "
+                f"{data['expected_modulus_1']}); {data['undecided']} undecided")
+    if kind == "relation-search":
+        return (f"LLL at {data['precision_bits']} bits found no relation with coefficients <= "
+                f"{data['coefficient_bound']} other than those listed"
+                + (" (none)" if not data["relations"] else ""))
+    if kind == "search-caveat":
+        return SEARCH_CAVEAT
+    if kind == "relations-confirmed":
+        return ("confirmed exactly (separation bound for algebraic integers and ball sign): "
+                + "; ".join(_relation_text(r) for r in data["relations"]))
+    raise KeyError(f"unknown evidence kind {kind!r}")
 
 
 def identify_x(p: SpectralPoint, prec: int) -> arb:

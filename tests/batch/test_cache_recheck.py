@@ -129,3 +129,59 @@ def test_forged_power_sum_never_gives_a_disjoint_enclosure(tmp_path, clean_4, ca
     assert lo <= PUBLISHED[1] and hi >= PUBLISHED[0] and lo <= clean.density.upper and hi >= clean.density.lower
     summary = json.loads((out / "batch.json").read_text())
     assert summary["spectra"]["recheck"]["skipped"] >= 1
+
+
+def test_a_forged_spectrum_from_a_worker_is_refused_before_use(tmp_path, monkeypatch):
+    """A worker is another process: its spectrum is data.  A worker that sends back a changed
+    power sum (valid digest) has its spectrum refused by the coordinator (warning, not stored,
+    not shipped); the race computes its own and its enclosure contains the published value.
+    A clean worker's spectra are re-checked too, and the cost is reported."""
+    import certify.batch.run as run_mod
+    from certify.batch.run import WorkerSpectrumWarning
+    from certify.batch.serial import encode
+
+    real = run_mod.conductor_task
+
+    def forging(pairs):
+        out = real(pairs)
+        for res in out:
+            sp = decode(res["blob"], res["digest"])
+            d_sums = list(sp.power_sums)
+            d_sums[0] = d_sums[0] * 1.01
+            forged = type(sp)(sp.conductor, sp.label, sp.parity, sp.zeros, d_sums,
+                              sp.power_sum_bits, sp.central)
+            res["blob"], res["digest"] = encode(forged)
+        return out
+
+    monkeypatch.setattr(run_mod, "conductor_task", forging)
+    out = tmp_path / "t"
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        rc = main(["table", "--race", "4:3,1", "--kinds", "two-way", "--digits", "6", "--no-cache",
+                   "--out", str(out), "--workers", "1", "--quiet"])
+    assert rc == 0
+    assert any(issubclass(w.category, WorkerSpectrumWarning) and "power sum" in str(w.message)
+               for w in caught)
+    summary = json.loads((out / "batch.json").read_text())
+    assert summary["spectra"]["worker_recheck"]["refused"] == 1
+    assert summary["spectra"]["worker_recheck"]["entries"] == 0
+    con = sqlite3.connect(str(out / "spectra-scratch.sqlite"))
+    stored = [json.loads(zlib.decompress(bytes(b)))["power_sums"][0]
+              for (b,) in con.execute("SELECT data FROM spectra WHERE conductor = 4")]
+    con.close()
+    sp_clean = SpectrumStore().get(4, 3, 1, 0.0, 1e-3, 1, 80)
+    for mid, rad in stored:  # whatever was stored later is not the forged value
+        assert arb(mid, rad).overlaps(sp_clean.power_sums[0])
+    res = json.loads(next((out / "results").rglob("*.json")).read_text())
+    lo, hi = Fraction(res["density"]["lower"]), Fraction(res["density"]["upper"])
+    if res["question"]["label"] == "delta(4;1,3)":
+        lo, hi = 1 - hi, 1 - lo
+    assert lo <= PUBLISHED[1] and hi >= PUBLISHED[0]
+    # a clean worker: every spectrum it computed is re-checked, at a measured cost
+    monkeypatch.setattr(run_mod, "conductor_task", real)
+    out2 = tmp_path / "t2"
+    assert main(["table", "--moduli", "5", "--digits", "5", "--no-cache", "--out", str(out2),
+                 "--workers", "1", "--quiet"]) == 0
+    wr = json.loads((out2 / "batch.json").read_text())["spectra"]["worker_recheck"]
+    assert wr["entries"] == json.loads((out2 / "batch.json").read_text())["spectra"]["computed"] >= 2
+    assert wr["refused"] == 0 and 0 <= wr["seconds"] < 30

@@ -229,13 +229,214 @@ CURVE = {
     "crafted: precision 10^8 bits": lambda d: d["parameters"].update(prec=10**8),
 }
 
+# -- the evidence of the recount kinds: each item's data, its sentence, repeated and inserted
+# items; "consistent" forgeries regenerate the sentence from the forged data (as a careful
+# forger would, with the project's own function), so only the re-derivation can catch them
+
+
+def _item(d, hyp, i=0):
+    return _hyp(d, hyp)["evidence"][i]
+
+
+def _regen(kind, item):
+    if kind == "ffield-race":
+        from certify.ffield.race import evidence_sentence
+    else:
+        from certify.curves.race import evidence_sentence
+    item["text"] = evidence_sentence(item["kind"], item["data"])
+
+
+def _forge(kind, hyp, i, edit):
+    def f(d):
+        it = _item(d, hyp, i)
+        edit(it["data"])
+        _regen(kind, it)
+    return f
+
+
+def _coef(s: str) -> str:
+    return "7" if s != "7" else "8"
+
+
+def _ff_both_coefficients(d):
+    """The L-polynomial changed consistently in the spectrum and in its evidence."""
+    L = d["spectrum"]["l_polynomials"][0]
+    it = _item(d, "Weil", 0)
+    L["coefficients"][-1] = _coef(L["coefficients"][-1])
+    it["data"]["coefficients"] = list(L["coefficients"])
+
+
+def _ff_other_character(d):
+    it = copy.deepcopy(_item(d, "Weil", 0))
+    it["data"]["character"] = "chi_{0,1}" if it["data"]["character"] != "chi_{0,1}" else "chi_{1,0}"
+    _regen("ffield-race", it)
+    _hyp(d, "Weil")["evidence"].append(it)
+
+
+def _set(key, value):
+    return lambda data: data.update({key: value})
+
+
+FFIELD_EVIDENCE = {
+    "weil: sentence changed": lambda d: _item(d, "Weil", 2).update(
+        text=_item(d, "Weil", 2)["text"].replace("0 undecided", "no root undecided")),
+    "weil: census inflated (consistent)": _forge("ffield-race", "Weil", 0,
+                                                 lambda x: x.update(roots_modulus_sqrt_q=x["roots_modulus_sqrt_q"] + 1)),
+    "weil: undecided count changed (consistent)": _forge("ffield-race", "Weil", 1,
+                                                         lambda x: x.update(undecided=x["undecided"] + 1)),
+    "weil: expected degree changed (consistent)": _forge("ffield-race", "Weil", 0,
+                                                         lambda x: x.update(expected_degree=x["expected_degree"] + 2)),
+    "weil: unit roots changed (consistent)": _forge("ffield-race", "Weil", 3,
+                                                    lambda x: x.update(roots_modulus_1=x["roots_modulus_1"] + 1)),
+    "weil: coefficient changed in the evidence only": _forge(
+        "ffield-race", "Weil", 0, lambda x: x["coefficients"].__setitem__(-1, _coef(x["coefficients"][-1]))),
+    "weil: coefficient changed in spectrum and evidence": _ff_both_coefficients,
+    "weil: character renamed (consistent)": _forge("ffield-race", "Weil", 0,
+                                                   _set("character", "chi_{9,9}")),
+    "weil: item duplicated": lambda d: _hyp(d, "Weil")["evidence"].append(copy.deepcopy(_item(d, "Weil", 0))),
+    "weil: item removed": lambda d: _hyp(d, "Weil")["evidence"].pop(),
+    "weil: items reordered": lambda d: _hyp(d, "Weil")["evidence"].reverse(),
+    "weil: item inserted for another character": _ff_other_character,
+    "weil: data emptied": lambda d: _item(d, "Weil", 0).update(data={}),
+    "weil: data key added": lambda d: _item(d, "Weil", 0)["data"].update(verified=True),
+    "evidence kind renamed": lambda d: _item(d, "Weil", 0).update(kind="recount"),
+    "evidence kind unknown (sentence kept)": lambda d: _item(d, "relations", 2).update(kind="proof"),
+    "relations: relation changed (consistent)": _forge(
+        "ffield-race", "relations", 0, lambda x: x["relations"][0].__setitem__(-1, x["relations"][0][-1] + 1)),
+    "relations: relation added (consistent)": _forge(
+        "ffield-race", "relations", 0, lambda x: x["relations"].append([0, 1] + [0] * (len(x["relations"][0]) - 2))),
+    "relations: sentence changed": lambda d: _item(d, "relations", 0).update(text="confirmed exactly: all"),
+    "search: bits raised (consistent)": _forge("ffield-race", "relations", 1,
+                                               lambda x: x.update(precision_bits=x["precision_bits"] * 4)),
+    "search: coefficient bound raised (consistent)": _forge("ffield-race", "relations", 1,
+                                                            _set("coefficient_bound", 10**6)),
+    "search: relations dropped (consistent)": _forge("ffield-race", "relations", 1, _set("relations", [])),
+    "search: sentence changed": lambda d: _item(d, "relations", 1).update(
+        text="LLL proved there is no other relation"),
+    "caveat: removed": lambda d: _hyp(d, "relations")["evidence"].pop(2),
+    "caveat: bound changed (consistent)": _forge("ffield-race", "relations", 2, _set("coefficient_bound", 999)),
+    "caveat: sentence changed": lambda d: _item(d, "relations", 2).update(text="no relation is missing"),
+    "caveat: duplicated": lambda d: _hyp(d, "relations")["evidence"].append(copy.deepcopy(_item(d, "relations", 2))),
+    "evidence moved between hypotheses": lambda d: _hyp(d, "Weil")["evidence"].append(
+        _hyp(d, "relations")["evidence"].pop(1)),
+}
+
+
+def _c_sum(i, delta=1):
+    return lambda x: x["frobenius_sums"].__setitem__(i, x["frobenius_sums"][i] + delta)
+
+
+def _c_both_coefficients(d):
+    """L(E, u) changed consistently in the spectrum and its RH evidence."""
+    L = d["spectrum"]["l_polynomial"]
+    L["coefficients"][1] += 5
+    it = _item(d, "RH for L(E,u)")
+    it["data"]["coefficients"] = list(L["coefficients"])
+
+
+CURVE_EVIDENCE = {
+    "point counts: c_1 changed (consistent)": _forge("curve-race", "Degree and functional equation", 0, _c_sum(0)),
+    "point counts: c_2 changed (consistent)": _forge("curve-race", "Degree and functional equation", 0, _c_sum(1, 5)),
+    "point counts: last sum changed (consistent)": _forge("curve-race", "Degree and functional equation", 0, _c_sum(-1, 5)),
+    "point counts: truncated (consistent)": _forge("curve-race", "Degree and functional equation", 0,
+                                                   lambda x: x["frobenius_sums"].pop()),
+    "point counts: sign flipped (consistent)": _forge("curve-race", "Degree and functional equation", 0,
+                                                      lambda x: x.update(sign=-x["sign"])),
+    "point counts: more degrees confirmed (consistent)": _forge(
+        "curve-race", "Degree and functional equation", 0,
+        lambda x: x.update(degrees_confirmed=x["degrees_confirmed"] + [x["degrees_confirmed"][-1] + 1])),
+    "point counts: degrees used changed (consistent)": _forge(
+        "curve-race", "Degree and functional equation", 0, lambda x: x.update(degrees_used=x["degrees_used"] - 1)),
+    "point counts: degree changed (consistent)": _forge(
+        "curve-race", "Degree and functional equation", 0, lambda x: x.update(degree=x["degree"] + 2)),
+    "point counts: sentence changed": lambda d: _item(d, "Degree and functional equation").update(
+        text="eps = +1 proved"),
+    "point counts: data emptied": lambda d: _item(d, "Degree and functional equation").update(data={}),
+    "inverse roots: bound lowered to 0 (consistent)": _forge("curve-race", "RH for L(E,u)", 0,
+                                                             _set("max_modulus_error", "0")),
+    "inverse roots: coefficients changed (consistent)": _forge(
+        "curve-race", "RH for L(E,u)", 0, lambda x: x["coefficients"].__setitem__(1, x["coefficients"][1] + 1)),
+    "inverse roots: degree changed (consistent)": _forge("curve-race", "RH for L(E,u)", 0,
+                                                         lambda x: x.update(degree=x["degree"] - 1)),
+    "inverse roots: sentence changed": lambda d: _item(d, "RH for L(E,u)").update(
+        text="all inverse roots have absolute value q exactly"),
+    "L-polynomial changed in spectrum and evidence": _c_both_coefficients,
+    "usage note changed": lambda d: _item(d, "Weight bound for Sym^2").update(data={"term": "everything"}),
+    "usage note sentence changed": lambda d: _item(d, "Weight bound for Sym^2").update(text="proved here"),
+    "LI: norm bound raised (consistent)": _forge("curve-race", "LI", 0, _set("norm_lower_bound", "1.000e+9")),
+    "LI: angle count changed (consistent)": _forge("curve-race", "LI", 0, lambda x: x.update(angles=x["angles"] + 1)),
+    "LI: sentence changed": lambda d: _item(d, "LI").update(text="LLL proved LI"),
+    "LI: torsion period changed (consistent)": _forge("curve-race", "LI", 1, lambda x: x.update(period=x["period"] + 1)),
+    "LI: torsion representatives changed (consistent)": _forge(
+        "curve-race", "LI", 1, lambda x: x.update(representatives=x["representatives"] + 3)),
+    "LI: item duplicated": lambda d: _hyp(d, "LI")["evidence"].append(copy.deepcopy(_item(d, "LI"))),
+    "LI: item removed": lambda d: _hyp(d, "LI")["evidence"].pop(),
+    "LI: items reordered": lambda d: _hyp(d, "LI")["evidence"].reverse(),
+    "inserted item: torsion-only in RH": lambda d: _hyp(d, "RH for L(E,u)")["evidence"].append(
+        {"kind": "torsion-only", "data": {"period": 1},
+         "text": "every inverse root is q times a root of unity (exact cyclotomic factors; period 1 in X)"}),
+    "evidence kind unknown": lambda d: _item(d, "LI").update(kind="proof"),
+    "evidence moved between hypotheses": lambda d: _hyp(d, "RH for L(E,u)")["evidence"].append(
+        _hyp(d, "LI")["evidence"].pop(1)),
+}
+
+
+def _generic(kind):
+    """One variant per field a document of a recount kind shows (question, answer, hypotheses,
+    budget, parameters, provenance, references, caution, envelope)."""
+    q = {
+        "question label changed": lambda d: d["question"].update(label=d["question"]["label"] + " "),
+        "question definition changed": lambda d: d["question"].update(definition="logarithmic density"),
+        "question setting changed": lambda d: d["question"].update(setting="Q"),
+        "question key added": lambda d: d["question"].update(proved=True),
+        "answer lower end moved up": lambda d: d["answer"]["enclosure"].update(
+            lower=d["answer"]["enclosure"]["upper"]),
+        "answer upper end moved down": lambda d: d["answer"]["enclosure"].update(
+            upper=d["answer"]["enclosure"]["lower"]),
+        "answer width changed": lambda d: d["answer"].update(width="1e-30"),
+        "answer target changed": lambda d: d["answer"].update(target_width="1e-29"),
+        "answer target_met flipped": lambda d: d["answer"].update(target_met=not d["answer"]["target_met"]),
+        "hypothesis statement changed": lambda d: d["hypotheses"][0].update(statement="proved"),
+        "hypothesis reference changed": lambda d: d["hypotheses"][0].update(reference="Annals 2031"),
+        "hypothesis renamed": lambda d: d["hypotheses"][-1].update(name="GRH"),
+        "hypotheses reordered": lambda d: d["hypotheses"].reverse(),
+        "assumed hypothesis upgraded": lambda d: d["hypotheses"][-1].update(status="theorem"),
+        "theorem downgraded": lambda d: d["hypotheses"][0].update(status="assumed"),
+        "hypothesis inserted": lambda d: d["hypotheses"].insert(0, {
+            "name": "GRH", "statement": "s", "status": "theorem", "evidence": [], "reference": ""}),
+        "budget entry duplicated": lambda d: d["error_budget"].append(copy.deepcopy(d["error_budget"][0])),
+        "budget entry removed": lambda d: d["error_budget"].pop(),
+        "budget description changed": lambda d: d["error_budget"][0].update(description="none"),
+        "budget name changed": lambda d: d["error_budget"][0].update(name="nothing"),
+        "parameter added": lambda d: d["parameters"].update(verified=True),
+        "target parameter changed": lambda d: d["parameters"].update(target_width="1/3"),
+        "command line changed": lambda d: d["provenance"].update(command_line="certify --prove"),
+        "input digest changed": lambda d: d["provenance"].update(input_digest="sha256:" + "1" * 64),
+        "reference removed": lambda d: d["references"].pop(),
+        "reference added": lambda d: d["references"].append("Invented, 2030"),
+        "crafted: bound 1e-999999999": lambda d: d["error_budget"][0].update(bound="1e-999999999"),
+        "crafted: enclosure 1e30 digits": lambda d: d["answer"]["enclosure"].update(lower="0." + "1" * 9000),
+        "unknown top-level key": lambda d: d.update(verified_by="a referee"),
+        "schema version changed": lambda d: d.update(schema_version=1),
+        "kind swapped": lambda d: d.update(kind="ffield-race" if kind == "curve-race" else "curve-race"),
+    }
+    return q
+
+
+FFIELD.update(FFIELD_EVIDENCE)
+CURVE.update(CURVE_EVIDENCE)
+for _k, _m in (("ffield-race", FFIELD), ("curve-race", CURVE)):
+    for _name, _f in _generic(_k).items():
+        _m.setdefault(_name, _f)
+
 CASES = ([("dirichlet-race", k) for k in DIRICHLET] + [("ffield-race", k) for k in FFIELD]
          + [("curve-race", k) for k in CURVE])
 MUTATORS = {"dirichlet-race": DIRICHLET, "ffield-race": FFIELD, "curve-race": CURVE}
 
 
 def test_the_suite_is_large_enough():
-    assert len(CASES) >= 60 and all(len(m) >= 10 for m in MUTATORS.values())
+    """At least 60 variants of each kind of certificate (issue 10)."""
+    assert all(len(m) >= 60 for m in MUTATORS.values()), {k: len(m) for k, m in MUTATORS.items()}
 
 
 @pytest.mark.parametrize("kind,name", CASES)

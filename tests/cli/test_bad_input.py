@@ -150,10 +150,30 @@ CASES = [
     ["ecrace", "[0,-1,1,-10,-20]", "--digits", "0"], ["ecrace", "[0,-1,1,-10,-20]", "--observe", "-5"],
     ["ecrace", "[0,-1,1,-10,-20]", "--json", ""], ["ecrace", "[0,-1,1,-10,-20]", "--json", "{dir}"],
     ["ecrace", "[0,-1,1,-10," + HUGE + "]"],
+    ["ecrace", "[0,0,0,-101,307]"], ["ecrace", "[0,0,0,-7,13]", "--limit", "ec-conductor=1000"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--limit", "zeros=5"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--observe", "100000000"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--observe", "1000000", "--limit", "primes=1000"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--limit", "primes=abc"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--limit", "ec-conductor"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "1e400"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "300"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "-1"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "nan"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "inf"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "abc"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--grh-height", "9" * 400],
+    ["ecrace", "[0,-1,1,-10,-20]", "--certificate", "{dir}"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--plot", "{dir}"],
+    ["ecrace", "[0,-1,1,-10,-20]", "--digits", "31"],
     # -- lirace -----------------------------------------------------------------------
     ["lirace", "sideways"], ["lirace", "--digits", "0"], ["lirace", "--sig-digits", "0"],
     ["lirace", "--sig-digits", "1e400"], ["lirace", "--json", ""], ["lirace", "--json", "{dir}"],
     ["lirace", "--digits", HUGE],
+    ["lirace", "--limit", "zeros=10"], ["lirace", "--sig-digits", "49", "--limit", "zeros=100"],
+    ["lirace", "--digits", "30", "--limit", "zeros=20"], ["lirace", "--limit", "bogus=1"],
+    ["lirace", "--certificate", "{file}"], ["lirace", "--digits", "61"],
+    ["lirace", "--sig-digits", "51"], ["lirace", "--digits", "5", "--sig-digits", "5"],
     # -- order ------------------------------------------------------------------------
     ["order"], ["order", "5"], ["order", "5", "1", "2"], ["order", "5", "1", "1", "2"],
     ["order", "5", "1", "2", "5"], ["order", "x", "1", "2", "3"], ["order", "5", "1", "2", "3", "--digits", "0"],
@@ -265,6 +285,47 @@ def test_bad_input_is_refused_in_one_line(argv, files, capsys, monkeypatch, tmp_
         assert any(ln.startswith(("certify: error:", "usage:", "certify: warning:")) for ln in lines), err
         assert all(len(ln) < 400 for ln in lines if ln.startswith("certify: error:")), err[:500]
     assert seconds < 5, f"refusal took {seconds:.1f} s"
+
+
+@pytest.mark.parametrize("height", ["1e400", "-1e400", "1e309", "201", "nan", "inf"])
+def test_an_overflowing_height_is_named_with_its_limit(height, capsys):
+    """Every command that takes a height (ecrace --grh-height) refuses one that overflows
+    or exceeds the stated limit in one line naming the option, the height and the limit."""
+    from certify.commands.options import MAX_HEIGHT
+
+    t0 = time.perf_counter()
+    rc = main(["ecrace", "[0,-1,1,-10,-20]", f"--grh-height={height}"])
+    err = capsys.readouterr().err.strip()
+    assert rc == 2 and time.perf_counter() - t0 < 5
+    assert len(err.splitlines()) == 1 and err.startswith("certify: error: --grh-height")
+    if height in ("1e400", "1e309", "201"):
+        assert height in err and f"{MAX_HEIGHT:g}" in err and "exceeds the limit" in err
+    assert "overflow" not in err.lower() or "height" in err
+
+
+def test_ecrace_and_lirace_refusals_give_the_estimate_and_the_limit(capsys):
+    for argv, key in ((["ecrace", "[0,0,0,-101,307]"], "ec-conductor"),
+                      (["ecrace", "[0,-1,1,-10,-20]", "--observe", "100000000"], "primes"),
+                      (["ecrace", "[0,-1,1,-10,-20]", "--limit", "zeros=5"], "zeros"),
+                      (["lirace", "--limit", "zeros=10"], "zeros")):
+        assert main(argv) == 2
+        err = capsys.readouterr().err.strip()
+        assert len(err.splitlines()) == 1, err
+        assert f"estimated {key} " in err and "exceeds the limit" in err and f"--limit {key}=N" in err
+
+
+def test_the_zero_estimates_follow_the_runs():
+    """The planned zeros (before any work) against what a run isolated (from the result)."""
+    from certify.batch.limits import ec_race_estimate, li_race_estimate
+    from certify.ecrace import certify_ec_race
+    from certify.lirace import certify_li_race
+
+    r = certify_ec_race("[0,-1,1,-10,-20]", 4)
+    est = ec_race_estimate(11, 4)["zeros"]
+    assert 0.5 * r.parameters["zeros_used"] <= est <= 2 * r.parameters["zeros_used"] + 5
+    li = certify_li_race("pi<li", digits=12)
+    est = li_race_estimate(12)["zeros"]
+    assert 0.5 * li.parameters["zeros_used"] <= est <= 2 * li.parameters["zeros_used"] + 5
 
 
 def test_cache_show_reads_a_read_only_cache(files, capsys):

@@ -21,9 +21,9 @@ WRITES_FILES = {"certificate", "render", "check", "claims", "demo", "table", "tw
 HAS_TARGET = {"race", "residues", "weighted", "certificate", "check", "claims", "table", "ffrace",
               "curve", "twists", "ecrace", "lirace", "order"}
 LONG_RUNNING = {"verify", "claims", "table", "twists", "race", "residues", "weighted", "certificate",
-                "check"}
+                "check", "ffrace", "curve", "ecrace", "lirace", "order"}
 SIZE_LIMITED = {"race", "residues", "weighted", "certificate", "verify", "check", "claims", "table",
-                "ffrace", "fflpoly", "curve", "twists", "order"}
+                "ffrace", "fflpoly", "curve", "twists", "order", "ecrace", "lirace"}
 
 # the one name for each thing, and the names that must not appear for it
 CANONICAL = {
@@ -145,6 +145,35 @@ def test_working_display_is_off_when_not_a_terminal(capsys):
     with working("certifying something", True):
         pass
     assert capsys.readouterr().err == ""
+
+
+# one cheap run of each command whose stages can take long: (argv, what its display shows)
+_STAGED = [
+    (["ffrace", "3", "t^2+1", "t+1", "1", "--digits", "4", "--leaders", "5"], "ffrace: "),
+    (["curve", "5", "t^2+1", "t^3+2", "--digits", "3"], "curve: "),
+    (["ecrace", "[0,-1,1,-10,-20]", "--digits", "2", "--observe", "100"], "ecrace: "),
+    (["lirace", "--digits", "3"], "lirace: "),
+    (["order", "5", "1", "2", "3", "--digits", "2"], "order: "),
+]
+
+
+@pytest.mark.parametrize("argv,shown", _STAGED, ids=[a[0] for a, _ in _STAGED])
+def test_progress_is_off_off_a_terminal_and_on_on_one(argv, shown, capsys, make_terminal):
+    """Each stage's display: nothing on a pipe or a log, shown on a terminal, hidden there by
+    --no-progress; the result on standard output is the same."""
+    from certify.cli import main
+
+    assert main(argv) in (0, 5)
+    out, err = capsys.readouterr()
+    assert shown not in err and "\r" not in err, err[:300]
+    term = make_terminal()
+    assert main(argv) in (0, 5)
+    assert shown in term.getvalue(), term.getvalue()[:300]
+    out2 = capsys.readouterr().out
+    assert out2.splitlines()[:2] == out.splitlines()[:2]
+    term2 = make_terminal()
+    assert main(argv + ["--no-progress"]) in (0, 5)
+    assert shown not in term2.getvalue()
 
 
 def test_help_lists_the_same_names(capsys):
