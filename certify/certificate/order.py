@@ -160,8 +160,13 @@ def _check_limits(cert: Certificate) -> None:
     from ..race.order import MAX_CLASSES
     from .verify import check_limits
 
+    from ..orders import MAX_DIGITS
+
     if not 3 <= len(cert.question["classes"]) <= MAX_CLASSES:
         raise BadInput(f"an ordering certificate has 3..{MAX_CLASSES} classes")
+    d = cert.parameters.get("digits_requested")
+    if type(d) is not int or not 1 <= d <= MAX_DIGITS:
+        raise BadInput(f"digits_requested {str(d)[:20]} outside 1..{MAX_DIGITS}")
     check_limits(cert)
 
 
@@ -173,10 +178,40 @@ def verify_order(cert: Certificate, report) -> None:
     prec = int(params["working_precision_bits"])
     digits = int(params["digits_requested"])
     tau = 10.0 ** (-digits)
+    from .model import thaw
+
     question = ordering(cert.question["modulus"], *cert.question["classes"])
     report.add("question: ordering rebuilt from modulus and classes",
                question.label == cert.question["label"],
                f"stored {cert.question['label']}, rebuilt {question.label}")
+    expected_q = question_record(question)
+    diff = sorted(k for k in set(expected_q) | set(cert.question)
+                  if thaw(cert.question.get(k)) != expected_q.get(k))
+    report.add("question: kind, modulus, classes, label, statement, normalisation and definition "
+               "rebuilt from modulus and classes", not diff,
+               f"stored field(s) {', '.join(diff)} differ from the rebuilt question")
+    report.add("answer: no exact value (an ordering's density is not known exactly)",
+               "exact" not in cert.answer, "an exact value is claimed")
+    report.add("provenance: input digest of the question and target",
+               cert.provenance.get("input_digest") == input_digest(question, digits),
+               "the stored digest is not that of the stored question and target")
+    cl = cert.provenance.get("command_line")
+    base = f"certify order {question.modulus} {' '.join(map(str, question.classes))} --digits {digits}"
+    report.add("provenance: the command line that recomputes it",
+               cl in (base, base + " --all", reproduce_command(question, digits)),
+               f"stored {str(cl)[:80]!r}")
+    report.add("parameters: target of the density engine", params.get("density_target_width")
+               == repr(tau), f"stored {params.get('density_target_width')!r}, digits {digits}")
+    expected_a = answer_fields(cert.lower, cert.upper, digits)
+    diff = sorted(k for k in expected_a if thaw(cert.answer.get(k)) != expected_a[k])
+    report.add("answer: width, certified digits, gaps to 1/2 and 1, target and target_met "
+               "recomputed from the stored enclosure", not diff,
+               f"stored field(s) {', '.join(diff)} differ from what the enclosure gives")
+    if report.failures:  # the question, the target or the answer's own fields are not the
+        # ones the stored data give: nothing below (zeros, engine at the stored target) is run
+        report.add("spectrum and density: not re-checked", False,
+                   "the question, target or answer fields did not verify")
+        return
     mu = mean_vector(question)
     report.add("answer: mean vector mu_i = c(q,a_{i+1}) - c(q,a_i)",
                _mean_text(mu) == cert.answer["mean"],
@@ -191,6 +226,13 @@ def verify_order(cert: Certificate, report) -> None:
     vgroups, group_data, all_ok = [], [], True
     for g, sg in zip(groups, stored):
         keys = [tuple(k) for k in g.primitive_keys]
+        report.add(f"{g.label}: group label, real flag and parities", sg["label"] == g.label
+                   and sg["real"] == g.is_real and [lf["parity"] for lf in sg["l_functions"]]
+                   == [primitive_character(c, n).parity for c, n in keys],
+                   "stored group label, 'real' flag or parity differ")
+        with workprec(prec):
+            report.add(f"{g.label}: scale 2 sum_i |v_chi,i|", _overlap(ball_of(sg["scale"]), 2 * g.reach),
+                       "stored scale disagrees with the classes")
         T = float(sg["isolation_height"])
         zs = _check_zero_list(report, g.label, list(sg["zeros"]), keys, Fraction(T))
         if zs is None:
@@ -219,6 +261,10 @@ def verify_order(cert: Certificate, report) -> None:
             try:
                 residual_checks(g.label, R, T, keys[0][0], len(keys))
                 report.add(f"{g.label}: residual sums R_1..R_{K} and their checks", True)
+                stored_r = [ball_of(b) for b in mom.get("residual_sums", [])]
+                report.add(f"{g.label}: stored residual sums agree with the recomputed ones",
+                           len(stored_r) == K and all(_overlap(a, b) for a, b in zip(stored_r, R)),
+                           "a stored residual sum is disjoint from the recomputed one")
             except Inconsistent as exc:
                 report.add(f"{g.label}: residual sums and their checks", False, str(exc))
                 all_ok = False
@@ -246,14 +292,45 @@ def verify_order(cert: Certificate, report) -> None:
                f"stored [{cert.answer['enclosure']['lower']}, {cert.answer['enclosure']['upper']}], "
                f"recomputed [{float(lo):.17g}, {float(hi):.17g}]")
     stored_budget = {e["name"]: e for e in cert.error_budget}
-    report.add("error budget: the same terms", sorted(e.name for e in dens.budget) == sorted(stored_budget),
-               f"stored {sorted(stored_budget)}")
+    names = [e["name"] for e in cert.error_budget]
+    report.add("error budget: the same terms, once each, in the same order",
+               names == [e.name for e in dens.budget], f"stored {names}")
     for e in dens.budget:
         st = stored_budget.get(e.name)
-        ok = st is not None and _q(Fraction(st["bound"])) >= arb(e.bound.upper())
-        report.add(f"error bound '{e.name}'", ok,
+        ok = st is not None and _q(Fraction(st["bound"])) >= arb(e.bound.upper()) \
+            and st["description"] == e.description
+        report.add(f"error bound '{e.name}' and its description", ok,
                    f"stored {st['bound'] if st else 'missing'}, recomputed {e.bound_float:.3e}")
     a = cert.answer
+    from .evidence import exact_ends
+
+    extra = sorted(set(a) - set(expected_a) - {"enclosure", "engine_ball", "mean", "variance",
+                                               "covariance"})
+    report.add("answer: no unexpected field", not extra, f"unexpected field(s) {extra}")
+    eb = ball_of(a["engine_ball"], "engine ball")
+    el, eh = exact_ends(eb)
+    report.add("answer: engine ball inside the stored enclosure and meets the recomputed one",
+               s_lo <= el and eh <= s_hi and _overlap(eb, dens.ball),
+               "the stored engine ball is outside the enclosure or disjoint from the recomputed one")
+    report.add("answer: variance is the first diagonal entry of the covariance",
+               thaw(a["variance"]) == thaw(stored_cov[0][0]) if stored_cov else False,
+               "the stored variance is not the covariance's first entry")
+    expected_p = {k: v for k, v in dens.parameters.items() if k in params}
+    report.add("parameters: exactly the fields an ordering's certificate records",
+               set(params) == set(ORDER_PARAMETERS),
+               f"unexpected {sorted(set(params) - set(ORDER_PARAMETERS))[:4]}, "
+               f"missing {sorted(set(ORDER_PARAMETERS) - set(params))[:4]}")
+    expected_p.update({"digits_requested": digits, "density_target_width": repr(tau),
+                       "target_width": f"1e-{digits}",
+                       "zeros_used": sum(len(zs) for _, _, zs, _ in group_data),
+                       "primitive_l_functions": sorted(f"{lf['conductor']}.{lf['label']}"
+                                                       for _, sg, _, _ in group_data
+                                                       for lf in sg["l_functions"])})
+    pdiff = sorted(k for k in expected_p if thaw(params.get(k)) != _plain(expected_p[k]))
+    report.add("parameters: the engine's parameters re-derived by the re-run, target, zeros and "
+               "L-functions", not pdiff,
+               "; ".join(f"{k}: stored {thaw(params.get(k))!r}, re-derived {_plain(expected_p[k])!r}"
+                         for k in pdiff[:4]))
     report.add("answer: certified digits follow from the stored enclosure",
                a["certified_digits"] == certified_digits(s_lo, s_hi),
                f"stored {a['certified_digits']!r}, implied {certified_digits(s_lo, s_hi)!r}")
@@ -264,6 +341,21 @@ def verify_order(cert: Certificate, report) -> None:
     report.add("consistency checks recorded with the certificate all passed",
                all(c.get("ok") for c in cons), "a recorded consistency check failed")
     _verify_hypotheses(cert, report, group_data, prec)
+
+
+#: the parameters of an ordering's certificate (the engine's, the plan's, the target, checks)
+ORDER_PARAMETERS = ("dimension", "half_periods", "box_radius_Xi", "box_half_widths_K",
+                    "frequency_vectors", "frequency_vectors_in_box", "direction_patches",
+                    "tail_exponent_J", "groups", "direct_weights", "moments_available",
+                    "working_precision_bits", "variances", "covariance", "fallback_frequencies",
+                    "bessel_evaluations", "xi_max", "target_width", "isolation_height_factor",
+                    "zero_enclosure_width", "moments", "primitive_l_functions", "zeros_used",
+                    "computed_with", "digits_requested", "density_target_width", "consistency")
+
+
+def _plain(v):
+    """A value as it reads back from JSON (tuples as lists)."""
+    return json.loads(json.dumps(v, default=str))
 
 
 def verify_family(data: dict, source: str) -> list:

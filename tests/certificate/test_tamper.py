@@ -29,7 +29,9 @@ def clean(tmp_path_factory):
     # five non-torsion angles, LI assumed (the curve of tests/curves/test_race.py)
     assert main(["curve", "5", "2 + 2*t + 2*t^2 + 4*t^5", "4 + 4*t + t^7 + t^8", "--digits", "6",
                  "--json", str(d / "c.json")]) == 0
-    for k, name in (("dirichlet-race", "q"), ("ffield-race", "f"), ("curve-race", "c")):
+    assert main(["order", "5", "1", "2", "3", "--digits", "2", "--json", str(d / "o.json")]) == 0
+    for k, name in (("dirichlet-race", "q"), ("ffield-race", "f"), ("curve-race", "c"),
+                    ("order-race", "o")):
         out[k] = json.loads((d / f"{name}.json").read_text())
         assert out[k]["kind"] == k
     return out
@@ -43,7 +45,7 @@ def _run(tmp_path, text: str) -> tuple[int, float]:
     return code, time.time() - t0
 
 
-@pytest.mark.parametrize("kind", ["dirichlet-race", "ffield-race", "curve-race"])
+@pytest.mark.parametrize("kind", ["dirichlet-race", "ffield-race", "curve-race", "order-race"])
 def test_clean_certificates_verify(clean, tmp_path, kind):
     code, secs = _run(tmp_path, json.dumps(clean[kind]))
     assert code == 0 and secs < LIMIT_SECONDS
@@ -429,9 +431,37 @@ for _k, _m in (("ffield-race", FFIELD), ("curve-race", CURVE)):
     for _name, _f in _generic(_k).items():
         _m.setdefault(_name, _f)
 
+# orderings of three classes (delta(5;1,2,3)): the same document shape as a race over Q, with a
+# direction vector per group, a mean vector and a covariance matrix
+_NOT_FOR_ORDERINGS = {"question statement reversed", "weights changed", "terms changed",
+                      "published verification text"}
+ORDER = {k: v for k, v in DIRICHLET.items() if k not in _NOT_FOR_ORDERINGS}
+ORDER.update({
+    "question statement changed": lambda d: d["question"].update(
+        statement=d["question"]["statement"].replace(">", "<", 1)),
+    "classes reordered": lambda d: d["question"].update(classes=[2, 1, 3]),
+    "class replaced": lambda d: d["question"].update(classes=[1, 2, 4]),
+    "direction vector changed": lambda d: _grp(d)["vector"][0]["re"].update(mid="1.5"),
+    "mean vector changed": lambda d: d["answer"].update(mean="0,0"),
+    "covariance changed": lambda d: d["answer"]["covariance"][0][1].update(mid="0.5"),
+    "variance not the covariance's entry": lambda d: d["answer"]["variance"].update(
+        mid=d["answer"]["covariance"][1][1]["mid"], rad=d["answer"]["covariance"][1][1]["rad"]),
+    "failed consistency check recorded": lambda d: d["parameters"].update(
+        consistency=[{"name": "sum", "ok": False, "lower": "0.9", "upper": "1.1", "reference": "1"}]),
+    "half periods changed": lambda d: d["parameters"].update(half_periods=["1", "1"]),
+    "frequency vectors changed": lambda d: d["parameters"].update(
+        frequency_vectors=d["parameters"]["frequency_vectors"] + 1),
+    "engine parameter removed": lambda d: d["parameters"].pop("bessel_evaluations"),
+    "command line changed": lambda d: d["provenance"].update(command_line="certify order 5 1 2 3 --prove"),
+    "crafted: 20 digits requested": lambda d: d["parameters"].update(digits_requested=20),
+    "crafted: 0 digits requested": lambda d: d["parameters"].update(digits_requested=0),
+    "group parity flipped": lambda d: _grp(d)["l_functions"][1].update(parity=0),
+})
+
 CASES = ([("dirichlet-race", k) for k in DIRICHLET] + [("ffield-race", k) for k in FFIELD]
-         + [("curve-race", k) for k in CURVE])
-MUTATORS = {"dirichlet-race": DIRICHLET, "ffield-race": FFIELD, "curve-race": CURVE}
+         + [("curve-race", k) for k in CURVE] + [("order-race", k) for k in ORDER])
+MUTATORS = {"dirichlet-race": DIRICHLET, "ffield-race": FFIELD, "curve-race": CURVE,
+            "order-race": ORDER}
 
 
 def test_the_suite_is_large_enough():
