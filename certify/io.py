@@ -25,3 +25,17 @@ def write_atomic(path: str, text: str) -> None:
         if os.path.exists(tmp):
             os.unlink(tmp)
         raise
+
+
+def read_text_lines(path: str, display: str | None = None) -> list[str]:
+    """The lines of a UTF-8 text file; BadInput (one line, naming ``display``) if unreadable."""
+    from .errors import BadInput
+
+    name = display or path
+    try:
+        with open(path, encoding="utf-8") as fh:
+            return fh.read().splitlines()
+    except OSError as exc:
+        raise BadInput(f"{name}: cannot read ({exc.strerror or exc})") from None
+    except UnicodeDecodeError:
+        raise BadInput(f"{name}: not a UTF-8 text file") from None

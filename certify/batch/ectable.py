@@ -50,17 +50,16 @@ def read_curves(path: str, display: str | None = None) -> list[CurveLine]:
     """The curves of a file; BadInput listing every bad line (one line each) if any."""
     from ..source.ellcurve import curve_from_ainvs
 
+    from ..io import read_text_lines
+
     name = display or path
     try:
         size = os.path.getsize(path)
-        if size > MAX_CURVES_FILE:
-            raise BadInput(f"{name}: {size} bytes; a curves file is at most 10 MB")
-        with open(path, encoding="utf-8") as fh:
-            lines = fh.read().splitlines()
     except OSError as exc:
         raise BadInput(f"{name}: cannot read ({exc.strerror or exc})") from None
-    except UnicodeDecodeError:
-        raise BadInput(f"{name}: not a UTF-8 text file") from None
+    if size > MAX_CURVES_FILE:
+        raise BadInput(f"{name}: {size} bytes; a curves file is at most 10 MB")
+    lines = read_text_lines(path, name)
     out, errors = [], []
     for no, line in enumerate(lines, start=1):
         body, _, note = line.partition("#")

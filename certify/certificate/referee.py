@@ -236,13 +236,9 @@ def read_claims(path: str, display: str | None = None) -> tuple[list[Claim], lis
 
     ``display`` is the file name used in messages and sources (default ``path``).
     """
-    try:
-        with open(path, encoding="utf-8") as fh:
-            lines = fh.read().splitlines()
-    except OSError as exc:
-        raise BadInput(f"{path}: cannot read ({exc.strerror or exc})") from None
-    except UnicodeDecodeError:
-        raise BadInput(f"{path}: not a UTF-8 text file") from None
+    from ..io import read_text_lines
+
+    lines = read_text_lines(path, path)
     name = display or path
     claims, errors = [], []
     for no, line in enumerate(lines, start=1):

@@ -115,13 +115,15 @@ def run_curve_table(args) -> int:
     curves = read_curves(args.curves)
     limits = Limits.of(args)
     limits.require("races", len(curves), f"table of {len(curves)} curves")
-    for c in curves:
-        from ..source.ellcurve import curve_from_ainvs
+    from ..source.ellcurve import curve_from_ainvs
+    from .ecrace import check_ec_size
 
-        N = curve_from_ainvs(c.ainvs).conductor
-        if N > LIMITS["conductor"]:
-            raise BadInput(f"{c.source}: conductor {N} is above {LIMITS['conductor']}, the largest "
-                           "a curve's certificate is made for")
+    for c in curves:
+        E = curve_from_ainvs(c.ainvs)
+        if E.conductor > LIMITS["conductor"]:
+            raise BadInput(f"{c.source}: conductor {E.conductor} is above {LIMITS['conductor']}, "
+                           "the largest a curve's certificate is made for")
+        check_ec_size(E, digits, 0, limits)
     cmd = " ".join(shlex.quote(x) for x in ["certify", "table", "--curves", args.curves,
                                             "--digits", str(digits), "--out", args.out])
     summary = run(curves, digits, args.out, workers=workers, command_line=cmd,

@@ -215,8 +215,12 @@ def run_check(args) -> int:
         v = referee(claim, start, top, with_certificate=bool(args.out))
     if args.json != "-":
         print(v.summary())
+        extra = ""
+        rank = getattr(v.result, "rank", None)  # a curve over Q: its analytic rank
+        if rank is not None and not rank.certified:
+            extra = f", and on {rank.statement()}"
         print(f"  digits tried: {', '.join(map(str, v.digits_tried))}; conditional on GRH and LI "
-              "(assumed, not proven)")
+              f"(assumed, not proven){extra}")
     written = {}
     if args.out and v.certificate is not None:
         written = write_files(v.certificate, args.out, ("json", "md"), args.name)

@@ -25,7 +25,8 @@ def screen(result, obs=None) -> str:
         f"E = {list(E.minimal)}  (given {list(E.ainvs)})   conductor {E.conductor}   "
         f"j = {E.j}" + (f"   CM by discriminant {E.cm_discriminant}" if E.has_cm else ""),
         "  local data: " + ", ".join(f"p={ld.p} {ld.kodaira} f={ld.conductor_exponent} "
-                                     f"{ld.reduction} w={'?' if ld.root_number is None else f'{ld.root_number:+d}'}"
+                                     f"{ld.reduction} w={'open' if ld.root_number is None else f'{ld.root_number:+d}'}"
+                                     f"{' (derived)' if ld.root_number_source.startswith('derived') else ''}"
                                      for ld in E.local),
         f"  root number {result.rank.root_number:+d}; {result.rank.statement()}",
         "  " + headline_text("P[ sum_(p<=x) a_p/sqrt(p) > 0 ]", d),

@@ -350,10 +350,14 @@ def check_race_size(question, limits: "Limits", what: str) -> None:
         from ..certificate.ecq import LIMITS as ECQ_LIMITS
         from ..source.ellcurve import curve_from_ainvs
 
-        N = curve_from_ainvs(question.ainvs).conductor
-        if N > ECQ_LIMITS["conductor"]:
-            raise BadInput(f"{what} {question.label}: conductor {N} is above {ECQ_LIMITS['conductor']}, "
-                           "the largest a curve claim or table row is certified for")
+        from ..ecrace import MAX_CLAIM_DIGITS
+        from .ecrace import check_ec_size
+
+        E = curve_from_ainvs(question.ainvs)
+        if E.conductor > ECQ_LIMITS["conductor"]:
+            raise BadInput(f"{what} {question.label}: conductor {E.conductor} is above "
+                           f"{ECQ_LIMITS['conductor']}, the largest a curve claim is certified for")
+        check_ec_size(E, MAX_CLAIM_DIGITS, 0, limits)
         return
     limits.require("conductor", question.modulus, f"{what} {question.label}")
     limits.require("l-functions", race_l_functions(question.modulus, question.kind),

@@ -14,7 +14,12 @@ TEXT_FORMATS = ("json", "md", "tex", "fragment")
 
 
 def base_name(label: str) -> str:
-    """A file name from a race label: delta(4;3,1) -> delta_4_3_1, delta(pi<li) -> delta_pi_lt_li."""
+    """A file name from a race label: delta(4;3,1) -> delta_4_3_1, delta(pi<li) -> delta_pi_lt_li.
+
+    A minus sign that starts a list entry (a-invariants of a curve) is kept as ``m``:
+    delta(E[0,-1,1,-10,-20]>0) -> delta_E_0_m1_1_m10_m20_gt_0.
+    """
+    label = re.sub(r"(?<=[\[,])\s*-", "m", label)
     label = label.replace("<", "_lt_").replace(">", "_gt_")
     s = re.sub(r"[^A-Za-z0-9]+", "_", label).strip("_")
     return s[:80] or "certificate"

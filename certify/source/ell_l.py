@@ -95,6 +95,64 @@ def _upper_gamma_series(s: acb_series, z: arb, gamma_s: acb_series | None = None
     return (s.gamma() if gamma_s is None else gamma_s) - lower
 
 
+def _upper_gamma_series_asym(s: acb_series, c: acb, x: arb, length: int, bits: float,
+                             radius: float = 0.5):
+    """Gamma(s, x) for s = c + h (a series in h, |h| <= radius) by the expansion at x = oo.
+
+    Integrating by parts K times gives, exactly for every complex s and x > 0,
+
+        Gamma(s, x) = x^(s-1) e^(-x) sum_{k<K} (s-1)(s-2)...(s-k) x^(-k)
+                      + (s-1)...(s-K) Gamma(s-K, x),
+
+    and for Re s - K - 1 <= 0, |Gamma(s-K, x)| <= x^(Re s-K-1) e^(-x) (the integrand
+    u^(Re s-K-1) e^(-u) has u^(...) <= x^(...) on [x, oo)).  On the disc |h| <= radius the
+    remainder is at most P_K x^(sigma_max-K-1) e^(-x), P_K = prod_j (|c - j| + radius),
+    and Cauchy's inequality bounds the k-th Taylor coefficient of the remainder by that
+    bound over radius^k.  Returns None when no K brings the remainder below 2^-bits (small
+    x); the caller then uses the hypergeometric series.  No cancellation: for large x this
+    needs far fewer terms than 1F1(1; s+1; x).
+    """
+    xf = float(x.mid())
+    if xf < 8:
+        return None
+    cr, ci = float(c.real.mid()), float(c.imag.mid())
+    sig_max = cr + radius
+    lx = math.log2(xf)
+    base = (sig_max - 1) * lx - xf * LOG2E + length * math.log2(1 / radius) + 4
+    logP, best = 0.0, None
+    for K in range(1, int(4 * xf) + 60):
+        logP += math.log2(math.hypot(cr - K, ci) + radius)
+        if sig_max - K - 1 > 0:
+            continue
+        bound = logP + base - K * lx
+        if bound <= -bits:
+            best = K
+            break
+        if math.hypot(cr - K, ci) + radius > xf:  # the terms grow from here on
+            return None
+    if best is None:
+        return None
+    K = best
+    term = acb_series([acb(1)])
+    total = acb_series([acb(1)])
+    for k in range(1, K):
+        term = term * (s - k) / x
+        total += term
+    pref = ((s - 1) * acb(x.log()) - acb(x)).exp()
+    # the remainder bound, rigorously (upper bounds in arb)
+    P = arb(1)
+    for j in range(1, K + 1):
+        P *= abs(c - j) + arb(radius)
+    R = P * (arb(sig_max - K - 1) * x.log()).exp() * (-x).exp()
+    out = (pref * total).coeffs()
+    res = []
+    for k in range(length):
+        ck = out[k] if k < len(out) else acb(0)
+        e = arb((R / arb(radius) ** k).upper())
+        res.append(ck + acb(arb(0, e), arb(0, e)))
+    return acb_series(res)
+
+
 class EllipticL(AnalyticL):
     """L(E, s) with its root number; an AnalyticL for the spectrum layer.
 
@@ -119,6 +177,8 @@ class EllipticL(AnalyticL):
         self.central_order = central_order
         self.A_float = math.sqrt(E.conductor) / (2 * math.pi)
         self._an: list[int] = [0, 1]
+        self._z_memo: dict = {}
+        self.z_computed = 0  # Hardy Z values computed (memo hits excluded)
         self._traces = None
         self.eps = eps if eps is not None else E.root_number_local
         self.eps_source = "local root numbers" if eps is None and self.eps is not None else "given"
@@ -199,7 +259,27 @@ class EllipticL(AnalyticL):
         return good[0]
 
     def hardy_z(self, t: arb, prec: int) -> arb:
-        """Z(t) real with |Z(t)| = |L(E, 1 + i t)| (analytic: s = 1/2 + i t)."""
+        """Z(t) real with |Z(t)| = |L(E, 1 + i t)| (analytic: s = 1/2 + i t).
+
+        Values at exact points are remembered per (t, prec): the zero search asks
+        again for the ends of each bracket it found (same point, same precision).
+        """
+        key = None
+        if t.rad() == 0:
+            m, e = t.mid().man_exp()
+            key = (int(m), int(e), int(prec))
+            hit = self._z_memo.get(key)
+            if hit is not None:
+                return hit
+        v = self._hardy_z(t, prec)
+        self.z_computed += 1
+        if key is not None:
+            if len(self._z_memo) > 20000:
+                self._z_memo.clear()
+            self._z_memo[key] = v
+        return v
+
+    def _hardy_z(self, t: arb, prec: int) -> arb:
         with workprec(prec + 20):
             tt = arb(t)
             s = acb(1, tt)
@@ -254,8 +334,14 @@ class EllipticL(AnalyticL):
                 # accuracy only, so the cancellation costs no extra bits
                 with workprec(wp):
                     lx = acb(x.log())
-                    t1 = (-s * lx).exp() * _upper_gamma_series(s, x, g1)
-                    t2 = ((s - 2) * lx).exp() * _upper_gamma_series(s2, x, g2)
+                    u1 = _upper_gamma_series_asym(s, c, x, length, wp)
+                    u2 = _upper_gamma_series_asym(s2, 2 - c, x, length, wp)
+                    if u1 is None:
+                        u1 = _upper_gamma_series(s, x, g1)
+                    if u2 is None:
+                        u2 = _upper_gamma_series(s2, x, g2)
+                    t1 = (-s * lx).exp() * u1
+                    t2 = ((s - 2) * lx).exp() * u2
                     total += (t1 + self.eps * t2) * a[n]
             tb = arb(tail_bound(N, M, sig_hi, 1.0, sig_lo)).upper()
             coeffs = total.coeffs()

@@ -418,6 +418,7 @@ class EllipticCurveQ:
             "j_invariant": str(self.j), "conductor": self.conductor,
             "cm_discriminant": self.cm_discriminant,
             "root_number_from_local_data": self.root_number_local,
+            "notes": list(self.notes),
             "local_data": [
                 {"p": ld.p, "kodaira": ld.kodaira, "conductor_exponent": ld.conductor_exponent,
                  "disc_valuation": ld.disc_valuation, "tamagawa": ld.tamagawa,
