@@ -3,8 +3,9 @@ function, races against q, and the distinct laws of a table.
 
 Usage:  python bench/bench_large.py [--quick] [--races 101,211,401,809,997]
 
-Figures printed: seconds (wall clock; say whether the machine was loaded),
-characters, zeros used, Z evaluations, enclosure width.
+Figures printed: seconds (wall clock and CPU, with the load average: the machine
+is shared), characters, zeros used, Z evaluations, enclosure width.  Races run
+each in a fresh interpreter (cold).  ``--races-only`` prints just the race table.
 """
 
 from __future__ import annotations
@@ -67,18 +68,66 @@ def bench_hardy(moduli, prec=96):
         print(f"q {q:>5}  smoothed {ta * 1e3:8.1f} ms  Arb {tz * 1e3:8.1f} ms", flush=True)
 
 
+def _nonresidue(q):
+    """The least class that is not a square mod q (coprime to q), or None."""
+    squares = {x * x % q for x in range(q) if math.gcd(x, q) == 1}
+    return next((a for a in range(2, q) if math.gcd(a, q) == 1 and a not in squares), None)
+
+
+def _one_race(q, a, b, digits):
+    """Child process: certify one race cold and print its figures as JSON (one line)."""
+    import json
+
+    c0, t0 = time.process_time(), time.time()
+    r = certify_race(two_way(q, a, b), digits, store=SpectrumStore())
+    p = r.parameters
+    print(json.dumps({
+        "inner_wall": time.time() - t0, "inner_cpu": time.process_time() - c0,
+        "width": float(r.density.width), "met": bool(r.target_met),
+        "lower": r.density.lower_str(10), "upper": r.density.upper_str(10),
+        "l_functions": len(p["primitive_l_functions"]), "zeros": p["zeros_used"],
+        "z_evals": p["hardy_z_evaluations"], "terms": p["terms"],
+        "truncation": p.get("truncation", ""), "exact": r.exact is not None}))
+
+
 def bench_races(moduli, digits=8):
-    print(f"# two-way races delta(q;2,1), width <= 1e-{digits}, cold store")
+    """Each race in a fresh interpreter (cold: imports, moments, zeros, no cache), timed from
+    outside: wall clock, and CPU (user + sys) of the child from getrusage."""
+    import json
+    import resource
+    import subprocess
+    import sys
+
+    print(f"# two-way races, width <= 1e-{digits}, each cold in a fresh process (imports included); "
+          "CPU = user + sys of the child")
+    print(f"# {'q':>5} {'race':>12} {'wall s':>7} {'CPU s':>6} {'load':>5} {'L-fns':>5} "
+          f"{'zeros':>5} {'Z-ev':>5} {'terms':>5}  enclosure")
+    rows = []
     for q in moduli:
-        t0 = time.time()
-        r = certify_race(two_way(q, 2, 1), digits, store=SpectrumStore())
-        dt = time.time() - t0
-        p = r.parameters
-        print(f"q {q:>5}  {dt:8.1f} s  width {float(r.density.width):.2e}  met {r.target_met}  "
-              f"L-functions {len(p['primitive_l_functions']):>4}  zeros {p['zeros_used']:>4}  "
-              f"Z-evals {p['hardy_z_evaluations']:>5}  spectra {r.timings['spectra']:.1f} s  "
-              f"density {r.timings['density']:.1f} s  delta in [{r.density.lower_str(9)}, "
-              f"{r.density.upper_str(9)}]", flush=True)
+        races = [(2, 1)]
+        n = _nonresidue(q)
+        if n is not None and n != 2:
+            races.append((n, 1))  # (q;2,1) is exactly 1/2 when 2 is a square mod q
+        for a, b in races:
+            before = resource.getrusage(resource.RUSAGE_CHILDREN)
+            load0 = os.getloadavg()[0]
+            t0 = time.time()
+            out = subprocess.run([sys.executable, __file__, "--one", f"{q},{a},{b},{digits}"],
+                                 capture_output=True, text=True, check=True)
+            wall = time.time() - t0
+            after = resource.getrusage(resource.RUSAGE_CHILDREN)
+            cpu = (after.ru_utime - before.ru_utime) + (after.ru_stime - before.ru_stime)
+            load = (load0 + os.getloadavg()[0]) / 2
+            d = json.loads(out.stdout.strip().splitlines()[-1])
+            rows.append((q, a, b, wall, cpu, load, d))
+            print(f"  {q:>5} {f'({q};{a},{b})':>12} {wall:7.1f} {cpu:6.1f} {load:5.1f} "
+                  f"{d['l_functions']:>5} {d['zeros']:>5} {d['z_evals']:>5} {d['terms']:>5}  "
+                  f"[{d['lower']}, {d['upper']}] width {d['width']:.2e} met {d['met']}"
+                  + ("  (exactly 1/2: mean 0)" if d["exact"] else ""), flush=True)
+    worst = max(rows, key=lambda r: r[4]) if rows else None
+    if worst:
+        print(f"# slowest by CPU: ({worst[0]};{worst[1]},{worst[2]}) {worst[4]:.1f} s CPU, "
+              f"{worst[3]:.1f} s wall at load {worst[5]:.1f} on {os.cpu_count()} cores")
 
 
 def bench_laws(qmax=100):
@@ -93,7 +142,18 @@ def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--quick", action="store_true")
     ap.add_argument("--races", default="101,211,401,809,997")
+    ap.add_argument("--races-only", action="store_true", help="only the race timings")
+    ap.add_argument("--one", help=argparse.SUPPRESS)
     args = ap.parse_args()
+    if args.one:
+        q, a, b, d = (int(x) for x in args.one.split(","))
+        _one_race(q, a, b, d)
+        return
+    if args.races_only:
+        print(f"# load average {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores")
+        bench_races([int(x) for x in args.races.split(",") if x])
+        print(f"# load average at the end {os.getloadavg()[0]:.1f}")
+        return
     print(f"# certify large-moduli benchmark; {platform.machine()}, python "
           f"{platform.python_version()}; load average {os.getloadavg()[0]:.1f} "
           f"on {os.cpu_count()} cores")

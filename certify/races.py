@@ -14,7 +14,7 @@ from .result import NotebookDisplay
 
 import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from fractions import Fraction
 from functools import lru_cache
 
@@ -195,7 +195,8 @@ def _model_ordinates(conductor: int, height: float) -> tuple[float, ...]:
 
 
 def plan_frequency_range(groups, V: float, mu: float, tau: float,
-                         height_factor: float | None = None) -> float:
+                         height_factor: float | None = None, sums=None,
+                         inverse_rho=None) -> float:
     """Frequency range where the truncation bound falls below tau/8, on model zeros.
 
     With ``height_factor`` h, a group of scale s is taken to isolate only its
@@ -203,6 +204,14 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
     residual weight asks at the frequency xi, docs/method.md section 5b), so
     groups of small weight isolate few or no zeros and rely on their moments;
     without it every zero counts (the old, optimistic plan).
+
+    With ``sums`` (per group, the floats T_1..T_K of its exact power sums) the
+    model is the bound of section 4c: the residual groups' Gaussian factors and
+    largest residual weights count too, so a race with many characters needs far
+    fewer zeros; without it, the isolated weights alone (section 4).  The zeros taken
+    as isolated then follow the height rule of :meth:`RacePlan.request`: those with
+    1/4 + gamma^2 below the square of the reach h s xi / j_{0,1}, and none when
+    ``inverse_rho`` (per group, min_k T_k^(1/(2k))) times the reach is at most 1.
 
     Planning only (floating point): the engine later evaluates the bound rigorously
     on the certified zeros.
@@ -213,25 +222,81 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
     L = 2 * (abs(mu) + t)
     eps = 2 * math.pi / L
     parts = []
-    for g in groups:
+    models: dict = {}  # conductors of a group -> (model ordinates, suffix power sums)
+    K = max((len(T) for T in sums), default=1) if sums is not None else 1
+    for gi, g in enumerate(groups):
         s = float(g.scale.mid())
-        for (qs, _) in g.primitive_keys:
-            gam = np.asarray(_model_ordinates(qs, 2000.0))
-            parts.append((s, gam, s / np.hypot(0.5, gam)))
+        key = tuple(qs for (qs, _) in g.primitive_keys)
+        if key not in models:
+            gams = [np.asarray(_model_ordinates(qs, 2000.0)) for qs in key]
+            gam = np.sort(np.concatenate(gams)) if gams else np.zeros(0)
+            suffix = None
+            if sums is not None:
+                a = 1 / (0.25 + gam ** 2)
+                pw = a[:, None] ** np.arange(1, K + 1)[None, :]
+                suffix = np.vstack([np.cumsum(pw[::-1], axis=0)[::-1], np.zeros((1, K))])
+            models[key] = (gam, suffix)
+        gam, suffix = models[key]
+        parts.append((s, gam, s / np.hypot(0.5, gam), suffix))
+    use_residual = sums is not None and height_factor is not None and len(sums) == len(parts)
     xi = eps
     while xi < 1e4:
         if height_factor is None:
-            weights = np.concatenate([w for _, _, w in parts]) if parts else np.zeros(0)
+            weights = np.concatenate([w for _, _, w, _ in parts]) if parts else np.zeros(0)
         else:
-            sel = [w[: int(np.searchsorted(gam, height_factor * s * xi / J01, side="right"))]
-                   for s, gam, w in parts]
+            cut = []
+            for i, (s, gam, _, _) in enumerate(parts):
+                reach = height_factor * s * xi / J01
+                if use_residual:
+                    inv = inverse_rho[i] if inverse_rho is not None else None
+                    if inv is not None and reach * inv <= 1:
+                        cut.append(0)
+                        continue
+                    reach = math.sqrt(max(0.0, reach * reach - 0.25))
+                cut.append(int(np.searchsorted(gam, reach, side="right")))
+            sel = [w[:c] for (_, _, w, _), c in zip(parts, cut)]
             weights = np.concatenate(sel) if sel else np.zeros(0)
-        f = 2 / (math.pi * weights * xi)
-        small = f[f < 1]
-        if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
-            return xi
+        if use_residual:
+            if _model_tail(parts, cut, sums, weights, eps, xi, tau / 16) < tau / 16:
+                return xi
+        else:
+            f = 2 / (math.pi * weights * xi)
+            small = f[f < 1]
+            if small.size and 2 / (math.pi * small.size) * math.exp(0.5 * np.log(small).sum()) < tau / 8:
+                return xi
         xi *= 1.15
     return xi
+
+
+def _model_tail(parts, cut, sums, iso, eps: float, xi: float, goal: float) -> float:
+    """Float model of the section-4c truncation bound from the frequency xi (planning only).
+
+    A group that isolates nothing keeps its exact sums T_k.  One that isolates its
+    first ``cut`` model zeros keeps T_1 less their contributions (the Gaussian term)
+    and takes R_k, k >= 2, from the model zeros above them: the exact T_k less model
+    zeros would mix two zero sets, and for large k (where the lowest zero dominates)
+    leave meaningless differences.
+    """
+    import numpy as np
+
+    from .density.bessel import tail_data_from_floats, tail_float
+
+    K = max((len(T) for T in sums), default=1)
+    R = np.full((len(sums), K), 1e-300)
+    for i, T in enumerate(sums):
+        R[i, :len(T)] = T
+    for i, c in enumerate(cut):
+        if c:
+            suffix = parts[i][3]
+            r1 = R[i, 0] - (suffix[0, 0] - suffix[c, 0])
+            R[i] = suffix[c]
+            if r1 > 0:
+                R[i, 0] = r1
+    R = np.maximum(R, 1e-300)
+    d = tail_data_from_floats(np.asarray(iso, dtype=float), np.array([p[0] for p in parts]), R)
+    N = max(1, int(xi / eps))
+    N = N if N % 2 == 1 else N + 1
+    return tail_float(d, eps, N, goal)
 
 
 def planned_zero_count(conductor: int, height: float) -> int:
@@ -251,6 +316,11 @@ def _hypotheses(question, group_reports) -> tuple:
     zeta = question.is_li_race
     ev_grh = []
     for g in group_reports:
+        if not g.zeros:
+            # moments only (docs/method.md, section 5b): no zero was located, none is claimed
+            ev_grh.append(f"{g.label}: no zero isolated (its exact power sums carry it); "
+                          "residual power sums non-negative")
+            continue
         ev_grh.append(
             f"{g.label}: {len(g.zeros)} zeros certified on the critical line by sign changes "
             f"of the Hardy Z-function up to height {decimal_down(Fraction(g.height), 4)}; "
@@ -307,6 +377,9 @@ class RacePlan:
     # exceeds the model's, and a second round costs more than the extra zeros
     height_factor: float = 3.4
     few_zeros: bool = True  # plan heights from each group's weight (no floor)
+    # per group (its first primitive key): min_k T_k^(1/(2k)) from the exact power sums, which
+    # bounds 1/|rho| over all its zeros; a group whose moments alone give y <= 1/h isolates none
+    inverse_rho: dict = field(default_factory=dict)
 
     def request(self, group) -> tuple[float, float, int, int]:
         """(height, zero width, moments, moment accuracy bits) for a spectral group."""
@@ -314,7 +387,14 @@ class RacePlan:
         # the Rayleigh condition asks |rho| > s xi / j01 of every residual zero at the
         # largest frequency; below that height the group's zeros are isolated, above it
         # its moments carry them (a group of small weight may isolate none)
-        height = self.height_factor * s * self.xi_max / J01
+        # |rho| = sqrt(1/4 + gamma^2) >= 1/2 for every zero, so the condition holds with the
+        # margin h once sqrt(1/4 + T^2) >= h s xi / j01: below that no zero needs isolating
+        reach = self.height_factor * s * self.xi_max / J01
+        height = math.sqrt(max(0.0, reach * reach - 0.25))
+        inv = self.inverse_rho.get(group.primitive_keys[0])
+        if inv is not None and self.few_zeros and reach * inv <= 1:
+            # the moments alone bound y by s xi inv / j01 <= 1/h (docs/method.md, section 5b)
+            height = 0.0
         if height < MIN_HEIGHT and not self.few_zeros:
             height = MIN_HEIGHT
         # end on a point of the conductor's common search grid, so that every point the
@@ -350,15 +430,25 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
         k_bits = max(prec, int(digits * 3.33 + 2 * moments + 40))
         store.prefetch([(c, n, moments, k_bits) for g in groups for (c, n) in g.primitive_keys])
         V = arb(0)
+        sums = []
+        inverse_rho = {}
         for g in groups:
             c, n = g.primitive_keys[0]
-            sp = store.get(c, n, g.parity, 0.0, 1e-3, 1, prec)
-            T1 = sp.power_sums[0] / (2 if g.is_real else 1)
+            sp = store.get(c, n, g.parity, 0.0, 1e-3, moments, k_bits)
+            div = 2 if g.is_real else 1
+            T1 = sp.power_sums[0] / div
             V += g.scale * g.scale * T1 / 2
+            sums.append([float(x.mid()) / div for x in sp.power_sums[:moments]])
+            pos = [(k, x) for k, x in enumerate(sums[-1], start=1) if x > 0]
+            if pos:
+                inverse_rho[g.primitive_keys[0]] = min(x ** (1 / (2 * k)) for k, x in pos)
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
-                                  height_factor=PLAN_HEIGHT_FACTOR)
+                                  height_factor=PLAN_HEIGHT_FACTOR, sums=sums,
+                                  inverse_rho=[inverse_rho.get(g.primitive_keys[0])
+                                               for g in groups])
     width = min(1e-6, tau / (50 * (1 + xi_max)))
-    return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width)
+    return RacePlan(digits, tau, prec, mu_q, V, xi_max, moments, width,
+                    inverse_rho=inverse_rho)
 
 
 def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,

@@ -23,7 +23,8 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 
 from ..arith import arb, workprec
-from ..density.bessel import BesselVariable, ResidualGroup, density_enclosure
+from ..density.bessel import (TRUNCATION_ISOLATED, BesselVariable, ResidualGroup,
+                              density_enclosure)
 from ..errors import BadInput, CertifyError, Inconsistent, PrecisionExhausted
 from ..race.question import (LI_KINDS, RaceQuestion, mean_of, prime_vs_li, residue_race,
                              riemann_hypothesis_name, spectral_groups, two_way, weighted)
@@ -303,7 +304,15 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
     with workprec(prec):
         variable = BesselVariable(arb(mu.numerator) / mu.denominator, tuple(weights),
                                   tuple(residuals))
-    dens = density_enclosure(variable, tau, prec=prec)
+    # the truncation bound the certificate used: section 4 alone for certificates written
+    # before section 4c existed (no "truncation" parameter), else the engine's own choice
+    stored_trunc = cert.parameters.get("truncation", TRUNCATION_ISOLATED)
+    dens = density_enclosure(variable, tau, prec=prec,
+                             truncation=TRUNCATION_ISOLATED if stored_trunc == TRUNCATION_ISOLATED
+                             else "auto")
+    report.add("density: the same truncation bound as the stored one",
+               dens.parameters.get("truncation") == stored_trunc,
+               f"stored {stored_trunc!r}, recomputed {dens.parameters.get('truncation')!r}")
     lo, hi = dens.enclosure.lower, dens.enclosure.upper
     s_lo, s_hi = cert.lower, cert.upper
     report.add("density: stored enclosure contains the recomputed one",

@@ -89,6 +89,219 @@ def truncation_bound(weights, xi: arb) -> tuple[arb, int]:
     return (2 / (arb.pi() * J)) * logp.exp(), J
 
 
+# ---------------------------------------------------------------------------
+# Truncation with the residual groups (docs/method.md, section 4c)
+# ---------------------------------------------------------------------------
+
+_BLOCK_RATIO = 1.25  # consecutive blocks of odd indices grow by this factor
+_MAX_BLOCKS = 400
+
+
+@dataclass
+class _TailData:
+    """What the truncation bound of section 4c reads: floats to choose, balls to prove.
+
+    ``iso`` are the isolated weights; per residual group: scale c, lower end of
+    R_1, upper ends of R_2..R_K, and m^2, a lower bound for the largest residual
+    (1/4 + gamma^2)^(-1) (so c m bounds the largest residual weight from below).
+    """
+
+    iso: list  # arb
+    groups: list  # (c, R1_lo, [R_k_up for k = 2..K], m2_lo or None), arb
+    iso_f: object = None  # numpy arrays of the same data (mid points), for choosing only
+    c_f: object = None
+    r1_f: object = None
+    logrk_f: object = None  # shape (groups, K - 1), log R_k (k = 2..K); -inf if absent
+    m_f: object = None  # c m (pseudo weight), 0 if absent
+
+
+def _tail_data(weights, residuals) -> _TailData:
+    import numpy as np
+
+    groups = []
+    for g in residuals:
+        sums = list(g.power_sums)
+        r1_lo = arb(sums[0].lower())
+        rk_up = [arb(r.upper()) for r in sums[1:]]
+        m2 = None
+        for k in range(1, len(sums)):
+            # max a >= R_k / R_{k-1} (a over the residual multiset): R_k <= (max a) R_{k-1}
+            lo, up = sums[k].lower(), sums[k - 1].upper()
+            if lo > 0 and up > 0:
+                cand = arb(lo) / arb(up)
+                cand = arb(cand.lower())
+                if m2 is None or cand > m2:
+                    m2 = cand
+        groups.append((g.scale, r1_lo, rk_up, m2))
+    K1 = max((len(rk) for _, _, rk, _ in groups), default=0)
+    logrk = np.full((len(groups), max(K1, 1)), -np.inf)
+    for i, (_, _, rk, _) in enumerate(groups):
+        for j, r in enumerate(rk):
+            v = float(r.mid())
+            if v > 0:
+                logrk[i, j] = math.log(v)
+    c_f = np.array([float(c.mid()) for c, _, _, _ in groups])
+    return _TailData(
+        list(weights), groups,
+        np.array([float(w.mid()) for w in weights]), c_f,
+        np.array([max(float(r1.mid()), 0.0) for _, r1, _, _ in groups]), logrk,
+        np.array([float(c.mid()) * math.sqrt(float(m2.mid())) if m2 is not None else 0.0
+                  for c, _, _, m2 in groups]))
+
+
+def tail_data_from_floats(iso, scales, R) -> _TailData:
+    """Float-only tail data (planning): ``iso`` weights, group ``scales`` and residual sums
+    ``R`` (array: one row R_1..R_K per group, all positive)."""
+    import numpy as np
+
+    R = np.asarray(R, dtype=float).reshape(len(scales), -1)
+    scales = np.asarray(scales, dtype=float)
+    logrk = np.log(R[:, 1:]) if R.shape[1] > 1 else np.full((len(scales), 1), -np.inf)
+    if R.shape[1] > 1:
+        m = scales * np.sqrt((R[:, 1:] / R[:, :-1]).max(axis=1))
+    else:
+        m = np.zeros(len(scales))
+    return _TailData([], [], np.asarray(iso, dtype=float), scales, np.maximum(R[:, 0], 0.0),
+                     logrk, m)
+
+
+def _odd_blocks(N: int):
+    """Blocks [n_a, n_b] of odd indices > N, each about _BLOCK_RATIO times the previous."""
+    n_a = N + 2
+    while True:
+        n_b = max(n_a, int(n_a * _BLOCK_RATIO))
+        if n_b % 2 == 0:
+            n_b -= 1
+        n_b = max(n_a, n_b)
+        yield n_a, n_b
+        n_a = n_b + 2
+
+
+def _far_tail_float(r, xi: float) -> float:
+    """Float twin of the section-4 bound (2/(pi J)) prod sqrt(2/(pi r xi)) over r xi >= 2/pi."""
+    import numpy as np
+
+    sel = r[r * xi >= 2 / math.pi]
+    if sel.size == 0:
+        return math.inf
+    return 2 / (math.pi * sel.size) * math.exp(0.5 * np.log(2 / (math.pi * sel * xi)).sum())
+
+
+def _group_logs_float(d: _TailData, xa: float, xb: float):
+    """Per group, the log of the section-4c bound on [xa, xb] (floats) and the chosen k index."""
+    import numpy as np
+
+    j01 = 2.4048255576
+    c = d.c_f
+    if c.size == 0:
+        return np.zeros(0), np.zeros(0, dtype=int)
+    A = (c * xa) ** 2 * d.r1_f
+    ks = np.arange(2, d.logrk_f.shape[1] + 2)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        sub = (2 - 2 * ks)[None, :] * math.log(j01) + d.logrk_f \
+            + (2 * ks)[None, :] * np.log(np.maximum(c * xb, 1e-300))[:, None]
+        best = np.argmin(sub, axis=1)
+        G = A - np.exp(sub[np.arange(c.size), best])
+        gauss = np.where(G > 0, -G / 4, 0.0)
+        pseudo = np.where(d.m_f > 0, 0.5 * np.log(2 / (math.pi * np.maximum(d.m_f, 1e-300) * xa)), 0.0)
+    return np.minimum(0.0, np.minimum(gauss, pseudo)), best
+
+
+def tail_float(d: _TailData, eps: float, N: int, goal: float) -> float:
+    """Float estimate of the section-4c tail bound (planning and the choice of N only)."""
+    import numpy as np
+
+    allr = np.concatenate([d.iso_f, d.m_f[d.m_f > 0]])
+    total = 0.0
+    for i, (n_a, n_b) in enumerate(_odd_blocks(N)):
+        far = _far_tail_float(allr, (n_a - 2) * eps)
+        if total + far <= goal or total > goal or i >= _MAX_BLOCKS:
+            return total + far
+        xa, xb = n_a * eps, n_b * eps
+        iso = d.iso_f[d.iso_f * xa >= 2 / math.pi]
+        lg = 0.5 * np.log(2 / (math.pi * iso * xa)).sum() if iso.size else 0.0
+        glog, _ = _group_logs_float(d, xa, xb)
+        lg += glog.sum()
+        count = (n_b - n_a) // 2 + 1
+        total += 2 / math.pi * count / n_a * math.exp(lg)
+    return math.inf
+
+
+def residual_truncation_bound(d: _TailData, eps: arb, N: int, goal: float) -> tuple[arb, int]:
+    """(bound, J): a proven bound for sum_{n odd > N} (2/(pi n)) |Phi_0(n eps)| (docs/method.md, section 4c).
+
+    Blocks of odd indices [n_a, n_b] are bounded by the number of their terms times
+    (2/(pi n_a)) times a bound for |Phi_0| on [n_a eps, n_b eps]: isolated weights by
+    sqrt(2/(pi r xi)), each residual group by the smaller of its Gaussian factor
+    exp(-(1/4)[(c xi_a)^2 R_1 - j01^(2-2k) (c xi_b)^(2k) R_k]) and sqrt(2/(pi c m xi_a))
+    (m the proven lower bound of its largest residual weight over c); the indices past
+    the last block by the section-4 power law over the isolated and these pseudo weights.
+    Factors the floats find negligible are bounded by 1 (always valid).  J is the
+    number of weights in the power law past the last block.
+    """
+    import numpy as np
+
+    j01_lo_q, _ = check_j01()
+    j01_lo = _arb_q(j01_lo_q)
+    pi = arb.pi()
+    two_over_pi = 2 / pi
+    allr_arb = list(d.iso) + [c * m2.sqrt() for (c, _, _, m2) in d.groups if m2 is not None and m2 > 0]
+    allr_f = np.array([float(r.mid()) for r in allr_arb])
+    eps_f = float(eps.mid())
+
+    def far(M: int) -> arb:
+        xi = eps * M
+        logp = arb(0)
+        J = 0
+        for r, rf in zip(allr_arb, allr_f):
+            if rf * eps_f * M < 0.7:  # keep only factors that are clearly below 1
+                continue
+            f = two_over_pi / (r * xi)
+            if f < 1:
+                logp += f.log() / 2
+                J += 1
+        if J == 0:
+            return arb("inf"), 0
+        return arb(((2 / (pi * J)) * logp.exp()).upper()), J
+
+    total = arb(0)
+    for i, (n_a, n_b) in enumerate(_odd_blocks(N)):
+        xi_f = (n_a - 2) * eps_f
+        far_f = _far_tail_float(allr_f, xi_f)
+        if (far_f < math.inf and float(total.upper()) + far_f <= goal) or i >= _MAX_BLOCKS \
+                or float(total.upper()) > goal:
+            fb, J = far(n_a - 2)
+            return arb((total + fb).upper()), J
+        xa, xb = eps * n_a, eps * n_b
+        xa_f, xb_f = n_a * eps_f, n_b * eps_f
+        lg = arb(0)
+        for w, wf in zip(d.iso, d.iso_f):
+            if wf * xa_f < 0.7:
+                continue
+            f = two_over_pi / (w * xa)
+            if f < 1:
+                lg += f.log() / 2
+        glog, best = _group_logs_float(d, xa_f, xb_f)
+        for gi in np.nonzero(glog < -1e-6)[0]:
+            c, r1, rk, m2 = d.groups[gi]
+            cand = arb(0)
+            if rk:
+                k = int(best[gi]) + 2
+                G = (c * xa) ** 2 * r1 - j01_lo ** (2 - 2 * k) * (c * xb) ** (2 * k) * rk[k - 2]
+                if G > 0:
+                    cand = arb((-G / 4).upper())
+            if m2 is not None and m2 > 0:
+                f = two_over_pi / (c * m2.sqrt() * xa)
+                if f < 1:
+                    ps = arb((f.log() / 2).upper())
+                    if ps < cand:
+                        cand = ps
+            lg += cand
+        count = (n_b - n_a) // 2 + 1
+        total += arb((two_over_pi * count / n_a * lg.exp()).upper())
+    return arb("inf"), 0
+
+
 def _residual_log_factor(group: ResidualGroup, xi: arb, need: float, j01_lo: arb, C: arb):
     """(log of prod_res J_0, bound on the series tail) for one residual group.
 
@@ -138,8 +351,38 @@ def _clamp_unit(x: arb) -> arb:
     return arb(lo).union(arb(hi))
 
 
+def _smallest_n(bound, goal: float, max_terms: int, exact: bool = True):
+    """Smallest odd N (doubling, then bisection) with bound(N) < goal; None past max_terms.
+
+    ``bound`` returns an arb (``exact``: compared by its upper end) or a float.
+    """
+    def ok(n):
+        b = bound(n)
+        if exact:
+            return b.is_finite() and b.upper() < goal
+        return b < goal
+
+    n_hi = 1
+    while not ok(n_hi):
+        n_hi *= 2
+        if n_hi > max_terms:
+            return None
+    n_lo = max(1, n_hi // 2)
+    while n_hi - n_lo > 2:
+        mid = (n_lo + n_hi) // 2
+        if ok(mid):
+            n_hi = mid
+        else:
+            n_lo = mid
+    return n_hi if n_hi % 2 == 1 else n_hi + 1
+
+
+TRUNCATION_ISOLATED = "isolated weights (section 4)"
+TRUNCATION_RESIDUAL = "isolated weights and residual groups (section 4c)"
+
+
 def density_enclosure(var: BesselVariable, target_width: float, prec: int | None = None,
-                      max_terms: int = 200000) -> DensityEnclosure:
+                      max_terms: int = 200000, truncation: str = "auto") -> DensityEnclosure:
     """An enclosure of P(X > 0) for X = mu + sum_j w_j cos Theta_j (+ residual groups).
 
     Parameters
@@ -151,6 +394,10 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
         width comes out below it when the inputs are precise enough.
     prec : int, optional
         Working precision in bits (default: from the target).
+    truncation : str
+        "auto": the bound of section 4 or of section 4c, whichever needs fewer terms;
+        ``TRUNCATION_ISOLATED``: section 4 only (how certificates written before
+        section 4c existed are re-derived).
 
     Returns
     -------
@@ -200,29 +447,34 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
         alias = (-(gap_up**2) / (2 * V_hi)).exp() + (-(gap_down**2) / (2 * V_hi)).exp()
         alias = arb(alias.upper())
         eps = 2 * arb.pi() / L
-        # --- truncation: smallest odd N with bound <= tau/8
+        # --- truncation: smallest odd N with bound <= tau/8, by the isolated weights alone
+        # (section 4) or with the residual groups too (section 4c), whichever needs fewer terms
         budget_trunc = tau / 8
-        n_hi = 1
-        while True:
-            b, _ = truncation_bound(weights, eps * n_hi)
-            if b.is_finite() and b.upper() < budget_trunc:
-                break
-            n_hi *= 2
-            if n_hi > max_terms:
+        N_old = _smallest_n(lambda n: truncation_bound(weights, eps * n)[0], budget_trunc, max_terms)
+        N, trunc, J = None, None, 0
+        method = TRUNCATION_ISOLATED
+        if var.residuals and truncation != TRUNCATION_ISOLATED:
+            data = _tail_data(weights, var.residuals)
+            eps_f = float(eps.mid())
+            N_new = _smallest_n(lambda n: tail_float(data, eps_f, n, budget_trunc / 2),
+                                budget_trunc / 2, max_terms, exact=False)
+            while N_new is not None and (N_old is None or N_new < N_old):
+                b, J_new = residual_truncation_bound(data, eps, N_new, budget_trunc / 2)
+                if b.is_finite() and b.upper() < budget_trunc:
+                    N, trunc, J = N_new, b, J_new
+                    method = TRUNCATION_RESIDUAL
+                    break
+                N_new = N_new + 2 * max(1, N_new // 8)  # the floats were optimistic: a little further
+                if N_new > max_terms:
+                    N_new = None
+        if N is None:
+            if N_old is None:
                 raise PrecisionExhausted(
                     "not certified: the characteristic function does not decay fast enough "
                     f"with {len(weights)} isolated weights (need more zeros)")
-        n_lo = max(1, n_hi // 2)
-        while n_hi - n_lo > 2:
-            mid = (n_lo + n_hi) // 2
-            b, _ = truncation_bound(weights, eps * mid)
-            if b.is_finite() and b.upper() < budget_trunc:
-                n_hi = mid
-            else:
-                n_lo = mid
-        N = n_hi if n_hi % 2 == 1 else n_hi + 1
-        trunc, J = truncation_bound(weights, eps * N)
-        trunc = arb(trunc.upper())
+            N = N_old
+            trunc, J = truncation_bound(weights, eps * N)
+            trunc = arb(trunc.upper())
         # --- main sum
         n_terms = (N + 1) // 2
         need_per_term = tau / 16 / n_terms
@@ -270,7 +522,10 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
             ErrorTerm("aliasing", alias,
                       "P(|X| >= L/2): square-wave period L; Chernoff bound with the exact variance"),
             ErrorTerm("frequency truncation", trunc,
-                      "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on the isolated weights"),
+                      "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on the isolated weights"
+                      if method == TRUNCATION_ISOLATED else
+                      "terms n > N: |J_0(x)| <= sqrt(2/(pi x)) on isolated weights; residual "
+                      "groups by power sums (4c)"),
             ErrorTerm("residual zeros", rayleigh,
                       "tail of the Rayleigh expansion of the product over zeros not isolated"),
             ErrorTerm("rounding and zero enclosures", rounding,
@@ -283,6 +538,7 @@ def density_enclosure(var: BesselVariable, target_width: float, prec: int | None
             "xi_max": float(eps.mid()) * N,
             "direct_weights": len(weights),
             "truncation_weights_used": J,
+            "truncation": method,
             "residual_groups": len(var.residuals),
             "moments_available": max((len(g.power_sums) for g in var.residuals), default=0),
             "working_precision_bits": prec,

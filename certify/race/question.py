@@ -18,6 +18,8 @@ of zeta (docs/method.md, section 9); ``pi<li`` asks for P(-X > 0).
 
 from __future__ import annotations
 
+import math
+
 from dataclasses import dataclass
 from fractions import Fraction
 
@@ -189,16 +191,20 @@ def weight_sum_is_zero(question: RaceQuestion, chi: Character) -> bool:
     """Whether W(chi) = sum_a w_a chi(a) is exactly 0 (in the cyclotomic field)."""
     if chi.order == 1:
         return sum(w for _, w in question.normalised_weights) == 0
-    coeffs = [Fraction(0)] * chi.order
+    coeffs: dict = {}
     for a, w in question.normalised_weights:
-        coeffs[chi.exponent(a)] += w
-    den = 1
-    for c in coeffs:
-        den = den * c.denominator // __import__("math").gcd(den, c.denominator)
-    poly = fmpz_poly([int(c * den) for c in coeffs])
-    if poly == 0:
+        e = chi.exponent(a)
+        coeffs[e] = coeffs.get(e, Fraction(0)) + w
+    coeffs = {e: c for e, c in coeffs.items() if c != 0}
+    if not coeffs:
         return True
-    return poly % fmpz_poly.cyclotomic(chi.order) == 0
+    den = 1
+    for c in coeffs.values():
+        den = den * c.denominator // math.gcd(den, c.denominator)
+    ints = [0] * chi.order
+    for e, c in coeffs.items():
+        ints[e] = int(c * den)
+    return fmpz_poly(ints) % fmpz_poly.cyclotomic(chi.order) == 0
 
 
 def weight_modulus(question: RaceQuestion, chi: Character) -> arb:
@@ -243,6 +249,7 @@ def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
         return [SpectralGroup((primitive_character(1, 1),), ((1, 1),), 0, True, arb(2))]
     out = []
     seen = set()
+    by_label = {c.label: c for c in characters(question.modulus)}
     for chi in characters(question.modulus):
         if chi.is_principal or chi.label in seen:
             continue
@@ -255,7 +262,7 @@ def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
         if chi.is_real:
             out.append(SpectralGroup((chi,), ((q_star, n_star),), chi.parity, True, scale))
         else:
-            conj = next(c for c in characters(question.modulus) if c.label == chi.conjugate_label)
+            conj = by_label[chi.conjugate_label]
             seen.add(conj.label)
             out.append(SpectralGroup((chi, conj), ((q_star, n_star), (q_star, pow(n_star, -1, q_star))),
                                      chi.parity, False, scale))

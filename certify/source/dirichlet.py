@@ -121,9 +121,8 @@ class Character:
         """e with chi(a) = exp(2 pi i e / order), or None if gcd(a, q) > 1."""
         if math.gcd(a, self.modulus) != 1:
             return None
-        g = dirichlet_group(self.modulus)
-        e = dirichlet_char(self.modulus, self.label).chi_exponent(a % self.modulus)
-        return (int(e) * self.order // int(g.exponent())) % self.order
+        e = _flint_char(self.modulus, self.label).chi_exponent(a % self.modulus)
+        return (int(e) * self.order // _group_exponent(self.modulus)) % self.order
 
     def value(self, a: int) -> acb:
         """chi(a) as a complex ball (0 if gcd(a, q) > 1)."""
@@ -136,10 +135,67 @@ class Character:
         return f"chi_{{{self.modulus},{self.label}}}"
 
 
+@lru_cache(maxsize=64)
+def _group_exponent(q: int) -> int:
+    return int(dirichlet_group(q).exponent())
+
+
+@lru_cache(maxsize=4096)
+def _flint_char(q: int, n: int):
+    return dirichlet_char(q, n)
+
+
 def _value_fraction(q: int, n: int, a: int) -> Fraction:
     """chi_{q,n}(a) = exp(2 pi i f) with f in [0, 1) returned exactly."""
-    g = dirichlet_group(q)
-    return Fraction(int(dirichlet_char(q, n).chi_exponent(a % q)), int(g.exponent())) % 1
+    return Fraction(int(_flint_char(q, n).chi_exponent(a % q)), _group_exponent(q)) % 1
+
+
+def factor(n: int) -> dict:
+    """{prime: exponent} of n >= 1 by trial division (moduli here are at most ~10^7)."""
+    out: dict = {}
+    d = 2
+    while d * d <= n:
+        while n % d == 0:
+            out[d] = out.get(d, 0) + 1
+            n //= d
+        d += 1 if d == 2 else 2
+    if n > 1:
+        out[n] = out.get(n, 0) + 1
+    return out
+
+
+def primitive_root(p: int, e: int) -> int:
+    """The least primitive root modulo p^e (p an odd prime).
+
+    g generates (Z/p^e)^* iff it generates (Z/p)^* (g^((p-1)/r) != 1 mod p for each prime
+    r | p - 1) and, when e >= 2, g^(p-1) != 1 mod p^2.
+    """
+    rs = list(factor(p - 1))
+    for g in range(2, p * p):
+        if g % p == 0:
+            continue
+        if any(pow(g, (p - 1) // r, p) == 1 for r in rs):
+            continue
+        if e >= 2 and pow(g, p - 1, p * p) == 1:
+            continue
+        return g
+    raise ValueError(f"no primitive root modulo {p}^{e}")
+
+
+@lru_cache(maxsize=256)
+def unit_generators(m: int) -> tuple[int, ...]:
+    """Classes generating (Z/m)^*: a primitive root of each odd prime power (-1 and 5 for
+    2^e, e >= 3; -1 for 4), lifted by the Chinese remainder theorem (1 at the other primes)."""
+    gens = []
+    for p, e in sorted(factor(m).items()):
+        pe = p ** e
+        local = ([] if pe == 2 else [pe - 1] if pe == 4 else [pe - 1, 5]) if p == 2 \
+            else [primitive_root(p, e)]
+        rest = m // pe
+        for g in local:
+            gens.append((g * rest * pow(rest, -1, pe) + pe * pow(pe, -1, rest)) % m
+                        if rest > 1 else g % m)
+    return tuple(gens)
 
 
 def _primitive_label(q: int, n: int, cond: int) -> int:
@@ -151,10 +207,9 @@ def _primitive_label(q: int, n: int, cond: int) -> int:
         return 1
     if cond == q:
         return n  # chi_{q,n} is itself primitive
+    # a character mod cond is fixed by its values on generators of (Z/cond)^*
     lifts = []
-    for a in range(1, cond):
-        if math.gcd(a, cond) != 1:
-            continue
+    for a in unit_generators(cond):
         b = a
         while math.gcd(b, q) != 1:
             b += cond

@@ -30,6 +30,7 @@ from flint import acb_series, dirichlet_char, dirichlet_group
 
 from ..arith import acb, arb, series_cap, workprec
 from ..errors import PrecisionExhausted
+from ..source.dirichlet import factor, primitive_root
 from .lfunction import AnalyticL, power_sums, zero_power_sums_of
 
 
@@ -217,17 +218,15 @@ def _group_axes(q: int):
     a = prod g_j^{l_j} mod q.  The axes are the cyclic factors of the prime
     powers of q (two for 2^e with e >= 3: -1 and 5), generators lifted by CRT.
     """
-    from sympy import factorint, primitive_root
-
     parts = []  # (p^e, [(generator mod p^e, order)])
-    for p, e in sorted(factorint(q).items()):
+    for p, e in sorted(factor(q).items()):
         pe = p ** e
         if p == 2:
             if e == 1:
                 continue
             gens = [(pe - 1, 2)] + ([(5, 2 ** (e - 2))] if e >= 3 else [])
         else:
-            gens = [(int(primitive_root(pe)), pe // p * (p - 1))]
+            gens = [(primitive_root(p, e), pe // p * (p - 1))]
         parts.append((pe, gens))
     axes = []
     tables = []  # per prime power: dict residue -> exponent tuple (over its own gens)

@@ -54,3 +54,34 @@ def test_vanishing_character_sums_are_exact():
         assert weight_sum_is_zero(q, chi) == (abs(w) < 1e-12)
     r = residue_race(5)
     assert [c.label for c in characters(5) if not weight_sum_is_zero(r, c)] == [4]
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_unit_generators_generate_and_primitive_labels_agree_everywhere(seed):
+    """unit_generators(m) generate (Z/m)^* (closure by brute force), and for random moduli the
+    primitive character found from the generators agrees with chi on every class (sympy's
+    totient and exact exponents as the independent side)."""
+    import random
+
+    from certify.source.dirichlet import unit_generators
+
+    rng = random.Random(seed)
+    for m in rng.sample(range(3, 3000), 25):
+        seen, frontier = {1}, [1]
+        gens = unit_generators(m)
+        while frontier:
+            x = frontier.pop()
+            for g in gens:
+                y = x * g % m
+                if y not in seen:
+                    seen.add(y)
+                    frontier.append(y)
+        assert len(seen) == sympy.totient(m)
+    for q in rng.sample([360, 420, 500, 720, 998, 1000, 1024, 729], 2):
+        res = reduced_residues(q)
+        for chi in rng.sample(characters(q), 12):
+            if chi.conductor <= 2:
+                continue
+            prim = next(c for c in characters(chi.conductor) if c.label == chi.primitive_label)
+            assert all(prim.exponent(a % chi.conductor) * chi.order
+                       == chi.exponent(a) * prim.order for a in res)

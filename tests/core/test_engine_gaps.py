@@ -131,7 +131,13 @@ def test_method_doc_states_the_planning_constants_of_the_code(store):
         # heights use h = 3.4 over the 2.6 assumed when xi_max is planned (section 5b)
         assert plan.height_factor == 3.4 and "3.4 · c_g ξ_max / j₀,₁" in text
         assert "planned assuming 2.6" in text
-        expect = 3.4 * s * plan.xi_max / J01
+        reach = 3.4 * s * plan.xi_max / J01
+        # |rho| >= 1/2: only zeros with 1/4 + gamma^2 < reach^2 need isolating (section 5b)
+        expect = math.sqrt(max(0.0, reach * reach - 0.25))
+        assert "√(max(0, reach² − 1/4))" in text
+        inv = plan.inverse_rho.get(g.primitive_keys[0])
+        if inv is not None and reach * inv <= 1:
+            expect = 0.0
         expect = expect if plan.few_zeros else max(4.0, expect)
         # then moved up to the conductor's search grid (docs/method.md, section 7)
         from certify.spectrum.moments import round_height_to_grid
