@@ -321,6 +321,13 @@ def certify_chain(question: OrderQuestion, digits: int = DEFAULT_ORDER_DIGITS,
         de = dens[s]
         met = de.enclosure.width <= Fraction(tau)
         params = dict(de.parameters)
+        if q_ is not question:  # the reverse's coordinates are the forward's in reverse order:
+            # record its per-coordinate parameters as a direct run of the reverse would
+            for key in ("half_periods", "box_half_widths_K", "variances"):
+                if key in params:
+                    params[key] = list(reversed(params[key]))
+            if "covariance" in params:
+                params["covariance"] = [list(reversed(row)) for row in reversed(params["covariance"])]
         params.update({
             "target_width": f"1e-{digits}", "isolation_height_factor": hf,
             "zero_enclosure_width": w, "moments": K,

@@ -48,6 +48,20 @@ def reproduce_command(question: OrderQuestion, digits: int) -> str:
            f"--digits {digits} --certificate DIR"
 
 
+def _family_command(cl, question: OrderQuestion, digits: int) -> bool:
+    """True when ``cl`` is the ``--all`` command of a family this ordering belongs to: the
+    same modulus and digits, the classes in any order (that command recomputes every
+    ordering, this one included)."""
+    if not isinstance(cl, str):
+        return False
+    words = cl.split()
+    n = len(question.classes)
+    if len(words) != 3 + n + 3 or words[:3] != ["certify", "order", str(question.modulus)] \
+            or words[3 + n:] != ["--digits", str(digits), "--all"]:
+        return False
+    return sorted(words[3:3 + n]) == sorted(map(str, question.classes))
+
+
 def input_digest(question: OrderQuestion, digits: int) -> str:
     payload = json.dumps({"modulus": question.modulus, "kind": "ordering",
                           "classes": list(question.classes), "digits": digits}, sort_keys=True)
@@ -198,7 +212,8 @@ def verify_order(cert: Certificate, report) -> None:
     cl = cert.provenance.get("command_line")
     base = f"certify order {question.modulus} {' '.join(map(str, question.classes))} --digits {digits}"
     report.add("provenance: the command line that recomputes it",
-               cl in (base, base + " --all", reproduce_command(question, digits)),
+               cl in (base, base + " --all", reproduce_command(question, digits))
+               or _family_command(cl, question, digits),
                f"stored {str(cl)[:80]!r}")
     report.add("parameters: target of the density engine", params.get("density_target_width")
                == repr(tau), f"stored {params.get('density_target_width')!r}, digits {digits}")
