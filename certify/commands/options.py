@@ -44,6 +44,10 @@ DEFAULT_LIMITS = {
     "conductor": 2_000,        # the largest modulus of a race over Q (measured: the residue
                                # race mod 1009, one L-function of conductor 1009, 2 digits:
                                # 153 s; mod 10007: more than 300 s; 2 cores under load)
+    "residue-modulus": 100_000_000,  # the modulus of a residue race: its real characters only
+                               # (2^r - 1 L-functions, conductors up to q, smoothed sums of cost
+                               # ~ sqrt(conductor) each; measured: mod 4849845, 127 L-functions,
+                               # see bench/bench_huge_residue.py)
     "memory-mb": 4_000,        # estimated memory of a table's plan and results
     "field": 10_000_000,       # elements of the largest finite field a curve's point counts need
     "group": 1_000_000,        # order of a character group mod m in F_q[t]
@@ -359,7 +363,11 @@ def check_race_size(question, limits: "Limits", what: str) -> None:
                            f"{ECQ_LIMITS['conductor']}, the largest a curve claim is certified for")
         check_ec_size(E, MAX_CLAIM_DIGITS, 0, limits)
         return
-    limits.require("conductor", question.modulus, f"{what} {question.label}")
+    if getattr(question, "kind", "") == "residues":
+        # only the real characters carry weight: the modulus bounds their conductors
+        limits.require("residue-modulus", question.modulus, f"{what} {question.label}")
+    else:
+        limits.require("conductor", question.modulus, f"{what} {question.label}")
     limits.require("l-functions", race_l_functions(question.modulus, question.kind),
                    f"{what} {question.label}")
 

@@ -23,7 +23,7 @@ import math
 from dataclasses import dataclass
 from fractions import Fraction
 
-from flint import fmpz_poly
+from flint import dirichlet_char, fmpz_poly
 
 from ..arith import acb, arb
 from ..errors import BadInput
@@ -43,6 +43,9 @@ class RaceQuestion:
     kind: str
     weights: tuple[tuple[int, Fraction], ...]
     classes: tuple[int, ...] = ()
+    # the residue race built from the factorisation of q (weights not listed class by
+    # class): the real characters, the exact mean and |W(chi)| (:func:`residue_structure`)
+    structure: "ResidueStructure | None" = None
 
     @property
     def is_li_race(self) -> bool:
@@ -89,6 +92,8 @@ class RaceQuestion:
         """
         if self.is_li_race:
             return Fraction(1)  # no weights: the race variable is fixed (docs/method.md, section 9)
+        if self.structure is not None:
+            return Fraction(1)  # 1/#N on the non-residues, -1/#R on the residues: sum |w_a| = 2
         total = sum((abs(w) for _, w in self.weights), Fraction(0))
         if total == 0:
             raise BadInput("all weights are zero: there is no race")
@@ -151,8 +156,122 @@ def quadratic_residues(q: int) -> list[int]:
     return sorted({(x * x) % q for x in reduced_residues(q)})
 
 
-def residue_race(q) -> RaceQuestion:
-    """Non-residues against residues, each side averaged over its classes."""
+# above this modulus the residue race is built from the factorisation of q (its real
+# characters) rather than class by class (whose mean costs ~ q^2 operations)
+RESIDUE_STRUCTURE_MIN_MODULUS = 2_000
+MAX_RESIDUE_MODULUS = 10**12  # the factorisation path; the CLI states a lower limit (residue-modulus)
+
+
+@dataclass(frozen=True)
+class ResidueStructure:
+    """The residue race mod q from the factorisation of q, without the character group.
+
+    With 2^k real characters mod q (the 2-rank of the unit group is k), a real
+    character is trivial on the squares, so for the weights 1/#N on the
+    non-residues and -1/#R on the residues, W(chi) = -1 - #R/#N = -2^k/(2^k - 1) for
+    every non-principal real chi, and W(chi) = 0 for every complex chi (it is
+    non-trivial on the squares, so its sums over R and over all classes vanish).
+    A residue has 2^k square roots, so c(q, a) = 2^k - 1 on R and -1 on N, and
+    mu = -sum_a w_a c(q, a) = 1 + (2^k - 1) = 2^k (docs/method.md, section 1d).
+
+    ``characters`` are the non-principal real characters mod q (label order),
+    ``phi`` = phi(q), ``residues`` = #R = phi / 2^k.
+    """
+
+    modulus: int
+    characters: tuple
+    phi: int
+    real_count: int  # 2^k
+
+    @property
+    def residues(self) -> int:
+        return self.phi // self.real_count
+
+    @property
+    def non_residues(self) -> int:
+        return self.phi - self.residues
+
+    @property
+    def mean(self) -> Fraction:
+        return Fraction(self.real_count)
+
+    @property
+    def weight(self) -> Fraction:
+        """W(chi) for every non-principal real character (exact)."""
+        return Fraction(-self.real_count, self.real_count - 1)
+
+
+def _local_real_characters(p: int, e: int) -> list:
+    """Real characters mod p^e: (label mod p^e, conductor, primitive label, parity)."""
+    pe = p ** e
+    if p != 2:
+        # the Legendre symbol mod p, induced to p^e: Conrey label -1 (it is chi(g^j) = (-1)^j)
+        return [(1, 1, 1, 0), (pe - 1, p, p - 1, ((p - 1) // 2) % 2)]
+    from ..source.dirichlet import _primitive_label
+
+    out = [(1, 1, 1, 0)]
+    roots = sorted({n for n in (pe - 1, pe // 2 - 1, pe // 2 + 1) if n > 1 and n * n % pe == 1})
+    for n in roots:
+        chi = dirichlet_char(pe, n)
+        cond = int(chi.conductor())
+        out.append((n, cond, _primitive_label(pe, n, cond), int(chi.parity())))
+    return out
+
+
+def _crt(pairs) -> tuple[int, int]:
+    """(x, m) with x = r_i mod m_i for the coprime pairs (r_i, m_i), m = prod m_i."""
+    x, m = 0, 1
+    for r, mi in pairs:
+        if mi == 1:
+            continue
+        t = ((r - x) * pow(m, -1, mi)) % mi
+        x, m = x + m * t, m * mi
+    return x % m if m > 1 else 1, m
+
+
+def residue_structure(q: int) -> ResidueStructure:
+    """The real characters mod q from sympy's factorisation (no character group is built)."""
+    from itertools import product
+
+    from sympy import factorint
+
+    fac = sorted((int(p), int(e)) for p, e in factorint(q).items())
+    locals_ = [(p ** e, _local_real_characters(p, e)) for p, e in fac]
+    phi = 1
+    for p, e in fac:
+        phi *= (p - 1) * p ** (e - 1)
+    chars = []
+    for combo in product(*[loc for _, loc in locals_]):
+        label, _ = _crt([(c[0], pe) for (pe, _), c in zip(locals_, combo)])
+        label = label if q > 1 else 1
+        cond = 1
+        for c in combo:
+            cond *= c[1]
+        plabel, _ = _crt([(c[2], c[1]) for c in combo])
+        parity = sum(c[3] for c in combo) % 2
+        if cond == 1:
+            continue
+        chars.append(Character(q, label % q, 2, cond, plabel % cond if cond > 1 else 1, parity,
+                               label % q))
+    chars.sort(key=lambda c: c.label)
+    return ResidueStructure(q, tuple(chars), phi, len(chars) + 1)
+
+
+def residue_race(q, method: str = "auto") -> RaceQuestion:
+    """Non-residues against residues, each side averaged over its classes.
+
+    ``method`` "classes" lists the weights class by class and finds the characters
+    with W(chi) != 0 in the character group; "structure" builds the same race from the
+    factorisation of q (:func:`residue_structure`: the real characters only, the mean
+    and |W(chi)| exactly), the only way for a large modulus; "auto" takes the
+    structure when q exceeds RESIDUE_STRUCTURE_MIN_MODULUS.
+    """
+    if method not in ("auto", "classes", "structure"):
+        raise BadInput(f"method must be auto, classes or structure (got {method!r})")
+    if method != "classes":
+        qq = _residue_modulus(q)
+        if method == "structure" or qq > RESIDUE_STRUCTURE_MIN_MODULUS:
+            return RaceQuestion(qq, "residues", (), structure=residue_structure(qq))
     q = check_modulus(q)
     res = set(quadratic_residues(q))
     non = [a for a in reduced_residues(q) if a not in res]
@@ -161,6 +280,23 @@ def residue_race(q) -> RaceQuestion:
     ws = [(a, Fraction(1, len(non))) for a in non] + [(a, Fraction(-1, len(res))) for a in sorted(res)]
     ws.sort()
     return RaceQuestion(q, "residues", tuple(ws))
+
+
+def _residue_modulus(q) -> int:
+    """check_modulus, with the larger range of the factorisation path."""
+    from ..source import dirichlet
+
+    if isinstance(q, (int, str)) and not isinstance(q, bool):
+        try:
+            v = int(str(q).strip().lstrip("+")) if isinstance(q, str) else q
+        except ValueError:
+            v = None
+        if v is not None and dirichlet.MAX_MODULUS < v <= MAX_RESIDUE_MODULUS:
+            return v
+    if isinstance(q, int) and not isinstance(q, bool) and q > MAX_RESIDUE_MODULUS:
+        raise BadInput(f"modulus {q} is beyond the supported range of residue races "
+                       f"(<= {MAX_RESIDUE_MODULUS})")
+    return check_modulus(q)
 
 
 def weighted(q, weights: dict) -> RaceQuestion:
@@ -183,6 +319,8 @@ def mean_of(question: RaceQuestion) -> Fraction:
     -1 for pi(x) > li(x) (the prime squares), +1 for the reverse."""
     if question.is_li_race:
         return Fraction(-1) if question.kind == "pi>li" else Fraction(1)
+    if question.structure is not None:
+        return question.structure.mean
     return -sum((w * c_value(question.modulus, a) for a, w in question.normalised_weights),
                 Fraction(0))
 
@@ -247,6 +385,11 @@ def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
         from ..source.dirichlet import primitive_character
 
         return [SpectralGroup((primitive_character(1, 1),), ((1, 1),), 0, True, arb(2))]
+    if question.structure is not None:
+        w = question.structure.weight
+        scale = 2 * abs(arb(w.numerator) / w.denominator)
+        return [SpectralGroup((chi,), (chi.primitive_key,), chi.parity, True, scale)
+                for chi in question.structure.characters]
     out = []
     seen = set()
     by_label = {c.label: c for c in characters(question.modulus)}

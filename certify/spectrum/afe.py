@@ -160,3 +160,121 @@ class SmoothedL:
             lam = self.lambda_value(half, prec + 20)
             w = (half + self.parity) / 2
             return lam / ((arb(self.q) / arb.pi()) ** w.real * w.gamma())
+
+
+# --- Taylor jets at s = 1 of a real character by the smoothed sum (docs/method.md, 3d) -----
+
+# conductors from which the jets at s = 1 and L(1/2) of a real character come from the
+# smoothed sum rather than Arb's Hurwitz sums (measured, bench/bench_huge_residue.py)
+JET_AFE_MIN_CONDUCTOR = 3000
+
+
+def _scaled_gamma_upper(w, x: arb, gamma_w):
+    """x^(-w) Gamma(w, x) as a series in w (w a power series with constant term > 0).
+
+    Gamma(w, x) = Gamma(w) - gamma(w, x) and x^(-w) gamma(w, x) = e^(-x)/w 1F1(1; w + 1; x);
+    ``gamma_w`` is the series Gamma(w) (shared by all n).
+    """
+    from flint import acb_series
+
+    lx = x.log()
+    one = acb_series([acb(1)])
+    h = acb_series.hypgeom([one], [w + 1], acb_series([acb(x)]))
+    return (-(w * lx)).exp() * gamma_w - h * (-x).exp() / w
+
+
+class RealJet:
+    """c_1..c_K of log Lambda(1 + e, chi) for a real primitive character by the smoothed sum.
+
+    For real primitive chi the root number is 1 (the quadratic Gauss sum), so
+
+        Lambda(1 + e) = sum_n chi(n) n^kappa [g_a(e) + g_b(e)],
+        g_a(e) = x^(-w) Gamma(w, x),  w = (1 + kappa)/2 + e/2,
+        g_b(e) = x^(-w') Gamma(w', x), w' = kappa/2 - e/2,  x = pi n^2 / q,
+
+    each a power series in e (Gamma(w') for w' = -e/2 through
+    Gamma(w', x) = (Gamma(w' + 1, x) - x^w' e^(-x)) / w').  The coefficient of e^j in
+    each term is n^kappa int_1^oo e^(-xu) u^(c - 1) (+-log u / 2)^j / j! du with c <= 1,
+    at most n^kappa int_1^oo e^(-xu) u^(1/2) du <= n^kappa e^(-x) (1/x + 1/(2 x^2)) for
+    every j (y^j / j! <= e^y); the tail beyond N is bounded as for the values
+    (docs/method.md, section 3d) and added to every coefficient.
+    """
+
+    def __init__(self, conductor: int, label: int, parity: int, values=None):
+        self.q = conductor
+        self.label = label
+        self.parity = parity
+        self.values = values
+
+    def tail(self, N: int, prec: int) -> arb:
+        """Upper bound of sum_{n > N} 2 n^kappa e^(-x_n) (1/x_n + 1/(2 x_n^2)), or raise."""
+        q, k = self.q, self.parity
+        with workprec(prec + 20):
+            x1 = arb.pi() * (N + 1) ** 2 / q
+            rho = arb((N + 2) / arb(N + 1)) ** k * (-arb.pi() * (2 * N + 3) / q).exp()
+            if not (rho < 1):
+                raise ValueError("smoothed jet: the tail ratio is not below 1")
+            b = 2 * arb(N + 1) ** k * (-x1).exp() * (1 / x1 + 1 / (2 * x1 * x1))
+            return arb((b / (1 - rho)).upper())
+
+    def lambda_series(self, count: int, prec: int):
+        """The series Lambda(1 + e) to order e^count (balls include the truncation)."""
+        from flint import acb_series, dirichlet_char
+
+        from ..arith import series_cap
+
+        q, k = self.q, self.parity
+        need = prec * math.log(2) + 10
+        N = max(2, int(math.sqrt(q * need / math.pi)) + 2)
+        chi = dirichlet_char(q, self.label) if self.values is None else None
+        length = count + 2
+        with workprec(prec), series_cap(length):
+            half = arb(1) / 2
+            wa = acb_series([acb((1 + k) * half), acb(half)])
+            ga = wa.gamma()
+            if k == 1:
+                wb = acb_series([acb(half), acb(-half)])
+                gb = wb.gamma()
+            else:
+                wb = acb_series([acb(1), acb(-half)])  # w' + 1
+                gb = wb.gamma()
+            total = acb_series([acb(0)])
+            pi_q = arb.pi() / q
+            for n in range(1, N + 1):
+                c = self.values(n) if self.values is not None else chi(n)
+                if c == 0:
+                    continue
+                x = pi_q * n * n
+                term = _scaled_gamma_upper(wa, x, ga)
+                other = _scaled_gamma_upper(wb, x, gb)
+                if k == 0:
+                    # x^(-w') Gamma(w', x) = (x g_1 - e^(-x)) / w', w' = -e/2: the constant term
+                    # of x g_1 - e^(-x) is Gamma(1, x) - e^(-x) = 0 exactly
+                    cs = (other * x).coeffs()
+                    cs = cs + [acb(0)] * (length - len(cs))
+                    other = acb_series([-2 * cs[j + 1] for j in range(length - 1)])
+                if k:
+                    term = term * n
+                    other = other * n
+                total += (term + other) * c
+            tail = self.tail(N, prec)
+            cs = total.coeffs()
+            cs = cs + [acb(0)] * (count + 1 - len(cs))
+            return [cs[j] + acb(arb(0, tail)) for j in range(count + 1)]
+
+    def log_lambda_jet(self, count: int, prec: int) -> list:
+        """c_1..c_count of log Lambda(1 + e) (the constant of Lambda does not matter)."""
+        from flint import acb_series
+
+        from ..arith import series_cap
+        from ..errors import PrecisionExhausted
+
+        cs = self.lambda_series(count, prec)
+        with workprec(prec), series_cap(count + 1):
+            if not (cs[0].real > 0):
+                raise PrecisionExhausted(
+                    f"not certified: Lambda(1, chi_{{{self.q},{self.label}}}) = {cs[0].str(5)} "
+                    "is not proved positive at this precision")
+            lg = acb_series(cs).log().coeffs()
+            lg = lg + [acb(0)] * (count + 1 - len(lg))
+            return [acb(c.real) for c in lg[1:count + 1]]

@@ -130,12 +130,20 @@ class DirichletL(AnalyticL):
             return hit
         if self.conductor >= AFE_MIN_CONDUCTOR:
             if getattr(self, "_smoothed", None) is None:
-                self._smoothed = SmoothedL(self.conductor, self.label, self.parity)
+                # a real primitive character has root number 1 (the quadratic Gauss sum
+                # is i^kappa sqrt q), which spares the Gauss sum of cost q
+                eps = acb(1) if self.self_dual else None
+                self._smoothed = SmoothedL(self.conductor, self.label, self.parity,
+                                           root_number=eps)
             return self._smoothed.hardy_z(t, prec)
         with workprec(prec):
             return self.chi.hardy_z(t).real
 
     def log_lambda_jet(self, count: int, prec: int) -> list:
+        from .afe import JET_AFE_MIN_CONDUCTOR, RealJet
+
+        if self.conductor >= JET_AFE_MIN_CONDUCTOR and self.self_dual:
+            return RealJet(self.conductor, self.label, self.parity).log_lambda_jet(count, prec)
         return log_lambda_coefficients(self.conductor, self.label, self.parity, count, prec)
 
 
@@ -204,8 +212,15 @@ def zero_power_sums(conductor: int, label: int, parity: int, count: int,
 
 def central_value(conductor: int, label: int, prec: int = 64) -> acb:
     """An enclosure of L(1/2, chi) (zeta(1/2) for conductor 1: Arb's L of the trivial character)."""
+    from .afe import JET_AFE_MIN_CONDUCTOR, SmoothedL
+
+    chi = dirichlet_char(conductor, label)
+    if conductor >= JET_AFE_MIN_CONDUCTOR and int(chi.order()) <= 2:
+        # the smoothed sum (cost ~ sqrt q); root number 1 for a real primitive character
+        return SmoothedL(conductor, label, int(chi.parity()),
+                         root_number=acb(1)).central_value(prec)
     with workprec(prec):
-        return dirichlet_char(conductor, label).l(acb(1) / 2)
+        return chi.l(acb(1) / 2)
 
 
 # --- every character of a conductor at once (docs/method.md, section 2c) ---------------

@@ -44,7 +44,9 @@ CASES = [
     ["race", "4", "3", "1", "--no-such-option"], ["race", "1000001", "1", "2"],
     # -- residues -------------------------------------------------------------------
     ["residues"], ["residues", "8x"], ["residues", "3", "4"], ["residues", "1"],
-    ["residues", "4", "--digits", "0"], ["residues", "10007"], ["residues", "1e400"],
+    ["residues", "4", "--digits", "0"], ["residues", "1000000007"], ["residues", "1e400"],
+    ["residues", "4849845", "--limit", "residue-modulus=1e6"], ["residues", "10007", "--limit", "residue-modulus=1e4"],
+    ["residues", "9" * 13],
     ["residues", "8", "--json", ""], ["residues", "8", "--json", "{dir}"],
     # -- weighted -------------------------------------------------------------------
     ["weighted", "5"], ["weighted", "5", "1:1"], ["weighted", "5", "1:1", "4:1"],
