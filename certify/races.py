@@ -133,8 +133,11 @@ class RaceResult(NotebookDisplay):
                 "kind": self.question.kind,
                 "label": self.question.label,
                 "statement": self.question.statement,
-                "weights": {str(a): str(w) for a, w in self.question.weights},
-                "normalised_weights": {str(a): str(w) for a, w in self.question.normalised_weights},
+                "weights": ({str(a): str(w) for a, w in self.question.weights}
+                            if self.question.structure is None else self.question.weights_text),
+                "normalised_weights": ({str(a): str(w) for a, w in self.question.normalised_weights}
+                                       if self.question.structure is None
+                                       else self.question.weights_text),
                 "normalisation_factor": str(self.question.normalisation),
             },
             "density": {

@@ -105,7 +105,24 @@ class RaceQuestion:
         c = self.normalisation
         return tuple((a, w * c) for a, w in self.weights)
 
+    @property
+    def weights_text(self) -> str:
+        """The weights as text: class by class, or by the rule for a residue race of a
+        large modulus (its classes are not listed)."""
+        st = self.structure
+        if st is not None:
+            return (f"w_a = 1/{st.non_residues} on each of the {st.non_residues} non-residues, "
+                    f"w_a = -1/{st.residues} on each of the {st.residues} residues")
+        return ", ".join(f"w_{a} = {w}" for a, w in self.weights)
+
     def weight_of(self, a: int) -> Fraction:
+        if self.structure is not None:
+            from ..source.dirichlet import check_class
+
+            a = check_class(self.modulus, a)
+            square = all(chi.value(a).real > 0 for chi in self.structure.characters)
+            st = self.structure
+            return Fraction(-1, st.residues) if square else Fraction(1, st.non_residues)
         for c, w in self.weights:
             if c == a:
                 return w

@@ -203,7 +203,7 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     budget = [{"name": e["name"], "bound": e["bound"], "description": e["description"]}
               for e in cert.error_budget]
     total = sum((Fraction(e["bound"]) for e in cert.error_budget), Fraction(0))
-    weights = (", ".join(f"w_{a} = {w}" for a, w in question.weights)
+    weights = (question.weights_text
                or "none (pi(x) against li(x): zeta alone)")
     derived = answer_fields(cert.lower, cert.upper, digits)
     a = {**a, **derived}
