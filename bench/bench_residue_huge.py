@@ -6,9 +6,9 @@ For the residue race mod q only the real characters carry weight (W(chi) = 0
 for the others).  For odd squarefree q they are the Jacobi symbols (./d), d | q,
 d > 1, of conductor d.  This prints, for each, L(1/2, chi_d) by the smoothed sum
 (docs/method.md, section 3b; cost ~ sqrt d), checked against Arb's Hurwitz-sum
-value for the small conductors, and the total time.  It does NOT certify the
-residue race: the jets at s = 1 (power sums) of these L-functions are not yet
-computed by a method of cost ~ sqrt d (see the report of issue 14).
+value for the small conductors, and the total time.  The race itself is
+certified by bench/bench_huge_residue.py (jets at s = 1 by the smoothed sum,
+docs/method.md, section 3d).
 """
 
 from __future__ import annotations

@@ -7,6 +7,7 @@ Hurwitz-sum jets, mpmath's L-values.
 """
 
 import math
+from fractions import Fraction
 import random
 
 import mpmath
@@ -129,3 +130,32 @@ def test_jet_tail_bound_contains_longer_sums():
     long = RealJet(d, n, k).lambda_series(6, 160)
     for x, y in zip(short, long):
         assert x.overlaps(y) and y.rad() < x.rad()
+
+
+def _race_both_ways(q, digits, monkeypatch):
+    """The race from the classes with Arb's Hurwitz jets, and from the factorisation with
+    the smoothed jets for every conductor (threshold lowered to 5): two independent ways."""
+    from certify.races import certify_race
+    from certify.spectrum import afe
+    from certify.spectrum.spectrum import SpectrumStore
+
+    general = certify_race(residue_race(q, "classes"), digits, store=SpectrumStore())
+    monkeypatch.setattr(afe, "JET_AFE_MIN_CONDUCTOR", 5)
+    new = certify_race(residue_race(q, "structure"), digits, store=SpectrumStore())
+    monkeypatch.undo()
+    tau = Fraction(1, 10**digits)
+    for r in (general, new):
+        assert r.target_met and r.density.width <= tau
+    assert general.mean == new.mean
+    assert new.density.lower <= general.density.upper and general.density.lower <= new.density.upper
+    return general, new
+
+
+def test_race_from_structure_and_smoothed_jets_matches_general_path(monkeypatch):
+    _race_both_ways(105, 5, monkeypatch)
+
+
+@pytest.mark.slow
+def test_race_1155_from_structure_matches_general_path(monkeypatch):
+    """3*5*7*11: 15 real characters, conductors up to 1155, width 1e-8."""
+    _race_both_ways(1155, 8, monkeypatch)
