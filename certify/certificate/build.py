@@ -304,10 +304,12 @@ def _item(kind: str, data: dict, rh: str = "GRH", **keys) -> dict:
 def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH") -> dict:
     """GRH to the isolation height for one L-function: argument-principle count against the
     sign changes (so no zero below the height is missing, on or off the line)."""
-    from .zerocount import count_zeros
+    from .zerocount import MAX_COUNT_CONDUCTOR, count_zeros
 
     c, n = lf["conductor"], lf["label"]
     key = f"{c}.{n}"
+    if c > MAX_COUNT_CONDUCTOR:
+        return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
     T = Fraction(height)
     ends = sorted(exact_ends(ball_of(z)) for z in zeros)
     found = sum(1 for lo, hi in ends if hi < T)

@@ -44,6 +44,12 @@ from ..errors import PrecisionExhausted
 
 RIGHT_EDGE = Fraction(2)
 
+# Arb's L(s, chi) on the boxes of the contour costs ~ q per box (Hurwitz sums): above
+# this conductor the count is not attempted, and the certificate records the evidence
+# as not established (GRH stays a hypothesis either way; the residual power sums
+# still check that no zero is missing, docs/method.md section 2)
+MAX_COUNT_CONDUCTOR = 3000
+
 
 def _q(x: Fraction) -> arb:
     return arb(x.numerator) / x.denominator

@@ -159,3 +159,19 @@ def test_race_from_structure_and_smoothed_jets_matches_general_path(monkeypatch)
 def test_race_1155_from_structure_matches_general_path(monkeypatch):
     """3*5*7*11: 15 real characters, conductors up to 1155, width 1e-8."""
     _race_both_ways(1155, 8, monkeypatch)
+
+
+def test_zero_count_not_attempted_above_its_conductor_cap():
+    """The argument-principle count (Arb's L on boxes, cost ~ q each) is skipped above
+    MAX_COUNT_CONDUCTOR and recorded as not established, at once."""
+    import time
+
+    from certify.certificate.build import _zero_count_evidence
+    from certify.certificate.zerocount import MAX_COUNT_CONDUCTOR
+
+    t0 = time.process_time()
+    item = _zero_count_evidence({"conductor": 4849845, "label": 4849844, "parity": 0}, [], "1.5")
+    assert time.process_time() - t0 < 1.0
+    assert 4849845 > MAX_COUNT_CONDUCTOR
+    assert item["data"] == {"established": False, "height": "1.5"}
+    assert "not established" in item["text"]
