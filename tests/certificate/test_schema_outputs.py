@@ -56,8 +56,12 @@ def test_report_commands_share_the_envelope(tmp_path, capsys):
     assert main(["claims", str(claims), "--out", str(tmp_path), "--max-digits", "6",
                  "--json", "-"]) == 0
     assert _validate(capsys.readouterr().out)["kind"] == "referee-report"
+    # one twist degree: the certificate itself; several: a bundle of certificates
     assert main(["twists", "5", "t", "t^2 + 1", "--degrees", "1", "--json", "-"]) == 0
-    assert _validate(capsys.readouterr().out)["kind"] == "twist-family"
+    assert _validate(capsys.readouterr().out)["kind"] == "twist-family-race"
+    assert main(["twists", "5", "t", "t^2 + 1", "--degrees", "1,2", "--json", "-"]) == 0
+    b = _validate(capsys.readouterr().out)
+    assert b["kind"] == "twist-family" and all(c["kind"] == "twist-family-race" for c in b["certificates"])
 
 
 def test_written_certificate_files_validate(tmp_path):
