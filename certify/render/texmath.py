@@ -60,7 +60,7 @@ def _sym(name: str) -> str:
 def _math_expr(e: str) -> str:
     """A plain-text formula (no prose) in LaTeX math syntax (without the $ signs)."""
     e = e.replace("+/-", r"\pm ").replace("<=", r"\le ").replace(">=", r"\ge ").replace("!=", r"\ne ")
-    e = e.replace("->", r"\to ").replace("*", r"\cdot ")
+    e = e.replace("->", r"\to ").replace("*", r"\cdot ").replace(" vs ", r"\ \text{vs}\ ")
     e = re.sub(r"\|\|([^|]*)\|\|", r"\\lVert \1\\rVert ", e)
     e = re.sub(r"\|([^|]*)\|", r"\\lvert \1\\rvert ", e)
     e = re.sub(r"\boo\b", r"\\infty", e)
@@ -102,6 +102,8 @@ _RUN = re.compile(r"(?:" + _OPERAND + _JOIN + r")*" + _TOKEN + r"(?:" + _JOIN + 
 def tex_text(text) -> str:
     """Plain text as LaTeX: one line, specials escaped, formulas in math mode, `code` as tex_code."""
     s = " ".join(str(text).split())
+    # a project file named in prose (docs/function_fields.md) is code, not a formula
+    s = re.sub(r"(?<![`\w/])((?:docs|certify|tests|bench|templates)/[\w./-]*\w)", r"`\1`", s)
     out = []
     pos = 0
     # code spans first: `certify verify FILE`

@@ -156,6 +156,11 @@ def test_every_kind_has_no_ascii_formula(kind_document):
         for pat in ASCII_FORMULAS + MORE_ASCII:
             found = re.findall(r".{0,30}" + pat + r".{0,30}", prose)
             assert not found, f"{kind} {name}: text-mode ASCII formula {pat!r}: {found[:3]}"
+        # a file name is never set as a formula (docs/function$_{fields}$.md)
+        body = (out / name).read_text().split("\\begin{document}", 1)[-1]
+        body = re.sub(r"(?m)(?<!\\)%.*$", "", body)
+        bad = re.findall(r".{0,20}(?<!\\texttt\{)docs/.{0,30}", body)
+        assert not bad, f"{kind} {name}: a file name not set as code: {bad[:2]}"
 
 
 def test_every_kind_compiles_standalone_and_as_a_fragment(kind_document):
