@@ -12,7 +12,6 @@ Certificates, verify and the referee check take the same race as
 
 from __future__ import annotations
 
-import json
 import shlex
 import sys
 

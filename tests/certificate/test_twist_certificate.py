@@ -263,3 +263,12 @@ def test_render_markdown_and_latex(clean, tmp_path):
     assert "all 20 twists" in md and "f = t^2 + 4" in md and "certify verify fam.json" in md
     tex = (tmp_path / "fam.tex").read_text()
     assert r"\begin{document}" in tex and "elliptic" in tex
+
+
+def test_python_api_gives_the_family_certificate():
+    from certify.api import twist_family_certificate, verify
+
+    cert = twist_family_certificate(5, "t", "t^2 + 1", 1)
+    # degree 1: the five twists by t + a, each density exact; their mean 3/10 exactly
+    assert cert.kind == "twist-family-race" and cert.answer["exact"] == "3/10"
+    assert len(cert.spectrum["members"]) == 5 and verify(cert).ok
