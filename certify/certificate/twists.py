@@ -85,7 +85,7 @@ def _ends(lo: Fraction, hi: Fraction) -> dict:
 def member_record(m) -> dict:
     return {"f": m.f, "conductor_degree": m.conductor_degree, "l_degree": m.l_degree,
             "rank": m.rank, "sign": m.sign, "l_coefficients": list(m.l_coefficients),
-            "confirmed_by_degrees": list(m.confirmed), "status": m.status,
+            "confirmed_by_degrees": list(m.confirmed), "status": m.status, "assumed": list(m.assumed),
             "density": None if m.density is None else _ends(m.density.lower, m.density.upper)}
 
 
@@ -165,6 +165,9 @@ def evidence_sentence(kind: str, data: dict) -> str:
         return (f"L(E_f, u) computed for {data['members']} of the {data['population_listed']} members "
                 "listed, each from point counts and the functional equation, its inverse roots enclosed "
                 "by Arb and checked to have modulus q (Weil's theorem)")
+    if kind == "torsion-only":
+        return (f"none of the {data['members']} certified members assumes a hypothesis: every inverse root "
+                "of each is q times a root of unity (exact cyclotomic factors), so each density is exact")
     if kind == "relation-search":
         return (f"LLL relation search among the angles of each of the {data['members']} certified members; "
                 f"{data['relation_case']} member(s) whose angles satisfy relations (each confirmed exactly) "
@@ -178,10 +181,13 @@ def evidence_data(members: list) -> dict:
     computed = sum(1 for m in members if m["l_coefficients"])
     certified = sum(1 for m in members if m["density"] is not None)
     rel = sum(1 for m in members if str(m["status"]).startswith("certified on the orbit"))
+    assuming = sum(1 for m in members if m["density"] is not None and m["assumed"])
+    li = (("relation-search", {"members": certified, "relation_case": rel,
+                               "not_certified": len(members) - certified}) if assuming
+          else ("torsion-only", {"members": certified}))
     return {"RH for each L(E_f,u)": [("inverse-roots", {"members": computed,
                                                         "population_listed": len(members)})],
-            "LI for each member": [("relation-search", {"members": certified, "relation_case": rel,
-                                                        "not_certified": len(members) - certified})]}
+            "LI for each member": [li]}
 
 
 def hypothesis_records(hypotheses, members: list) -> list:

@@ -134,7 +134,10 @@ def family_screen(results, c: float) -> str:
     lines = []
     for r in results:
         s = r.summary()
-        mean = f"[{s['mean']['lower']}, {s['mean']['upper']}]" if s["mean"] else "-"
+        if r.mean is not None and r.mean.width == 0:
+            mean = f"= {r.mean.lower} exactly"  # every member's density is exact
+        else:
+            mean = f"[{s['mean']['lower']}, {s['mean']['upper']}]" if s["mean"] else "-"
         w = interval_text(r.within[0], r.within[1], 3) if r.within is not None else "-"
         lines.append(
             f"d = {r.twist_degree}: {s['certified']}/{s['members']} members certified "
@@ -143,7 +146,8 @@ def family_screen(results, c: float) -> str:
             f"share within {c:g}/d of 1/2 {w}; ranks {s['rank_counts']}; "
             f"{s['relation_case']} with relations among the angles ({s['wide_enclosures_over_0.01']} enclosures "
             f"wider than 0.01); {s['seconds']:.1f} s")
-    lines.append("  hypotheses: RH for every L(E_f, u) [theorem]; LI for each member [assumed, LLL evidence]")
+    if results:
+        lines.append("  hypotheses: " + "; ".join(f"{h.name} [{h.status}]" for h in results[-1].hypotheses))
     lines.append(f"  {caution_text(results[-1].hypotheses) if results else CAUTION}")
     return "\n".join(lines)
 

@@ -137,6 +137,20 @@ def _forged_evidence(d):
     e["text"] = evidence_sentence(e["kind"], e["data"])
 
 
+def _li_claimed_verified(d):
+    """Every member's assumption erased and LI stated as verified, consistently (a careful forger)."""
+    from certify.certificate.twists import evidence_data, evidence_sentence
+
+    for m in d["spectrum"]["members"]:
+        m["assumed"] = []
+    h = _hyp(d, "LI")
+    h.update(status="verified", statement="no certified member has non-torsion inverse roots: nothing to assume")
+    kind, data = evidence_data(d["spectrum"]["members"])["LI for each member"][0]
+    h["evidence"] = [{"kind": kind, "text": evidence_sentence(kind, data), "data": data}]
+    d["caution"] = ("Unconditional result: no hypothesis is assumed (each one listed is a theorem or was "
+                    "verified in full by this computation). Re-check this file with `certify verify`.")
+
+
 def _histogram_moved(d):
     c = _s(d)["histogram"]["counts"]
     i = next(j for j, x in enumerate(c) if x)
@@ -182,6 +196,8 @@ TAMPER = {
     "member density removed": lambda d: _m(d).update(density=None),
     "hypothesis removed": lambda d: d["hypotheses"].pop(),
     "LI upgraded to theorem": lambda d: _hyp(d, "LI").update(status="theorem"),
+    "LI claimed verified, members' assumptions erased consistently": _li_claimed_verified,
+    "member assumption erased": lambda d: _m(d).update(assumed=[]),
     "RH downgraded": lambda d: _hyp(d, "RH").update(status="assumed"),
     "evidence sentence changed": lambda d: _hyp(d, "LI")["evidence"][0].update(text="LI proven"),
     "evidence data forged with its sentence": _forged_evidence,
@@ -243,6 +259,11 @@ def test_several_degrees_bundle_verifies_and_a_tampered_entry_fails(tmp_path, ca
     # degree 1: the five twists by t + a; every member's density is exact, so is the mean
     one = b["certificates"][0]
     assert one["answer"]["exact"] == "3/10" and len(one["spectrum"]["members"]) == 5
+    # no member's density assumes anything there: the caution says so; degree 2 assumes LI
+    assert one["caution"].startswith("Unconditional result")
+    assert {h["name"]: h["status"] for h in one["hypotheses"]}["LI for each member"] == "verified"
+    assert b["certificates"][1]["caution"].startswith("Conditional result") and "LI" in b["caution"]
+    assert "mean = 3/10 exactly" in capsys.readouterr().out
     assert main(["verify", str(out)]) == 0
     assert main(["verify", str(tmp_path / "dir")]) == 0
     capsys.readouterr()
