@@ -223,8 +223,10 @@ def family_certificate(R, target: Fraction, seconds: float | None = None) -> Cer
     P = R.parameters
     members = [member_record(m) for m in R.members]
     if not any(m["density"] is not None for m in members):
-        raise Inconsistent("not certified: no member of the family was certified, so there is no "
-                           "mean density to certify")
+        from ..errors import PrecisionExhausted
+
+        raise PrecisionExhausted("not certified: no member of the family was certified, so there is "
+                                 "no mean density to certify")
     from ..curves.model import _check_field
 
     params = {"q": int(_check_field(P["q"]).q), "A": P["A"], "B": P["B"], "n": P["n"], "d": P["d"], "mode": P["mode"],
