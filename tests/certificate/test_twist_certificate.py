@@ -293,3 +293,19 @@ def test_python_api_gives_the_family_certificate():
     # degree 1: the five twists by t + a, each density exact; their mean 3/10 exactly
     assert cert.kind == "twist-family-race" and cert.answer["exact"] == "3/10"
     assert len(cert.spectrum["members"]) == 5 and verify(cert).ok
+
+
+def test_a_seeded_sample_with_a_relation_case_member_verifies(tmp_path):
+    """Twelve of the 7^3 - 7^2 = 294 cubic twists of y^2 = x^3 + t x + t^2 + 3 over F_7 (seed 5); one
+    member's angles satisfy relations (certified on the orbit closure); a changed seed fails."""
+    p = tmp_path / "s.json"
+    assert main(["twists", "7", "t", "t^2 + 3", "--degrees", "3", "--sample", "12", "--seed", "5",
+                 "--width", "1e-3", "--json", str(p)]) == 0
+    d = json.loads(p.read_text())
+    sp = d["spectrum"]
+    assert sp["sampled"] and len(sp["members"]) == 12 and sp["population"] <= 294
+    assert sp["summary"]["relation_case"] >= 1
+    assert main(["verify", str(p)]) == 0
+    d["question"]["seed"] = d["parameters"]["seed"] = 6
+    p.write_text(json.dumps(d))
+    assert main(["verify", str(p)]) != 0
