@@ -10,6 +10,8 @@ up, enclosure ends are decimals rounded outward.
 
 from __future__ import annotations
 
+import functools
+
 import hashlib
 import json
 from fractions import Fraction
@@ -301,23 +303,39 @@ def _item(kind: str, data: dict, rh: str = "GRH", **keys) -> dict:
     return {"kind": kind, **keys, "text": item["text"], "data": data}
 
 
+@functools.lru_cache(maxsize=4096)
+def _zero_count(c: int, n: int, parity: int, T: Fraction):
+    """The argument-principle count of zeros of L(s, chi_{c,n}) up to height T (None when
+    precision is exhausted).  Memoised per process: a table writes one certificate per
+    row and the rows of one modulus share their L-functions and heights, so each count is
+    proven once per worker instead of once per row (the count is a deterministic function
+    of its arguments; verify recounts independently)."""
+    from .zerocount import count_zeros
+
+    for prec in (64, 128, 256):
+        try:
+            return count_zeros(c, n, parity, T, prec=prec)[0]
+        except PrecisionExhausted:
+            continue
+    return None
+
+
+@functools.lru_cache(maxsize=4096)
+def _refined(c: int, n: int, mid: str, rad: str, bits: int) -> dict:
+    """The stored ordinate (mid, rad) of L(s, chi_{c,n}) refined to 2^-bits (memoised per
+    process, for the same reason as :func:`_zero_count`)."""
+    return ball_record(refine_ordinate(c, n, ball_of({"mid": mid, "rad": rad}), bits))
+
+
 def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH") -> dict:
     """GRH to the isolation height for one L-function: argument-principle count against the
     sign changes (so no zero below the height is missing, on or off the line)."""
-    from .zerocount import count_zeros
-
     c, n = lf["conductor"], lf["label"]
     key = f"{c}.{n}"
     T = Fraction(height)
     ends = sorted(exact_ends(ball_of(z)) for z in zeros)
     found = sum(1 for lo, hi in ends if hi < T)
-    N = None
-    for prec in (64, 128, 256):
-        try:
-            N, _ = count_zeros(c, n, lf["parity"], T, prec=prec)
-            break
-        except PrecisionExhausted:
-            continue
+    N = _zero_count(c, n, lf["parity"], T)
     if N is None:
         return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
     return _item("zero-count", {"established": True, "height": height, "count": N,
@@ -374,8 +392,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             if hi - lo <= Fraction(1, 2**RELATION_WIDTH_BITS):
                 rec = {"mid": z["mid"], "rad": z["rad"]}  # already narrow: the stored zero itself
             else:
-                rec = ball_record(refine_ordinate(lf["conductor"], lf["label"], zb,
-                                                  RELATION_WIDTH_BITS))
+                rec = dict(_refined(lf["conductor"], lf["label"], z["mid"], z["rad"],
+                                    RELATION_WIDTH_BITS))
             refined.append((lf, rec, ball_of(rec)))
         rs = relation_search([b for _, _, b in refined], RELATION_SCALE_BITS)
         li_ev.append(_item("integer-relation-search", {
