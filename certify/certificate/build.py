@@ -301,23 +301,23 @@ def _item(kind: str, data: dict, rh: str = "GRH", **keys) -> dict:
     return {"kind": kind, **keys, "text": item["text"], "data": data}
 
 
-def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH") -> dict:
+def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH",
+                         counts: dict | None = None) -> dict:
     """GRH to the isolation height for one L-function: argument-principle count against the
-    sign changes (so no zero below the height is missing, on or off the line)."""
-    from .zerocount import count_zeros
+    sign changes (so no zero below the height is missing, on or off the line).
+
+    ``counts`` holds the counts of :func:`zerocount.zero_counts` (every character of a
+    conductor counted at once); without it this L-function is counted alone."""
+    from .zerocount import zero_counts
 
     c, n = lf["conductor"], lf["label"]
     key = f"{c}.{n}"
     T = Fraction(height)
     ends = sorted(exact_ends(ball_of(z)) for z in zeros)
     found = sum(1 for lo, hi in ends if hi < T)
-    N = None
-    for prec in (64, 128, 256):
-        try:
-            N, _ = count_zeros(c, n, lf["parity"], T, prec=prec)
-            break
-        except PrecisionExhausted:
-            continue
+    if counts is None or (c, n) not in counts:
+        counts = zero_counts([(c, n, lf["parity"], T)])
+    N = counts[(c, n)]
     if N is None:
         return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
     return _item("zero-count", {"established": True, "height": height, "count": N,
@@ -332,6 +332,10 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
     rh = riemann_hypothesis_name(result.question)
     grh_ev, li_ev = [], []
     ordinates = []  # (height, group index, l index, zero ball) for the relation search
+    from .zerocount import zero_counts
+
+    counts = zero_counts([(lf["conductor"], lf["label"], lf["parity"], rec["isolation_height"])
+                          for rec in spectrum["groups"] for lf in rec["l_functions"]])
     for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
         prec = int(result.parameters.get("working_precision_bits", 128))
         # evidence from the stored (re-parsed) balls, exactly as verify will recompute it
@@ -350,7 +354,7 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                                 rh, l_function=f"{c}.{n}"))
         for li, lf in enumerate(rec["l_functions"]):
             grh_ev.append(_zero_count_evidence(lf, [z for z in rec["zeros"] if z["l"] == li],
-                                               rec["isolation_height"], rh))
+                                               rec["isolation_height"], rh, counts))
         grh_ev.append(_item("moment-completeness",
                             {"complete_below": decimal_down(cons["complete_below"], 6),
                              "moment_index": cons["moment_index"]}, rh, group=g.label))
