@@ -214,7 +214,8 @@ def check_ecq_evidence(cert, E, report) -> bool:
             parity_ok = (r % 2 == 0) == (eps == 1)
             st = ball_of(cs[r], "central coefficient") if len(cs) == r + 1 else None
             good = (parity_ok and st is not None and val.rad() < arb(2) ** -40 and
-                    not val.contains(0) and _overlap(st, val))
+                    not val.contains(0) and not st.contains(0) and st.rad() < arb(2) ** -30
+                    and _overlap(st, val))
             what = "Lambda(1) = (sqrt N/2 pi) L(E, 1)" if r == 0 else "Lambda'(1)"
             ok &= report.add(f"E/Q evidence: rank {r} re-proved: {what} by the series over the "
                              f"counted a_n ({M} terms) excludes 0 and meets the stored value",
