@@ -103,7 +103,11 @@ def _rebuild_checked(cert: Certificate, report) -> Certificate:
 
     _limits(cert)
     E = curve_from_ainvs(list(cert.question["ainvs"]))
-    if not check_ecq_evidence(cert, E, report):
+    try:
+        ok = check_ecq_evidence(cert, E, report)
+    except AttributeError as exc:  # a stored object where a list or a number belongs
+        raise ValueError(f"malformed spectrum data ({exc})") from None
+    if not ok:
         raise Inconsistent("the evidence re-derived independently disagrees with the stored "
                            "one (see the checks above); the recount was not run")
     return _rebuild(cert)

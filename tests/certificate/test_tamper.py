@@ -577,6 +577,9 @@ ECQ.update({
     "rank upper bound changed": lambda d: d["spectrum"]["analytic_rank"].update(upper_bound=3),
     "power sum removed": lambda d: d["spectrum"]["power_sums_all_zeros"].pop(),
     "variance widened": lambda d: d["spectrum"]["variance"].update(rad="10"),
+    "crafted: rank report a list": lambda d: d["spectrum"].update(analytic_rank=[]),
+    "crafted: local data of integers": lambda d: _ecq_curve(d).update(local_data=[11]),
+    "crafted: rank 10^9": lambda d: d["spectrum"]["analytic_rank"].update(value=10**9),
 })
 for _name, _f in _generic("ecq-race").items():
     if _name != "theorem downgraded":  # every ecq-race hypothesis is assumed
@@ -593,7 +596,7 @@ ECQ_DEFAULT = {
     "caution rewritten", "certified digits inflated", "enclosure narrowed",
     "budget entry duplicated", "parameter conductor changed", "crafted: digits 99",
     "crafted: GRH height 1e9", "crafted: conductor above the limit", "crafted: zero radius 1e30",
-    "variance widened",
+    "variance widened", "crafted: rank report a list",
 }
 
 CASES = ([("dirichlet-race", k) for k in DIRICHLET] + [("ffield-race", k) for k in FFIELD]
