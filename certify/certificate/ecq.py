@@ -20,7 +20,7 @@ from .recount import (answer_from_enclosure, budget_records, hypothesis_records,
                       timed_report)
 
 DEFINITION = ("logarithmic density: lim_{X -> oo} (1/log X) int_2^X 1[sum_{p <= x} a_p/sqrt(p) > 0] "
-              "dx/x, equal to P(X > 0) for the limit law of docs/elliptic_curves_q.md (section 5)")
+              "dx/x, equal to P(X > 0) for the limit law of `docs/elliptic_curves_q.md` (section 5)")
 LIMITS = {"digits": 12, "conductor": 10**5}
 
 
