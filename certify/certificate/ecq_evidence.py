@@ -35,7 +35,6 @@ from __future__ import annotations
 
 import math
 import re
-from fractions import Fraction
 
 from ..arith import arb, workprec
 from .model import ball_of

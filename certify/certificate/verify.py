@@ -25,7 +25,7 @@ from fractions import Fraction
 from ..arith import arb, workprec
 from ..density.bessel import (TRUNCATION_ISOLATED, BesselVariable, ResidualGroup,
                               density_enclosure)
-from ..errors import BadInput, CertifyError, Inconsistent, PrecisionExhausted
+from ..errors import BadInput, CertifyError, Inconsistent
 from ..race.question import (LI_KINDS, RaceQuestion, mean_of, prime_vs_li, residue_race,
                              riemann_hypothesis_name, spectral_groups, two_way, weighted)
 from ..source.dirichlet import primitive_character
