@@ -424,7 +424,9 @@ def count_zeros_many(conductor: int, requests: dict, prec: int = 64,
     A height of 0 counts nothing (N = 0, no contour).  Characters counted to the same
     height share the evaluations of their top edge, all share the bottom edge.
     """
-    out = {n: 0 for n, (_, h) in requests.items() if Fraction(h) <= 0}
+    # a height of 0 counts nothing; a negative height is no height (not established)
+    out = {n: (0 if Fraction(h) == 0 else None)
+           for n, (_, h) in requests.items() if Fraction(h) <= 0}
     todo = {n: (p, Fraction(h)) for n, (p, h) in requests.items() if Fraction(h) > 0}
     if not todo:
         return out
@@ -477,8 +479,8 @@ def count_zeros_many(conductor: int, requests: dict, prec: int = 64,
 def count_zeros_batched(conductor: int, requests: dict) -> dict:
     """{label: N or None}: :func:`count_zeros_many` at 64, 128 and 256 bits, then, for any
     character still undecided, :func:`count_zeros` one character at a time (same precisions)."""
-    out = {}
-    left = dict(requests)
+    out = {n: None for n, (_, h) in requests.items() if Fraction(h) < 0}
+    left = {n: v for n, v in requests.items() if Fraction(v[1]) >= 0}
     for prec in (64, 128, 256):
         if not left:
             break
