@@ -185,6 +185,27 @@ def curve_certificate(q, A: str, B: str, mode: str = "cumulative", digits: int =
     return certify_curve(q, A, B, mode, Fraction(1, 10**digits), confirm)[1]
 
 
+def twist_family_certificate(q, A: str, B: str, degree: int, extension: int = 1,
+                             sample: int | None = None, seed: int = 0, mode: str = "cumulative",
+                             digits: int = 3, c: float = 1.0):
+    """The certificate (kind ``twist-family-race``) of a quadratic-twist family: the mean of the
+    members' trace-race densities, every member's L-polynomial and enclosure, the distribution.
+
+    Examples
+    --------
+    >>> from certify.api import twist_family_certificate, verify
+    >>> cert = twist_family_certificate(5, "t", "t^2 + 1", 1)
+    >>> cert.answer["exact"], verify(cert).ok
+    ('3/10', True)
+    """
+    from fractions import Fraction
+
+    from .certificate.twists import certify_family
+
+    return certify_family(q, A, B, degree, extension, sample, seed, mode, Fraction(1, 10**digits),
+                          c)[1]
+
+
 def verify(cert_or_path):
     """Re-check a certificate (object or file) from what it stores; returns the report
     (``.ok``, ``.checks``, ``.failures``).

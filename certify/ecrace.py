@@ -254,7 +254,7 @@ class ECRaceResult(NotebookDisplay):
 COUNT_RACE_NOTE = (
     "The race #{p <= x : a_p > 0} against #{p <= x : a_p < 0} is not certified by certify: "
     "its explicit formula involves the zeros of every symmetric power L-function of E, "
-    "which this method does not reach (docs/elliptic_curves_q.md, section 7).")
+    "which this method does not reach (`docs/elliptic_curves_q.md`, section 7).")
 
 
 def _model_ordinates(N: int, height: float) -> list[float]:

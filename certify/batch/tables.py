@@ -396,15 +396,23 @@ def certificate_index(out: str, rows: list) -> list:
     import json
 
     index = []
+    read: dict = {}  # path -> (enclosure, label): rows read by symmetry share a certificate
     for row in rows:
         if row.lower is None or not row.source.startswith("results" + os.sep):
             continue
         rel = os.path.join("certificates", row.source[len("results" + os.sep):])
         path = os.path.join(out, rel)
-        if not os.path.exists(path):
+        if path not in read:
+            if not os.path.exists(path):
+                read[path] = None
+            else:
+                with open(path, encoding="utf-8") as fh:
+                    c = json.load(fh)
+                read[path] = {"answer": {"enclosure": c["answer"]["enclosure"]},
+                              "question": {"label": c["question"]["label"]}}
+        cert = read[path]
+        if cert is None:
             continue
-        with open(path, encoding="utf-8") as fh:
-            cert = json.load(fh)
         enc = cert["answer"]["enclosure"]
         clo, chi = Fraction(enc["lower"]), Fraction(enc["upper"])
         mid = (row.lower + row.upper) / 2

@@ -10,6 +10,8 @@ up, enclosure ends are decimals rounded outward.
 
 from __future__ import annotations
 
+import functools
+
 import hashlib
 import json
 from fractions import Fraction
@@ -301,25 +303,47 @@ def _item(kind: str, data: dict, rh: str = "GRH", **keys) -> dict:
     return {"kind": kind, **keys, "text": item["text"], "data": data}
 
 
-def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH") -> dict:
-    """GRH to the isolation height for one L-function: argument-principle count against the
-    sign changes (so no zero below the height is missing, on or off the line)."""
-    from .zerocount import MAX_COUNT_CONDUCTOR, count_zeros
+@functools.lru_cache(maxsize=4096)
+def _refined(c: int, n: int, mid: str, rad: str, bits: int) -> dict:
+    """The stored ordinate (mid, rad) of L(s, chi_{c,n}) refined to 2^-bits (memoised per
+    process, for the same reason as :func:`_memo_counts`)."""
+    return ball_record(refine_ordinate(c, n, ball_of({"mid": mid, "rad": rad}), bits))
 
+
+_COUNTS: dict = {}  # (conductor, label, parity, height) -> N or None, per process
+
+
+def _memo_counts(requests) -> dict:
+    """:func:`zerocount.zero_counts` of ``requests``, memoised per process: a table writes
+    one certificate per row and the rows of one modulus share their L-functions and
+    isolation heights, so each count is proven once per worker instead of once per row
+    (a count is a deterministic function of its arguments; verify recounts on its own)."""
+    from .zerocount import zero_counts
+
+    keys = [(int(c), int(n), int(p), Fraction(h)) for c, n, p, h in requests]
+    todo = sorted({k for k in keys if k not in _COUNTS})
+    if todo:
+        got = zero_counts(todo)
+        for k in todo:
+            _COUNTS[k] = got[(k[0], k[1])]
+    return {(k[0], k[1]): _COUNTS[k] for k in keys}
+
+
+def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH",
+                         counts: dict | None = None) -> dict:
+    """GRH to the isolation height for one L-function: argument-principle count against the
+    sign changes (so no zero below the height is missing, on or off the line).
+
+    ``counts`` holds the counts of :func:`zerocount.zero_counts` (every character of a
+    conductor counted at once); without it this L-function is counted alone."""
     c, n = lf["conductor"], lf["label"]
     key = f"{c}.{n}"
-    if c > MAX_COUNT_CONDUCTOR:
-        return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
     T = Fraction(height)
     ends = sorted(exact_ends(ball_of(z)) for z in zeros)
     found = sum(1 for lo, hi in ends if hi < T)
-    N = None
-    for prec in (64, 128, 256):
-        try:
-            N, _ = count_zeros(c, n, lf["parity"], T, prec=prec)
-            break
-        except PrecisionExhausted:
-            continue
+    if counts is None or (c, n) not in counts:
+        counts = _memo_counts([(c, n, lf["parity"], T)])
+    N = counts[(c, n)]
     if N is None:
         return _item("zero-count", {"established": False, "height": height}, rh, l_function=key)
     return _item("zero-count", {"established": True, "height": height, "count": N,
@@ -334,6 +358,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
     rh = riemann_hypothesis_name(result.question)
     grh_ev, li_ev = [], []
     ordinates = []  # (height, group index, l index, zero ball) for the relation search
+    counts = _memo_counts([(lf["conductor"], lf["label"], lf["parity"], rec["isolation_height"])
+                          for rec in spectrum["groups"] for lf in rec["l_functions"]])
     for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
         prec = int(result.parameters.get("working_precision_bits", 128))
         # evidence from the stored (re-parsed) balls, exactly as verify will recompute it
@@ -352,7 +378,7 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                                 rh, l_function=f"{c}.{n}"))
         for li, lf in enumerate(rec["l_functions"]):
             grh_ev.append(_zero_count_evidence(lf, [z for z in rec["zeros"] if z["l"] == li],
-                                               rec["isolation_height"], rh))
+                                               rec["isolation_height"], rh, counts))
         grh_ev.append(_item("moment-completeness",
                             {"complete_below": decimal_down(cons["complete_below"], 6),
                              "moment_index": cons["moment_index"]}, rh, group=g.label))
@@ -376,8 +402,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
             if hi - lo <= Fraction(1, 2**RELATION_WIDTH_BITS):
                 rec = {"mid": z["mid"], "rad": z["rad"]}  # already narrow: the stored zero itself
             else:
-                rec = ball_record(refine_ordinate(lf["conductor"], lf["label"], zb,
-                                                  RELATION_WIDTH_BITS))
+                rec = dict(_refined(lf["conductor"], lf["label"], z["mid"], z["rad"],
+                                    RELATION_WIDTH_BITS))
             refined.append((lf, rec, ball_of(rec)))
         rs = relation_search([b for _, _, b in refined], RELATION_SCALE_BITS)
         li_ev.append(_item("integer-relation-search", {

@@ -20,7 +20,7 @@ from .recount import answer_from_enclosure, budget_records, provenance, timed_re
 
 DEFINITION = ("natural density: lim_{N -> oo} (1/N) #{1 <= X <= N : the normalised trace sum is "
               "positive at X}, enclosed by the measure of {limit function > 0} "
-              "(docs/elliptic_curves.md)")
+              "(`docs/elliptic_curves.md`)")
 REFERENCES = (
     "Weil's conjectures, proof for L-functions of elliptic curves over function fields: "
     "La conjecture de Weil II, Publications Mathematiques de l'IHES 52 (1980).",

@@ -44,6 +44,10 @@ def verify_any(cert: Certificate) -> VerifyReport:
         from .ecq import verify_ecq
 
         return verify_ecq(cert)
+    if cert.kind == "twist-family-race":
+        from .twists import verify_twist_family
+
+        return verify_twist_family(cert)
     raise BadInput(f"no verifier for kind {cert.kind!r}")
 
 
@@ -73,6 +77,8 @@ def _verify_file(path: str, seen: set) -> list:
             return [Outcome(path, verify_any(Certificate.from_dict(data, path)))]
         if data["kind"] == "table":
             return _verify_table(path, data, seen)
+        if data["kind"] == "twist-family":
+            return _verify_twist_bundle(path, data)
         if data["kind"] == "order-family":
             from .order import verify_family
 
@@ -80,6 +86,32 @@ def _verify_file(path: str, seen: set) -> list:
         raise BadInput(f"{path}: a {data['kind']!r} document has nothing to verify")
     except CertifyError as exc:
         return [_refused(path, exc)]
+
+
+def _verify_twist_bundle(path: str, data: dict) -> list:
+    """A ``twist-family`` document (``certify twists --json`` for several degrees): each
+    certificate it holds verified, then the bundle's own claims (its degrees, one curve)."""
+    certs = data.get("certificates")
+    if not isinstance(certs, list) or not certs:
+        raise BadInput(f"{path}: a twist-family document holds no certificates")
+    out = []
+    for i, c in enumerate(certs[:100]):
+        if not isinstance(c, dict) or c.get("kind") != "twist-family-race":
+            raise BadInput(f"{path}: entry {i + 1} is not a twist-family-race certificate")
+        cert = Certificate.from_dict(c, f"{path}: degree entry {i + 1}")
+        out.append(Outcome(path, verify_any(cert)))
+    rep = VerifyReport(f"twist families in {os.path.basename(path)}")
+    q = data.get("question") or {}
+    ds = [c["question"]["d"] for c in certs]
+    curves = {(c["question"]["q"], c["question"]["A"], c["question"]["B"], c["question"]["n"],
+               c["question"]["mode"]) for c in certs}
+    rep.add("bundle: the twist degrees listed are those of the certificates, once each",
+            q.get("twist_degrees") == ds and len(set(ds)) == len(ds), f"listed {q.get('twist_degrees')}, "
+            f"certificates {ds}")
+    rep.add("bundle: one curve, field and mode", len(curves) == 1, f"{len(curves)} different")
+    rep.add("bundle: the caution is that of the last certificate", data.get("caution") == certs[-1]["caution"],
+            "differs")
+    return out + [Outcome(path, rep)]
 
 
 def _verify_table(path: str, data: dict, seen: set) -> list:

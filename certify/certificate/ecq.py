@@ -14,13 +14,13 @@ import shlex
 import time
 from fractions import Fraction
 
-from ..errors import BadInput
+from ..errors import BadInput, Inconsistent
 from .model import Certificate, ball_record
 from .recount import (answer_from_enclosure, budget_records, hypothesis_records, provenance,
                       timed_report)
 
 DEFINITION = ("logarithmic density: lim_{X -> oo} (1/log X) int_2^X 1[sum_{p <= x} a_p/sqrt(p) > 0] "
-              "dx/x, equal to P(X > 0) for the limit law of docs/elliptic_curves_q.md (section 5)")
+              "dx/x, equal to P(X > 0) for the limit law of `docs/elliptic_curves_q.md` (section 5)")
 LIMITS = {"digits": 12, "conductor": 10**5}
 
 
@@ -70,7 +70,8 @@ def certify_ecq(ainvs, digits: int, grh_height: float = 0.0):
     return r, ecq_certificate(r, grh_height, time.time() - t0)
 
 
-def _rebuild(cert: Certificate) -> Certificate:
+def _limits(cert: Certificate) -> None:
+    """Refuse, before any work, digits, heights and conductors beyond the recount's limits."""
     from ..source.ellcurve import curve_from_ainvs
 
     p = cert.parameters
@@ -83,9 +84,36 @@ def _rebuild(cert: Certificate) -> Certificate:
     E = curve_from_ainvs(list(cert.question["ainvs"]))
     if E.conductor > LIMITS["conductor"]:
         raise BadInput(f"conductor {E.conductor} above the recount limit {LIMITS['conductor']}")
-    return certify_ecq(E, d, float(gh))[1]
+
+
+def _rebuild(cert: Certificate) -> Certificate:
+    from ..source.ellcurve import curve_from_ainvs
+
+    _limits(cert)
+    E = curve_from_ainvs(list(cert.question["ainvs"]))
+    return certify_ecq(E, cert.parameters["digits"], float(cert.parameters["grh_height"]))[1]
+
+
+def _rebuild_checked(cert: Certificate, report) -> Certificate:
+    """Bound the sizes, re-derive the evidence independently (:mod:`.ecq_evidence`: a_p by
+    point counting, the root number, the rank, the zero-count sentences), then recount;
+    the recount is skipped when an independent check already failed."""
+    from ..source.ellcurve import curve_from_ainvs
+    from .ecq_evidence import check_ecq_evidence
+
+    _limits(cert)
+    E = curve_from_ainvs(list(cert.question["ainvs"]))
+    try:
+        ok = check_ecq_evidence(cert, E, report)
+    except AttributeError as exc:  # a stored object where a list or a number belongs
+        raise ValueError(f"malformed spectrum data ({exc})") from None
+    if not ok:
+        raise Inconsistent("the evidence re-derived independently disagrees with the stored "
+                           "one (see the checks above); the recount was not run")
+    return _rebuild(cert)
 
 
 def verify_ecq(cert: Certificate):
-    """Recount an ``ecq-race`` certificate (a :class:`~.verify.VerifyReport`)."""
-    return timed_report(cert.label, cert, _rebuild)
+    """Recount an ``ecq-race`` certificate (a :class:`~.verify.VerifyReport`), after the
+    independent re-derivation of its evidence (:mod:`.ecq_evidence`)."""
+    return timed_report(cert.label, cert, _rebuild_checked, with_report=True)

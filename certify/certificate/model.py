@@ -31,7 +31,8 @@ SCHEMA_VERSION = 2
 SUPPORTED_VERSIONS = (2,)
 
 #: Kinds of certificate: one certified number each, re-checked by ``certify verify``.
-CERTIFICATE_KINDS = ("dirichlet-race", "ffield-race", "curve-race", "order-race", "ecq-race")
+CERTIFICATE_KINDS = ("dirichlet-race", "ffield-race", "curve-race", "order-race", "ecq-race",
+                     "twist-family-race")
 #: Kinds of other documents certify writes with ``--json`` (same envelope, same schema).
 REPORT_KINDS = ("verify-report", "referee-report", "table", "l-polynomials", "twist-family",
                 "cache-report", "batch-report", "ec-race-result", "order-result",

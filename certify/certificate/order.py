@@ -186,8 +186,9 @@ def _check_limits(cert: Certificate) -> None:
 
 def verify_order(cert: Certificate, report) -> None:
     """Re-check an ordering's certificate into ``report``."""
-    from .verify import _check_zero_list, _contains, _overlap, _q, _verify_hypotheses
+    from .verify import _CENTRAL, _check_zero_list, _contains, _overlap, _q, _verify_hypotheses
 
+    _CENTRAL.clear()  # central values are recomputed here, none kept from another certificate
     params = cert.parameters
     prec = int(params["working_precision_bits"])
     digits = int(params["digits_requested"])

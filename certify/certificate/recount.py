@@ -10,7 +10,8 @@ stored field with the re-derived one:
 
 * exact data (coefficients, relations, labels, sentences, statuses, parameters)
   must be equal;
-* balls stored as ``{mid, rad}`` must meet the re-derived ones;
+* balls stored as ``{mid, rad}`` must meet the re-derived ones and be at most four times
+  as wide;
 * the stored enclosure must contain the re-derived one, and every stored error
   bound must be at least the re-derived one, term by term, in the same order;
 * width, certified digits and the target flag are recomputed from the stored ends.
@@ -104,7 +105,11 @@ def differences(stored, fresh, path: str = "", out: list | None = None) -> list:
         return out
     if _is_ball(fresh) and _is_ball(stored):
         try:
-            if not _overlap(ball_of(stored), ball_of(fresh)):
+            sb, fb = ball_of(stored), ball_of(fresh)
+            # a stored ball must meet the re-derived one and be no wider than a few times it
+            # (a widened ball would meet anything and say nothing)
+            if not _overlap(sb, fb) or Fraction(stored["rad"]) > 4 * Fraction(fresh["rad"]) \
+                    + Fraction(1, 2**200):
                 out.append(path)
         except Exception:  # a malformed ball is a difference  # noqa: BLE001
             out.append(path)

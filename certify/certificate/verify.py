@@ -25,7 +25,7 @@ from fractions import Fraction
 from ..arith import arb, workprec
 from ..density.bessel import (TRUNCATION_ISOLATED, BesselVariable, ResidualGroup,
                               density_enclosure)
-from ..errors import BadInput, CertifyError, Inconsistent, PrecisionExhausted
+from ..errors import BadInput, CertifyError, Inconsistent
 from ..race.question import (LI_KINDS, RaceQuestion, mean_of, prime_vs_li, residue_race,
                              riemann_hypothesis_name, spectral_groups, two_way, weighted)
 from ..source.dirichlet import primitive_character
@@ -164,6 +164,7 @@ def verify_certificate(cert: Certificate) -> VerifyReport:
     """
     t0 = time.time()
     report = VerifyReport(cert.label)
+    _CENTRAL.clear()
     try:
         _verify(cert, report)
     except CertifyError as exc:
@@ -207,6 +208,41 @@ def check_limits(cert: Certificate) -> None:
         raise BadInput(f"{zeros} zeros stored (limit 20000)")
 
 
+_CENTRAL: dict = {}  # central values re-derived by the batched path of the current verify
+
+
+def _batched_sums(groups, stored_groups) -> dict:
+    """{(conductor, label): (S_1..S_K, L(1/2, chi))} re-derived for every L-function of the
+    stored groups, the characters of one conductor together (one Hurwitz jet per class and a
+    DFT, :func:`certify.spectrum.moments.conductor_power_sums`), at the largest count and
+    accuracy any group of the conductor asks for; conductors with few characters are left
+    to the one-character path.  Nothing stored is used but the sizes (bounded beforehand)."""
+    from ..spectrum.moments import conductor_power_sums, prefer_batch
+
+    want: dict = {}
+    for g, sg in zip(groups, stored_groups):
+        m = sg["moments"]
+        for c, n in g.primitive_keys:
+            k0, b0 = want.setdefault(c, {}).get(n, (0, 0))
+            want[c][n] = (max(k0, int(m["source_count"])), max(b0, int(m["source_bits"])))
+    out = {}
+    for c, labels in want.items():
+        if not prefer_batch(c, len(labels)):
+            continue
+        K = max(k for k, _ in labels.values())
+        B = max(b for _, b in labels.values())
+        for n, v in conductor_power_sums(c, list(labels), K, B).items():
+            out[(c, n)] = v
+    _CENTRAL.clear()
+    _CENTRAL.update({k: v[1] for k, v in out.items()})
+    return out
+
+
+def _central_value(c: int, n: int):
+    cv = _CENTRAL.get((c, n))
+    return cv if cv is not None else central_value(c, n)
+
+
 def _verify(cert: Certificate, report: VerifyReport) -> None:
     check_limits(cert)
     params = cert.parameters
@@ -248,6 +284,7 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
                           for sg in stored_groups],
                       "the stored L-functions are not those the race needs"):
         return
+    batched = _batched_sums(groups, stored_groups)
     for g, sg in zip(groups, stored_groups):
         keys = [tuple(k) for k in g.primitive_keys]
         T = Fraction(sg["isolation_height"])
@@ -266,7 +303,10 @@ def _verify(cert: Certificate, report: VerifyReport) -> None:
         mom = sg["moments"]
         c0, n0 = keys[0]
         parity = primitive_character(c0, n0).parity
-        S = zero_power_sums(c0, n0, parity, int(mom["source_count"]), int(mom["source_bits"]))
+        if (c0, n0) in batched:
+            S = batched[(c0, n0)][0][:int(mom["source_count"])]
+        else:
+            S = zero_power_sums(c0, n0, parity, int(mom["source_count"]), int(mom["source_bits"]))
         div = 2 if g.is_real else 1
         K = int(mom["count"])
         with workprec(prec):
@@ -471,6 +511,12 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
         if e["kind"] == "published-verification":
             report.add("GRH evidence: published verifications (cited, no data)",
                        thaw(e["data"]) == {}, "unexpected data")
+    from .zerocount import zero_counts
+
+    counts = zero_counts([(int(lf["conductor"]), int(lf["label"]),
+                           primitive_character(int(lf["conductor"]), int(lf["label"])).parity,
+                           sg["isolation_height"])
+                          for _, sg, _, _ in group_data for lf in sg["l_functions"]])
     for g, sg, zs, R in group_data:
         cons = moment_consequences(list(R), list(zs), prec=max(prec, 128))
         for li_idx, lf in enumerate(sg["l_functions"]):
@@ -485,8 +531,8 @@ def _verify_hypotheses(cert: Certificate, report: VerifyReport, group_data, prec
                        "the zero count / height differ from the stored spectrum")
             _verify_zero_count(report, ev_grh, key, lf,
                                [z for z in sg["zeros"] if z["l"] == li_idx],
-                               sg["isolation_height"])
-            cv = central_value(lf["conductor"], lf["label"])
+                               sg["isolation_height"], counts)
+            cv = _central_value(int(lf["conductor"]), int(lf["label"]))
             e = next(e for e in ev_li if e["kind"] == "central-value"
                      and e.get("l_function") == key)
             ok = (set(e["data"]) == {"re", "im"} and not cv.contains(0)
@@ -567,15 +613,18 @@ def _text(e, rh: str = "GRH") -> str:
         return "\x00(no text: the data are malformed)"
 
 
-def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros, height: str) -> None:
+def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros, height: str,
+                       counts: dict) -> None:
     """GRH to the isolation height: the argument-principle count at that height must equal
-    the number of stored zeros below it (no zero missing, on or off the line)."""
-    from .zerocount import MAX_COUNT_CONDUCTOR, count_zeros
-
+    the number of stored zeros below it (no zero missing, on or off the line).  ``counts``
+    holds the counts re-derived by :func:`zerocount.zero_counts` (every character of a
+    conductor at once) from the conductor, label, parity (recomputed) and stored height."""
     e = next(e for e in ev_grh if e["kind"] == "zero-count" and e.get("l_function") == key)
     name = (f"{'RH' if lf['conductor'] == 1 else 'GRH'} evidence for {_lname(lf)}: "
             "argument-principle count, no zero missing below the isolation height")
     d = thaw(e["data"])
+    from .zerocount import MAX_COUNT_CONDUCTOR
+
     if int(lf["conductor"]) > MAX_COUNT_CONDUCTOR:
         # not attempted above this conductor (cost ~ q per box): the certificate must say so
         report.add(name, d == {"established": False, "height": height},
@@ -583,15 +632,7 @@ def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros, height
         return
     T = Fraction(height)
     found = sum(1 for z in zeros if exact_ends(ball_of(z))[1] < T)
-    N = None
-    for p in (64, 128, 256):
-        try:
-            N, _ = count_zeros(int(lf["conductor"]), int(lf["label"]),
-                               primitive_character(int(lf["conductor"]), int(lf["label"])).parity,
-                               T, prec=p)
-            break
-        except PrecisionExhausted:
-            continue
+    N = counts.get((int(lf["conductor"]), int(lf["label"])))
     if N is None:
         report.add(name, False, f"the argument-principle count at {float(T):.6g} could not be "
                    "established")

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 import shlex
 import sys
 
@@ -107,13 +106,16 @@ def run_ecrace(args) -> int:
     with stages("ecrace", progress_enabled(args)) as say:
         say(f"certifying the trace race of E (conductor {E.conductor}) to width 1e-{digits}")
         result = certify_ec_race(E, digits, command_line=cmd, grh_height=grh)
-        if args.certificate:
+        cert = None
+        if args.certificate or args.json:
             from ..certificate.ecq import ecq_certificate
+
+            cert = ecq_certificate(result, grh, __import__("time").time() - t_run)
+        if args.certificate:
             from ..certificate.model import write_certificate
 
             say("writing the certificate")
-            write_certificate(ecq_certificate(result, grh, __import__("time").time() - t_run),
-                              args.certificate)
+            write_certificate(cert, args.certificate)
         if bound:
             say(f"observed race: a_p for p <= {bound}")
             obs = observe(E, bound)
@@ -122,18 +124,14 @@ def run_ecrace(args) -> int:
             raise BadInput("--plot needs --observe X > 0 (the observed race to plot)")
         plot_observation(obs, result, args.plot)
     if args.json:
-        d = result.to_dict()
-        if obs is not None:
-            d["observed"] = obs.as_dict()
-        from ..certificate.model import envelope
-
-        text = json.dumps(envelope("ec-race-result", d), indent=2, default=str)
+        # --json writes the certificate (kind ecq-race): the one shape of every certify document,
+        # re-checked by `certify verify`; the observed race is on the screen and in --plot
         if args.json == "-":
-            sys.stdout.write(text + "\n")
+            sys.stdout.write(cert.to_json())
         else:
             from ..io import write_atomic
 
-            write_atomic(args.json, text + "\n")
+            write_atomic(args.json, cert.to_json())
     if args.json != "-":
         print(screen(result, obs))
     return 0 if result.target_met else 5
@@ -158,7 +156,9 @@ def register(sub) -> None:
                    help="also verify GRH for L(E,s) up to height T (0 <= T <= 200, at most the "
                         "isolation height) by counting zeros with the argument principle (slow; "
                         "default 0: skip)")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--json", metavar="PATH",
+                   help="write the certificate (kind ecq-race) as JSON (- for stdout; certify verify "
+                   "re-checks it)")
     p.add_argument("--certificate", metavar="PATH",
                    help="write a certificate (kind ecq-race) that `certify verify` re-checks by a recount")
     from .options import add_limits, add_progress

@@ -12,7 +12,6 @@ Certificates, verify and the referee check take the same race as
 
 from __future__ import annotations
 
-import json
 import shlex
 import sys
 
@@ -169,27 +168,27 @@ def run_lirace(args) -> int:
                                  command_line="certify " + " ".join(shlex.quote(a) for a in tail))
         say("RH to a height: the argument-principle count of zeta's zeros")
         rh = rh_to_height(result)
-    if args.json:
-        d = result.to_dict()
-        d["rh_to_height"] = rh
-        from ..certificate.model import envelope
-
-        # the result in the common envelope; --certificate DIR writes the certificate
-        text = json.dumps(envelope("li-race-result", d), indent=2, default=str)
-        if args.json == "-":
-            sys.stdout.write(text + "\n")
-        else:
-            from ..io import write_atomic
-
-            write_atomic(args.json, text + "\n")
-    if args.json != "-":
-        print(screen(result, rh))
-    if args.certificate:
-        from ..certificate.build import certificate_from_result, reproduce_command
-        from ..render.files import write_files
+    cert = None
+    if args.json or args.certificate:
+        from ..certificate.build import certificate_from_result
 
         # the certificate of the final round (its absolute target), re-checkable by verify
         cert = certificate_from_result(result, store)
+    if args.json:
+        # --json writes the certificate: the one shape of every certify document (kind
+        # dirichlet-race, question pi<li or pi>li, the small side in answer.small_side)
+        if args.json == "-":
+            sys.stdout.write(cert.to_json())
+        else:
+            from ..io import write_atomic
+
+            write_atomic(args.json, cert.to_json())
+    if args.json != "-":
+        print(screen(result, rh))
+    if args.certificate:
+        from ..certificate.build import reproduce_command
+        from ..render.files import write_files
+
         paths = write_files(cert, args.certificate, formats)
         out = sys.stderr if args.json == "-" else sys.stdout
         print(f"  certificate of the final round (reproduce: "
@@ -216,7 +215,9 @@ def register(sub) -> None:
                    f"default {DEFAULT_SIG_DIGITS})")
     p.add_argument("--digits", "-d", default=None, metavar="D",
                    help=f"instead: an absolute width 10^-D for delta (1..{MAX_DIGITS})")
-    p.add_argument("--json", metavar="PATH", help="write the machine-readable result (- for stdout)")
+    p.add_argument("--json", metavar="PATH",
+                   help="write the certificate of the final round as JSON (- for stdout; "
+                   "certify verify re-checks it)")
     p.add_argument("--certificate", metavar="DIR",
                    help="also write the certificate of the final round into DIR (certify verify "
                    "re-checks it)")

@@ -134,7 +134,10 @@ def family_screen(results, c: float) -> str:
     lines = []
     for r in results:
         s = r.summary()
-        mean = f"[{s['mean']['lower']}, {s['mean']['upper']}]" if s["mean"] else "-"
+        if r.mean is not None and r.mean.width == 0:
+            mean = f"= {r.mean.lower} exactly"  # every member's density is exact
+        else:
+            mean = f"[{s['mean']['lower']}, {s['mean']['upper']}]" if s["mean"] else "-"
         w = interval_text(r.within[0], r.within[1], 3) if r.within is not None else "-"
         lines.append(
             f"d = {r.twist_degree}: {s['certified']}/{s['members']} members certified "
@@ -143,7 +146,8 @@ def family_screen(results, c: float) -> str:
             f"share within {c:g}/d of 1/2 {w}; ranks {s['rank_counts']}; "
             f"{s['relation_case']} with relations among the angles ({s['wide_enclosures_over_0.01']} enclosures "
             f"wider than 0.01); {s['seconds']:.1f} s")
-    lines.append("  hypotheses: RH for every L(E_f, u) [theorem]; LI for each member [assumed, LLL evidence]")
+    if results:
+        lines.append("  hypotheses: " + "; ".join(f"{h.name} [{h.status}]" for h in results[-1].hypotheses))
     lines.append(f"  {caution_text(results[-1].hypotheses) if results else CAUTION}")
     return "\n".join(lines)
 
@@ -182,19 +186,21 @@ def run_twists(args) -> int:
             results.append(twist_family(args.q, args.A, args.B, d, n=n, sample=sample, seed=seed,
                                         mode=args.mode, target_width=width, c=c, max_boxes=max_boxes))
             bar.update(1)
-    out = {
-        "question": {"kind": f"quadratic-twist families, trace race ({args.mode})",
-                     "base_curve": results[0].base_curve.describe(), "twist_degrees": degrees},
-        "density": results[-1].to_dict()["density"],
-        "families": [r.to_dict() for r in results],
-        "hypotheses": results[-1].to_dict()["hypotheses"],
-        "error_budget": results[-1].to_dict()["error_budget"],
-        "parameters": {"q": args.q, "A": args.A, "B": args.B, "n": n, "degrees": degrees, "sample": sample,
-                       "seed": seed, "c": c, "mode": args.mode, "width": width},
-        "caution": CAUTION,
-    }
+    from fractions import Fraction
+
+    from ..certificate.twists import family_certificate
+
+    # one certificate per twist degree (kind twist-family-race), each re-checked by `certify verify`
+    target = Fraction(repr(width))
+    certs = ([family_certificate(r, target, r.seconds) for r in results]
+             if (args.json or args.out) else [])
+    out = {}
     if args.out:
         os.makedirs(args.out, exist_ok=True)
+        from ..io import write_atomic
+
+        for r, cert in zip(results, certs):
+            write_atomic(os.path.join(args.out, f"twists-d{r.twist_degree}.json"), cert.to_json())
     plot_path = args.plot or (os.path.join(args.out, "twists-histogram.png") if args.out else None)
     table_path = args.table or (os.path.join(args.out, "twists-table.md") if args.out else None)
     if plot_path:
@@ -206,9 +212,19 @@ def run_twists(args) -> int:
         text = "\n\n".join(f"## twist degree {r.twist_degree}\n\n{r.table()}" for r in results)
         _write(text, table_path)
     if args.json:
-        from ..certificate.model import envelope
+        if len(certs) == 1:
+            # one degree: the certificate itself
+            _write(certs[0].to_json().rstrip("\n"), args.json)
+        else:
+            # several degrees: one certificate per degree in a bundle that `certify verify` expands
+            from ..certificate.model import envelope
 
-        _write(json.dumps(envelope("twist-family", out), indent=2, default=str), args.json)
+            bundle = envelope("twist-family", {
+                "question": {"kind": f"quadratic-twist families, trace race ({args.mode})",
+                             "base_curve": results[0].base_curve.describe(), "twist_degrees": degrees},
+                "certificates": [c.to_dict() for c in certs], **out,
+                "caution": certs[-1].caution})
+            _write(json.dumps(bundle, indent=1, ensure_ascii=False), args.json)
     if args.json != "-":
         print(family_screen(results, c))
     return 0

@@ -125,11 +125,13 @@ class MemberResult:
     mean: float | None
     status: str            # "certified" or "not certified: <why>"
     confirmed: tuple[int, ...] = ()   # degrees of point counts beyond those used that confirm L
+    assumed: tuple[str, ...] = ()     # the hypotheses this member's density assumes (LI, relations)
 
     def as_dict(self) -> dict:
         d = {"f": self.f, "conductor_degree": self.conductor_degree, "l_degree": self.l_degree,
              "rank": self.rank, "sign": self.sign, "l_coefficients": list(self.l_coefficients),
-             "status": self.status, "limit_mean": self.mean, "confirmed_by_degrees": list(self.confirmed)}
+             "status": self.status, "limit_mean": self.mean, "confirmed_by_degrees": list(self.confirmed),
+             "assumed": list(self.assumed)}
         if self.density is not None:
             d["density"] = {"lower": self.density.lower_str(12), "upper": self.density.upper_str(12)}
         return d
@@ -227,8 +229,9 @@ def _member(E: EllipticCurve, f, mode: str, width: float, max_boxes: int) -> Mem
         if "relations" in R.parameters:
             status = (f"certified on the orbit closure (relations {R.parameters['relations']}); "
                       f"width <= {R.density.width_text(2)} with {R.parameters['max_boxes_per_class']} boxes per class")
+        assumed = tuple(h.name for h in R.hypotheses if h.status == "assumed")
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs,
-                            R.density, mean, status, L.degrees_confirmed)
+                            R.density, mean, status, L.degrees_confirmed, assumed)
     except CertifyError as exc:
         msg = str(exc)
         return MemberResult(poly_str(f, F), Ef.conductor_degree, L.degree, L.rank, L.sign, L.coeffs, None, None,
@@ -289,11 +292,20 @@ def twist_family(q, A: str, B: str, d: int, n: int = 1, sample: int | None = Non
     hyps = (
         Hypothesis("RH for each L(E_f,u)", "inverse roots of modulus q", "theorem",
                    ("enclosed and checked for every member",), "La conjecture de Weil II, Publ. Math. IHES 52 (1980)"),
-        Hypothesis("LI for each member", "the non-torsion angles of each member together with 1 are Q-linearly independent",
-                   "assumed", (f"LLL relation search for each of the {len(members)} members; a member whose angles "
-                               "satisfy relations (each confirmed exactly) is certified on the orbit closure "
-                               "instead, or listed as not certified with the reason",)),
     )
+    if any(m.assumed for m in members if m.density is not None):
+        hyps += (Hypothesis(
+            "LI for each member", "the non-torsion angles of each member together with 1 are Q-linearly "
+            "independent", "assumed",
+            (f"LLL relation search for each of the {len(members)} members; a member whose angles "
+             "satisfy relations (each confirmed exactly) is certified on the orbit closure "
+             "instead, or listed as not certified with the reason",)),)
+    else:
+        # every certified member's inverse roots are q times roots of unity: its density is exact
+        hyps += (Hypothesis(
+            "LI for each member", "no certified member has non-torsion inverse roots: nothing to assume",
+            "verified", ("every inverse root of each certified member is q times a root of unity "
+                         "(exact cyclotomic factors)",)),)
     params = {"q": q, "A": A, "B": B, "n": n, "d": d, "mode": mode, "target_width": target_width,
               "max_boxes_relation_case": max_boxes,
               "sample": sample, "seed": seed if sample is not None else None, "c": c, "bins": bins,

@@ -432,7 +432,7 @@ def evidence_sentence(kind: str, d: dict) -> str:
         return (f"eps = {d['sign']:+d} read from point counts of degrees <= {d['degrees_used']}; "
                 f"confirmed by the exact point counts of degrees {list(d['degrees_confirmed'])}")
     if kind == "usage-note" and d == {"term": "prime squares"}:
-        return "used only for the prime-square term's limit (docs/elliptic_curves.md)"
+        return "used only for the prime-square term's limit (`docs/elliptic_curves.md`)"
     if kind == "torsion-only":
         return ("every inverse root is q times a root of unity (exact cyclotomic factors; "
                 f"period {d['period']} in X)")

@@ -101,6 +101,8 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
                          f"{g['isolation_height']}; {g['moments']['count']} exact moments; "
                          f"direction vector v_chi with {len(g['vector'])} complex entries")
         return lines
+    if cert.kind == "twist-family-race":
+        return _twist_lines(cert)
     if cert.kind == "curve-race":
         L, E = sp["l_polynomial"], sp["curve"]
         return [f"curve: y^2 = x^3 + ({E['A']})*x + ({E['B']}) over {E['field']}; conductor "
@@ -111,6 +113,49 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
                 f"{L['analytic_rank']}), from point counts of degree <= "
                 f"{L['degrees_from_point_counts']}, confirmed by degrees {list(L['degrees_confirmed'])}"]
     return []
+
+
+#: members listed one by one in a document (all of them are in the JSON file)
+MAX_MEMBER_LINES = 40
+
+
+def _twist_lines(cert: Certificate) -> list[str]:
+    """The family's L-data and distribution, each line from fields verify re-derives."""
+    sp, q = cert.spectrum, cert.question
+    E = sp["base_curve"]
+    s = sp["summary"]
+    n_mem = len(sp["members"])
+    lines = [f"base curve: y^2 = x^3 + ({E['A']})*x + ({E['B']}) over {E['field']}; conductor degree "
+             f"{E['conductor_degree']}",
+             (f"members: a seeded sample of {n_mem} (seed {q['seed']}) of the {sp['population']} twists"
+              if sp["sampled"] else f"members: all {sp['population']} twists")
+             + f" by monic square-free f of degree {q['d']} coprime to the discriminant; "
+               f"{s['certified']} certified, {s['not_certified']} not certified, "
+               f"{s['relation_case']} on the orbit closure of relations among the angles",
+             "analytic ranks: " + ", ".join(f"rank {r}: {k}" for r, k in s["rank_counts"].items())]
+    if s["mean"] is not None:
+        w = s["within"]
+        rad = Fraction(w["radius"])
+        lines.append(f"share of members whose density lies within {rad} of 1/2: between {w['lower']} and "
+                     f"{w['upper']} ({w['inside']} certainly inside, {w['outside']} certainly outside, "
+                     f"{w['undecided']} undecided by their enclosures)")
+        lines.append(f"spread (sample standard deviation of the enclosures' midpoints) between "
+                     f"{s['spread']['lower']} and {s['spread']['upper']}")
+        h = s["histogram"]
+        nb = h["bins"]
+        lines.append(f"histogram of the midpoints over {nb} bins of width 1/{nb} on [0, 1]: "
+                     + ", ".join(f"[{Fraction(j, nb)}, {Fraction(j + 1, nb)}): {c}"
+                                 for j, c in enumerate(h["counts"]) if c))
+    for m in sp["members"][:MAX_MEMBER_LINES]:
+        dn = m["density"]
+        dens = (m["status"] if not dn else f"density {dn['lower']} exactly" if dn["lower"] == dn["upper"]
+                else f"density in [{dn['lower']}, {dn['upper']}]")
+        lines.append(f"f = {m['f']}: conductor degree {m['conductor_degree']}, L(E_f, u) of degree "
+                     f"{m['l_degree']}, sign {m['sign']:+d}, analytic rank {m['rank']}; {dens}")
+    if n_mem > MAX_MEMBER_LINES:
+        lines.append(f"... and {n_mem - MAX_MEMBER_LINES} more members (every one is in the JSON file "
+                     "and re-checked by verify)")
+    return lines
 
 
 def recount_context(cert: Certificate, file_name: str) -> dict:
@@ -128,6 +173,9 @@ def recount_context(cert: Certificate, file_name: str) -> dict:
     elif cert.kind == "ecq-race":
         setting = (f"Bias of the Frobenius traces of the elliptic curve E = {q['ainvs']} over Q: "
                    "sum_(p <= x) a_p(E)/sqrt(p) > 0")
+    elif cert.kind == "twist-family-race":
+        setting = (f"Quadratic twists of degree {q['d']} of an elliptic curve over {q['field']} "
+                   f"({q['mode']} trace race)")
     else:
         setting = f"Trace race of an elliptic curve over F_{q['q']}(t) ({q['mode']})"
     hyps = [{"name": h["name"], "statement": h["statement"], "status": h["status"],

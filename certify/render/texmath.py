@@ -20,7 +20,7 @@ GREEK = {"gamma": r"\gamma", "chi": r"\chi", "mu": r"\mu", "Theta": r"\Theta", "
          "alpha": r"\alpha", "xi": r"\xi", "epsilon": r"\varepsilon", "eps": r"\varepsilon",
          "zeta": r"\zeta", "psi": r"\psi", "Lambda": r"\Lambda", "lambda": r"\lambda"}
 FUNCS = {"sum": r"\sum", "sqrt": r"\sqrt", "log": r"\log", "exp": r"\exp", "lim": r"\lim",
-         "cos": r"\cos", "sin": r"\sin", "arg": r"\arg"}
+         "cos": r"\cos", "sin": r"\sin", "arg": r"\arg", "int": r"\int", "inf": r"\infty"}
 
 _TEXT_SPECIALS = {"\\": r"\textbackslash{}", "{": r"\{", "}": r"\}", "_": r"\_", "^": r"\^{}",
                   "#": r"\#", "$": r"\$", "%": r"\%", "&": r"\&", "~": r"\~{}"}
@@ -60,14 +60,17 @@ def _sym(name: str) -> str:
 def _math_expr(e: str) -> str:
     """A plain-text formula (no prose) in LaTeX math syntax (without the $ signs)."""
     e = e.replace("+/-", r"\pm ").replace("<=", r"\le ").replace(">=", r"\ge ").replace("!=", r"\ne ")
-    e = e.replace("->", r"\to ").replace("*", r"\cdot ")
+    e = e.replace("->", r"\to ").replace("*", r"\cdot ").replace(" vs ", r"\ \text{vs}\ ")
+    e = re.sub(r"\|\|([^|]*)\|\|", r"\\lVert \1\\rVert ", e)
     e = re.sub(r"\|([^|]*)\|", r"\\lvert \1\\rvert ", e)
     e = re.sub(r"\boo\b", r"\\infty", e)
     e = re.sub(r"(\d+(?:\.\d+)?)e([+-]?)0*(\d+)",
                lambda m: rf"{m.group(1)}\times 10^{{{'-' if m.group(2) == '-' else ''}{m.group(3)}}}", e)
     e = re.sub(r"\bsqrt\(([^()]*(?:\([^()]*\)[^()]*)*)\)", r"\\sqrt{\1}", e)
     e = re.sub(r"_\{([^{}]*)\}", lambda m: "_{" + m.group(1) + "}", e)
-    e = re.sub(r"\^(\w+)", r"^{\1}", e)
+    e = re.sub(r"_\(([^()]*)\)", r"_{\1}", e)            # sum_(p <= x)
+    e = re.sub(r"\^\(([^()]*)\)", r"^{\1}", e)           # q^(X/2)
+    e = re.sub(r"\^(\w+'?)", r"^{\1}", e)
     e = re.sub(r"_(\w+)", lambda m: "_{" + " ".join(_sym(p) for p in [m.group(1)]) + "}", e)
     e = re.sub(r"(?<![\\A-Za-z])([A-Za-z]+)(?![A-Za-z])",
                lambda m: _sym(m.group(1)) + (" " if m.group(1) in GREEK or m.group(1) in FUNCS else ""), e)
@@ -80,12 +83,15 @@ _TOKEN = (r"(?:\d+(?:\.\d+)?e[+-]?\d+"                      # 4.07e-3
           r"|lim_\{[^{}]*\}"                                 # lim_{X -> oo}
           r"|(?:sqrt|pi|phi|delta|log|exp|cos|arg|L)\([^()]*(?:\([^()]*\)[^()]*)*\)"  # f(...)
           r"|[A-Za-z]+_\{[^{}]*\}(?:\([^()]*\))?"           # chi_{4,3}, sum_{gamma > 0}
-          r"|[A-Za-z]+_[A-Za-z0-9]+(?:\([^()]*\))?"          # w_a, J_0(x), gamma_chi
+          r"|\|\|[^|]{1,40}\|\|(?:_[A-Za-z0-9]+)?"            # ||xi||_inf
+          r"|[A-Za-z]+_\([^()]*\)"                           # sum_(p <= x)
+          r"|(?:[A-Za-z0-9]+|\((?:[^()]|\([^()]*\))*\))\^(?:\([^()]*\)|[A-Za-z0-9]+'?)"  # q^(X/2), (qu)^N'
+          r"|[A-Za-z]+_[A-Za-z0-9]+(?:\^[A-Za-z0-9]+)?(?:\([^()]*\))?"  # w_a, J_0(x), int_2^X
           r"|[A-Za-z0-9]+\^[A-Za-z0-9]+"                     # 10^8, gamma^2
           r"|\|[^|\s]{1,40}\|"                               # |W(chi)|
           r"|(?:log|sqrt)\s+[A-Za-z](?![A-Za-z])"           # log X, sqrt x
           r"|(?<![A-Za-z])[A-Za-z]\([^()]*\)"                # E(x), P(X > 0), W(chi)
-          r"|(?:gamma|chi|mu|Theta|delta|rho)\b)")
+          r"|(?<![A-Za-z])\d*(?:gamma|chi|mu|Theta|delta|rho|zeta|theta|pi)\b)")
 _OP = r"(?:\s*(?:<=|>=|!=|->|\+/-|[=<>+*/-])\s*)"
 _OPERAND = r"(?:-?(?:" + _TOKEN + r"|\d+(?:\.\d+)?|(?<![A-Za-z])[A-Za-z](?![A-Za-z])|\([^()]*\)))"
 _JOIN = r"(?:" + _OP + r"|\s+(?=" + _TOKEN + r"))"
@@ -96,6 +102,8 @@ _RUN = re.compile(r"(?:" + _OPERAND + _JOIN + r")*" + _TOKEN + r"(?:" + _JOIN + 
 def tex_text(text) -> str:
     """Plain text as LaTeX: one line, specials escaped, formulas in math mode, `code` as tex_code."""
     s = " ".join(str(text).split())
+    # a project file named in prose (docs/function_fields.md) is code, not a formula
+    s = re.sub(r"(?<![`\w/])((?:docs|certify|tests|bench|templates)/[\w./-]*\w)", r"`\1`", s)
     out = []
     pos = 0
     # code spans first: `certify verify FILE`

@@ -34,7 +34,7 @@ import math
 
 from flint import dirichlet_char
 
-from ..arith import acb, arb, workprec
+from ..arith import acb, arb, current_prec, workprec
 
 # conductors from which the smoothed sum is used for Hardy Z (measured, bench/bench_large.py)
 AFE_MIN_CONDUCTOR = 300
@@ -51,6 +51,7 @@ class SmoothedL:
         self.parity = parity if parity is not None else int(self.chi.parity())
         self._values = values  # callable n -> acb (chi(n)), or None
         self._vals: list = [acb(0)]
+        self._vals_prec = 0
         self._eps = root_number
 
     @property
@@ -60,6 +61,11 @@ class SmoothedL:
         return self._chi
 
     def value(self, n: int) -> acb:
+        # chi(n) is a ball at the precision it was computed at: a cache filled at a lower
+        # precision would cap the accuracy of every later sum (refinements ask for more)
+        p = current_prec()
+        if p > self._vals_prec:
+            self._vals, self._vals_prec = [acb(0)], p
         while len(self._vals) <= n:
             m = len(self._vals)
             self._vals.append(self._values(m) if self._values is not None else self.chi(m))

@@ -56,8 +56,12 @@ def test_report_commands_share_the_envelope(tmp_path, capsys):
     assert main(["claims", str(claims), "--out", str(tmp_path), "--max-digits", "6",
                  "--json", "-"]) == 0
     assert _validate(capsys.readouterr().out)["kind"] == "referee-report"
+    # one twist degree: the certificate itself; several: a bundle of certificates
     assert main(["twists", "5", "t", "t^2 + 1", "--degrees", "1", "--json", "-"]) == 0
-    assert _validate(capsys.readouterr().out)["kind"] == "twist-family"
+    assert _validate(capsys.readouterr().out)["kind"] == "twist-family-race"
+    assert main(["twists", "5", "t", "t^2 + 1", "--degrees", "1,2", "--json", "-"]) == 0
+    b = _validate(capsys.readouterr().out)
+    assert b["kind"] == "twist-family" and all(c["kind"] == "twist-family-race" for c in b["certificates"])
 
 
 def test_written_certificate_files_validate(tmp_path):
@@ -69,9 +73,9 @@ def test_written_certificate_files_validate(tmp_path):
 @pytest.mark.slow
 def test_slow_commands_share_the_envelope(tmp_path, capsys):
     assert main(["lirace", "pi>li", "--sig-digits", "5", "--json", "-"]) in (0, 5)
-    assert _validate(capsys.readouterr().out)["kind"] == "li-race-result"
+    assert _validate(capsys.readouterr().out)["kind"] == "dirichlet-race"
     assert main(["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--json", "-"]) in (0, 5)
-    assert _validate(capsys.readouterr().out)["kind"] == "ec-race-result"
+    assert _validate(capsys.readouterr().out)["kind"] == "ecq-race"
     assert main(["table", "--moduli", "3-5", "--digits", "5", "--out", str(tmp_path / "t"),
                  "--json", "-", "--no-cache"]) == 0
     assert _validate(capsys.readouterr().out)["kind"] == "batch-report"

@@ -30,8 +30,11 @@ def clean(tmp_path_factory):
     assert main(["curve", "5", "2 + 2*t + 2*t^2 + 4*t^5", "4 + 4*t + t^7 + t^8", "--digits", "6",
                  "--json", str(d / "c.json")]) == 0
     assert main(["order", "5", "1", "2", "3", "--digits", "2", "--json", str(d / "o.json")]) == 0
+    # an elliptic curve over Q of conductor 11 at a modest width (ecq-race)
+    assert main(["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--observe", "0",
+                 "--certificate", str(d / "e.json")]) == 0
     for k, name in (("dirichlet-race", "q"), ("ffield-race", "f"), ("curve-race", "c"),
-                    ("order-race", "o")):
+                    ("order-race", "o"), ("ecq-race", "e")):
         out[k] = json.loads((d / f"{name}.json").read_text())
         assert out[k]["kind"] == k
     return out
@@ -45,7 +48,8 @@ def _run(tmp_path, text: str) -> tuple[int, float]:
     return code, time.time() - t0
 
 
-@pytest.mark.parametrize("kind", ["dirichlet-race", "ffield-race", "curve-race", "order-race"])
+@pytest.mark.parametrize("kind", ["dirichlet-race", "ffield-race", "curve-race", "order-race",
+                                  "ecq-race"])
 def test_clean_certificates_verify(clean, tmp_path, kind):
     code, secs = _run(tmp_path, json.dumps(clean[kind]))
     assert code == 0 and secs < LIMIT_SECONDS
@@ -458,10 +462,149 @@ ORDER.update({
     "group parity flipped": lambda d: _grp(d)["l_functions"][1].update(parity=0),
 })
 
+
+# an elliptic curve over Q: y^2 + y = x^3 - x^2 - 10x - 20 (conductor 11, rank 0, root number +1)
+
+def _ecq_curve(d):
+    return d["spectrum"]["curve"]
+
+
+def _ecq_ev(d, hyp="GRH", i=0):
+    return _hyp(d, hyp)["evidence"][i]
+
+
+def _ecq_count_sentence(d):
+    _hyp(d, "GRH")["evidence"].insert(1, {
+        "kind": "recount", "data": {},
+        "text": "GRH verified to height 200 by a zero count (argument principle with Taylor "
+                "models, 40 models): the 9 zeros with 0.1 < gamma < 200 are exactly the "
+                "certified sign changes (all simple, on the line), and |s - 1| < 0.1 holds "
+                "exactly 0 zero(s)"})
+
+
+def _ecq_rank_theorem(d):
+    d["hypotheses"].append({"name": "rank", "statement": "L(E, s) vanishes to order exactly 0 "
+                            "at s = 1.", "status": "theorem", "evidence": [],
+                            "reference": "a proof, Annals 2030"})
+
+
+def _ecq_zero_inserted(d):
+    z = copy.deepcopy(d["spectrum"]["zeros"][0])
+    z["mid"] = "7.5"
+    d["spectrum"]["zeros"].insert(1, z)
+
+
+ECQ = {
+    "curve: a-invariants of an isogenous curve": lambda d: d["question"].update(ainvs=[0, -1, 1, 0, 0]),
+    "curve: a-invariants as strings": lambda d: d["question"].update(
+        ainvs=[str(x) for x in d["question"]["ainvs"]]),
+    "question statement: conductor changed": lambda d: d["question"].update(
+        statement=d["question"]["statement"].replace("conductor 11", "conductor 37")),
+    "question statement: sign reversed": lambda d: d["question"].update(
+        statement=d["question"]["statement"].replace("> 0", "< 0")),
+    "stored minimal model changed": lambda d: _ecq_curve(d).update(minimal_model=[0, -1, 1, 0, 0]),
+    "stored discriminant changed": lambda d: _ecq_curve(d).update(discriminant="-11"),
+    "stored minimal discriminant changed": lambda d: _ecq_curve(d).update(minimal_discriminant="-11"),
+    "stored j-invariant changed": lambda d: _ecq_curve(d).update(j_invariant="0"),
+    "stored curve conductor changed": lambda d: _ecq_curve(d).update(conductor=37),
+    "CM claimed": lambda d: _ecq_curve(d).update(cm_discriminant=-3),
+    "local root number product flipped": lambda d: _ecq_curve(d).update(
+        root_number_from_local_data=-1),
+    "reduction split -> nonsplit": lambda d: _ecq_curve(d)["local_data"][0].update(reduction="nonsplit"),
+    "local root number flipped": lambda d: _ecq_curve(d)["local_data"][0].update(root_number=1),
+    "Kodaira symbol changed": lambda d: _ecq_curve(d)["local_data"][0].update(kodaira="I1"),
+    "Tamagawa number changed": lambda d: _ecq_curve(d)["local_data"][0].update(tamagawa=1),
+    "bad prime added": lambda d: _ecq_curve(d)["local_data"].append(
+        dict(copy.deepcopy(_ecq_curve(d)["local_data"][0]), p=3)),
+    "local data duplicated": lambda d: _ecq_curve(d)["local_data"].append(
+        copy.deepcopy(_ecq_curve(d)["local_data"][0])),
+    "rank raised to 2": lambda d: d["spectrum"]["analytic_rank"].update(value=2, upper_bound=2),
+    "rank no longer certified": lambda d: d["spectrum"]["analytic_rank"].update(certified=False),
+    "rank root number flipped": lambda d: d["spectrum"]["analytic_rank"].update(root_number=-1),
+    "central value moved": lambda d: d["spectrum"]["analytic_rank"]["central_coefficients"][0].update(
+        mid="0.2"),
+    "central value claimed 0": lambda d: d["spectrum"]["analytic_rank"]["central_coefficients"][0].update(
+        mid="0", rad="0.2"),
+    "central coefficient inserted": lambda d: d["spectrum"]["analytic_rank"][
+        "central_coefficients"].append({"mid": "0", "rad": "0"}),
+    "parameter root number flipped": lambda d: d["parameters"].update(root_number=-1),
+    "parameter rank used changed": lambda d: d["parameters"].update(analytic_rank_used=1),
+    "parameter conductor changed": lambda d: d["parameters"].update(conductor=37),
+    "parameter isolation height changed": lambda d: d["parameters"].update(isolation_height=40.0),
+    "parameter zeros used changed": lambda d: d["parameters"].update(zeros_used=90),
+    "parameter moments changed": lambda d: d["parameters"].update(moments=30),
+    "GRH height claimed without a count": lambda d: d["parameters"].update(grh_height=5.0),
+    "spectrum mean changed": lambda d: d["spectrum"].update(mean="-1"),
+    "spectrum variance changed": lambda d: d["spectrum"]["variance"].update(mid="0.5"),
+    "isolation height raised": lambda d: d["spectrum"].update(isolation_height=40.0),
+    "zero moved": lambda d: d["spectrum"]["zeros"][2].update(
+        mid=_bump(d["spectrum"]["zeros"][2]["mid"], 2)),
+    "zero dropped": lambda d: d["spectrum"]["zeros"].pop(3),
+    "zero inserted": _ecq_zero_inserted,
+    "power sum changed": lambda d: d["spectrum"]["power_sums_all_zeros"][0].update(mid="0.3"),
+    "residual sum changed": lambda d: d["spectrum"]["residual_sums"][1].update(mid="0.5"),
+    "zeros sentence: count inflated": lambda d: _ecq_ev(d).update(
+        text=_ecq_ev(d)["text"].replace("9 zeros", "90 zeros", 1)),
+    "zeros sentence: height raised": lambda d: _ecq_ev(d).update(
+        text=_ecq_ev(d)["text"].replace("height 19.2075", "height 1000")),
+    "residual sentence rewritten": lambda d: _ecq_ev(d, i=1).update(
+        text="no zero is missing below T = 10000"),
+    "root number sentence flipped": lambda d: _ecq_ev(d, i=2).update(
+        text=_ecq_ev(d, i=2)["text"].replace("+1", "-1")),
+    "zero-count sentence inserted": _ecq_count_sentence,
+    "no-count caveat removed": lambda d: _hyp(d, "GRH")["evidence"].pop(3),
+    "evidence duplicated": lambda d: _hyp(d, "GRH")["evidence"].append(copy.deepcopy(_ecq_ev(d))),
+    "evidence data inserted": lambda d: _ecq_ev(d)["data"].update(verified=True, height=10000),
+    "evidence kind changed": lambda d: _ecq_ev(d).update(kind="proof"),
+    "LI evidence removed": lambda d: _hyp(d, "LI").update(evidence=[]),
+    "GRH duplicated": lambda d: d["hypotheses"].insert(0, copy.deepcopy(_hyp(d, "GRH"))),
+    "GRH upgraded to theorem": lambda d: _hyp(d, "GRH").update(status="theorem"),
+    "LI upgraded to verified": lambda d: _hyp(d, "LI").update(status="verified"),
+    "rank hypothesis inserted as theorem": _ecq_rank_theorem,
+    "caution rewritten": lambda d: d.update(caution="Unconditional theorem."),
+    "certified digits inflated": lambda d: d["answer"].update(certified_digits="0.97680"),
+    "exact value claimed": lambda d: d["answer"].update(exact="1/1"),
+    "enclosure narrowed": _narrow,
+    "bound lowered": lambda d: d["error_budget"][0].update(bound="1e-30"),
+    "crafted: digits 99": lambda d: d["parameters"].update(digits=99),
+    "crafted: GRH height 1e9": lambda d: d["parameters"].update(grh_height=1e9),
+    "crafted: conductor above the limit": lambda d: d["question"].update(ainvs=[0, 0, 0, -101, 307]),
+    "crafted: zero radius 1e30": lambda d: d["spectrum"]["zeros"][0].update(rad="1" + "0" * 30),
+    "crafted: central value radius 1e-99999": lambda d: d["spectrum"]["analytic_rank"][
+        "central_coefficients"][0].update(rad="1e-99999"),
+}
+ECQ.update({
+    "rank upper bound changed": lambda d: d["spectrum"]["analytic_rank"].update(upper_bound=3),
+    "power sum removed": lambda d: d["spectrum"]["power_sums_all_zeros"].pop(),
+    "variance widened": lambda d: d["spectrum"]["variance"].update(rad="10"),
+    "crafted: rank report a list": lambda d: d["spectrum"].update(analytic_rank=[]),
+    "crafted: local data of integers": lambda d: _ecq_curve(d).update(local_data=[11]),
+    "crafted: rank 10^9": lambda d: d["spectrum"]["analytic_rank"].update(value=10**9),
+})
+for _name, _f in _generic("ecq-race").items():
+    if _name != "theorem downgraded":  # every ecq-race hypothesis is assumed
+        ECQ.setdefault(_name, _f)
+# the default suite runs one variant per kind of change (field of each part of the document,
+# duplicate, upgrade, insertion, crafted size); the others (each also < 10 s) run with -m slow
+ECQ_DEFAULT = {
+    "curve: a-invariants of an isogenous curve", "question statement: conductor changed",
+    "question definition changed", "stored minimal model changed", "reduction split -> nonsplit",
+    "rank raised to 2", "central value claimed 0", "rank root number flipped",
+    "isolation height raised", "zero dropped", "power sum changed", "zeros sentence: count inflated",
+    "zero-count sentence inserted", "evidence duplicated", "evidence data inserted",
+    "GRH duplicated", "GRH upgraded to theorem", "rank hypothesis inserted as theorem",
+    "caution rewritten", "certified digits inflated", "enclosure narrowed",
+    "budget entry duplicated", "parameter conductor changed", "crafted: digits 99",
+    "crafted: GRH height 1e9", "crafted: conductor above the limit", "crafted: zero radius 1e30",
+    "variance widened", "crafted: rank report a list",
+}
+
 CASES = ([("dirichlet-race", k) for k in DIRICHLET] + [("ffield-race", k) for k in FFIELD]
-         + [("curve-race", k) for k in CURVE] + [("order-race", k) for k in ORDER])
+         + [("curve-race", k) for k in CURVE] + [("order-race", k) for k in ORDER]
+         + [("ecq-race", k) if k in ECQ_DEFAULT else
+            pytest.param("ecq-race", k, marks=pytest.mark.slow) for k in ECQ])
 MUTATORS = {"dirichlet-race": DIRICHLET, "ffield-race": FFIELD, "curve-race": CURVE,
-            "order-race": ORDER}
+            "order-race": ORDER, "ecq-race": ECQ}
 
 
 def test_the_suite_is_large_enough():

@@ -118,3 +118,59 @@ def test_blank_lines_and_specials_in_a_field_do_not_break_the_latex(tmp_path):
     (tmp_path / "t.tex").write_text("\\documentclass{article}\\usepackage{amsmath}\\begin{document}\n"
                                     + out + "\n\\end{document}\n")
     _compile(tmp_path, "t.tex")
+
+
+# -- every kind of certificate: written by the CLI, rendered, free of ASCII formulas, compiled ----
+
+#: one command per certificate kind (and the li race, a dirichlet-race with a small side)
+KIND_COMMANDS = {
+    "ffield-race": ["ffrace", "3", "t^2+1", "t+1", "1", "--digits", "6", "--leaders", "10"],
+    "curve-race": ["curve", "5", "t^2 + 1", "t^3 + t + 2", "--digits", "6"],
+    "order-race": ["order", "5", "1", "2", "3", "--digits", "2"],
+    "ecq-race": ["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--observe", "0"],
+    "twist-family-race": ["twists", "5", "t", "t^2 + 1", "--degrees", "2", "--width", "1e-3"],
+    "li-race": ["lirace", "--digits", "3"],
+}
+#: beyond ASCII_FORMULAS: a caret or an escaped underscore in prose is a formula left as text,
+#: so is an ASCII product (1*zeta) or a bare 2pi / zeta
+MORE_ASCII = [r"\\\^\{\}", r"\\_", r"\w\*\w", r"\dpi\b", r"\bzeta\b"]
+
+
+@pytest.fixture(scope="module", params=list(KIND_COMMANDS))
+def kind_document(request, tmp_path_factory):
+    kind = request.param
+    out = tmp_path_factory.mktemp(kind)
+    js = out / "cert.json"
+    assert main(KIND_COMMANDS[kind] + ["--json", str(js)]) == 0
+    import json
+
+    assert json.loads(js.read_text())["kind"] == ("dirichlet-race" if kind == "li-race" else kind)
+    assert main(["render", str(js), "--out", str(out), "--formats", "tex,fragment"]) == 0
+    return kind, out
+
+
+def test_every_kind_has_no_ascii_formula(kind_document):
+    kind, out = kind_document
+    for name in ("cert.tex", "cert-fragment.tex"):
+        prose = _prose((out / name).read_text())
+        for pat in ASCII_FORMULAS + MORE_ASCII:
+            found = re.findall(r".{0,30}" + pat + r".{0,30}", prose)
+            assert not found, f"{kind} {name}: text-mode ASCII formula {pat!r}: {found[:3]}"
+        # a file name is never set as a formula (docs/function$_{fields}$.md)
+        body = (out / name).read_text().split("\\begin{document}", 1)[-1]
+        body = re.sub(r"(?m)(?<!\\)%.*$", "", body)
+        bad = re.findall(r".{0,20}(?<!\\texttt\{)docs/.{0,30}", body)
+        assert not bad, f"{kind} {name}: a file name not set as code: {bad[:2]}"
+
+
+def test_every_kind_compiles_standalone_and_as_a_fragment(kind_document):
+    kind, out = kind_document
+    pdf = _compile(out, "cert.tex")
+    assert _pages(pdf)
+    (out / "paper.tex").write_text(
+        "\\documentclass{amsart}\n\\usepackage{amsmath,booktabs,siunitx}\n\\begin{document}\n"
+        "Text before.\n\n\\input{cert-fragment}\n\nText after.\n\\end{document}\n")
+    _compile(out, "paper.tex")
+    log = (out / "paper.log").read_text(errors="replace")
+    for m in re.finditer(r"Overfull \\hbox \(([\d.]+)pt too wide\)", log):
+        assert float(m.group(1)) < 20, f"{kind}: {m.group(0)}"

@@ -73,3 +73,21 @@ def test_truncation_tail_bound_contains_longer_sums():
         short = S.partial(s, 30)
         long = S.partial(s, 120)
         assert short.overlaps(long) and long.rad() < short.rad()
+
+
+def test_precision_is_not_capped_by_values_cached_at_a_lower_one():
+    """Z(t, chi_{401,377}) near its zero at t = 0.0672654913... (found by a race mod 401):
+    asked first at 64 bits, then at 200, the second ball must be as narrow as 200 bits
+    allow (the character values were once cached at the first precision, capping every
+    later sum near 2^-70) and contain Arb's own Hurwitz-sum value at 300 bits."""
+    S = SmoothedL(401, 377)
+    t = arb(0.0672654913155749)  # a double: exact
+    with workprec(64):
+        S.hardy_z(t, 64)
+    with workprec(200):
+        z = S.hardy_z(t, 200)
+    assert z.rad() < arb(2) ** -150
+    with workprec(300):
+        ref = dirichlet_char(401, 377).hardy_z(t).real
+    assert ref.rad() < arb(2) ** -200
+    assert z.overlaps(ref) and abs(z) < arb(2) ** -50  # the point is within 1e-15 of a zero

@@ -47,8 +47,10 @@ def test_twists_outputs(tmp_path, capsys):
                "--table", str(tab), "--plot", str(fig)])
     assert rc == 0
     d = json.loads(js.read_text())
-    assert len(d["families"]) == 2 and len(d["families"][1]["members"]) == 20
-    assert {"hypotheses", "error_budget", "parameters", "density"} <= set(d)
+    assert d["kind"] == "twist-family" and len(d["certificates"]) == 2
+    assert len(d["certificates"][1]["spectrum"]["members"]) == 20
+    assert all({"hypotheses", "error_budget", "parameters", "answer"} <= set(c) for c in d["certificates"])
+    assert main(["verify", str(js)]) == 0
     assert "| t^2 + 3 |" in tab.read_text()
     pytest.importorskip("matplotlib")
     assert fig.read_bytes()[:4] == b"\x89PNG"

@@ -53,7 +53,9 @@ def test_cli_json_plot(tmp_path, capsys):
                "--json", str(js), "--plot", str(fig)])
     assert rc == 0
     d = json.loads(js.read_text())
-    assert {"hypotheses", "error_budget", "parameters", "density", "observed"} <= set(d)
+    # --json writes the certificate (kind ecq-race); the observation is on the screen and the plot
+    assert d["kind"] == "ecq-race" and {"hypotheses", "error_budget", "parameters", "answer"} <= set(d)
+    assert main(["verify", str(js)]) == 0
     assert fig.read_bytes()[:4] == b"\x89PNG"
     assert "out of reach" in capsys.readouterr().out
 

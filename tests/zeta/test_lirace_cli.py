@@ -22,21 +22,26 @@ def test_lirace_screen(capsys):
 
 
 def test_lirace_json_stdout(capsys):
+    # --json writes the certificate of the final round (one shape for every command)
     assert main(["lirace", "pi>li", "-s", "8", "--json", "-"]) == 0
     d = json.loads(capsys.readouterr().out)
+    assert d["kind"] == "dirichlet-race"
     assert d["question"]["label"] == "delta(pi>li)" and d["question"]["modulus"] == 1
     assert [h["name"] for h in d["hypotheses"]] == ["RH", "LI"]
     assert all(h["status"] == "assumed" and h["evidence"] for h in d["hypotheses"])
     assert len(d["error_budget"]) == 4 and d["parameters"]["zeros_used"] > 0
-    s = d["small_side"]
-    assert s["name"] == "delta" and s["significant_digits"] >= 8 and s["target_met"]
+    s = d["answer"]["small_side"]
+    assert s["name"] == "delta" and s["significant_digits"] >= 8
     lo, hi = Fraction(s["lower"]), Fraction(s["upper"])
+    # published: delta(pi>li) ~ 2.6e-7 ("Chebyshev's bias", Experimental Mathematics 3 (1994))
+    assert lo <= Fraction(263, 10**9) <= hi + Fraction(1, 10**9)
     # both are outward roundings of the same proven interval: they overlap, and the
     # small side is narrow relative to its size
-    assert lo <= Fraction(d["density"]["upper"]) and Fraction(d["density"]["lower"]) <= hi
+    enc = d["answer"]["enclosure"]
+    assert lo <= Fraction(enc["upper"]) and Fraction(enc["lower"]) <= hi
     assert (hi - lo) / lo < Fraction(1, 10**8)
-    assert d["mean"] == "-1" and d["rounds"][0]["digits"] == 10
-    rh = d["rh_to_height"]
+    assert d["answer"]["mean"] == "-1"
+    rh = next(e for e in d["hypotheses"][0]["evidence"] if e["kind"] == "zero-count")["data"]
     assert rh["verified"] and rh["count"] == rh["sign_changes"] > 20
 
 
@@ -44,9 +49,9 @@ def test_lirace_json_file_and_absolute_digits(tmp_path, capsys):
     path = tmp_path / "li.json"
     assert main(["lirace", "gt", "--digits", "9", "--json", str(path)]) == 0
     d = json.loads(path.read_text())
-    assert d["density"]["target_width"] == "1e-9" and d["density"]["target_met"]
-    assert d["small_side"]["significant_digits_requested"] == 0
+    assert Fraction(d["answer"]["target_width"]) == Fraction(1, 10**9) and d["answer"]["target_met"]
     assert "delta(pi>li)" in capsys.readouterr().out
+    assert main(["verify", str(path)]) == 0
 
 
 @pytest.mark.parametrize("argv", [["lirace", "pi=li"], ["lirace", "-s", "0"], ["lirace", "-s", "51"],

@@ -1,0 +1,83 @@
+"""The argument-principle count for every character of a conductor at once
+(certify.certificate.zerocount.count_zeros_many) against independent counts: the
+sign changes of each character's own Hardy Z-function (find_zeros, one character at a
+time) and the one-character contour count (count_zeros), at heights between zeros."""
+
+from fractions import Fraction
+
+import pytest
+
+from certify.certificate.evidence import exact_ends
+from certify.certificate.zerocount import count_zeros, count_zeros_many, zero_counts
+from certify.source.dirichlet import primitive_character
+from certify.spectrum.zeros import find_zeros
+
+
+def test_batched_count_equals_sign_changes_mod_13():
+    q = 13
+    req = {}
+    expected = {}
+    for i, n in enumerate(range(2, 13)):
+        zl = find_zeros(q, n, 20.0, 1e-8)
+        ends = sorted(exact_ends(z) for z in zl.zeros)
+        # a height between two zeros (the characters get different heights), or 0
+        k = 2 + i % 3
+        T = (ends[k - 1][1] + ends[k][0]) / 2 if i % 4 else Fraction(0)
+        req[n] = (primitive_character(q, n).parity, T)
+        expected[n] = sum(1 for lo, hi in ends if hi < T)
+    got = count_zeros_many(q, req)
+    assert got == expected
+    # two characters also by the one-at-a-time contour
+    for n in (2, 6):
+        p, T = req[n]
+        assert T == 0 or count_zeros(q, n, p, T)[0] == got[n]
+
+
+def test_same_height_shares_the_top_edge_and_agrees_with_one_at_a_time():
+    q, T = 11, Fraction(25, 2)
+    got = zero_counts([(q, n, primitive_character(q, n).parity, T) for n in range(2, 11)])
+    for n in range(2, 11):
+        one = count_zeros(q, n, primitive_character(q, n).parity, T)[0]
+        assert got[(q, n)] == one
+        zl = find_zeros(q, n, 13.0, 1e-8)
+        assert one == sum(1 for z in zl.zeros if exact_ends(z)[1] < T)
+
+
+@pytest.mark.slow
+def test_large_modulus_certificate_verifies_and_a_missing_zero_is_caught():
+    """delta(101;2,1): 99 L-functions counted by the batched path, in the builder and in
+    verify; a zero removed from a group (the isolation height kept) is caught, and a
+    count edited in the evidence is caught by the re-derived count alone."""
+    import copy
+    import json
+
+    from certify.certificate.build import certificate_from_result, evidence_text
+    from certify.certificate.model import Certificate
+    from certify.certificate.verify import verify_certificate
+    from certify.race.question import two_way
+    from certify.races import certify_race
+    from certify.spectrum.spectrum import SpectrumStore
+
+    store = SpectrumStore()
+    result = certify_race(two_way(101, 2, 1), 6, store=store)
+    d = json.loads(certificate_from_result(result, store).to_json())
+    counts = [e for e in d["hypotheses"][0]["evidence"] if e["kind"] == "zero-count"]
+    assert len(counts) == 99 and all(e["data"]["verified"] for e in counts)
+    assert verify_certificate(Certificate.from_dict(copy.deepcopy(d))).ok
+    # a group with zeros: drop its last zero
+    t = copy.deepcopy(d)
+    g = next(g for g in t["spectrum"]["groups"] if g["zeros"])
+    g["zeros"].pop()
+    rep = verify_certificate(Certificate.from_dict(t))
+    assert not rep.ok  # (the residual sums see the missing zero first)
+    assert any("missing" in c.detail for c in rep.failures)
+    # a count edited in the evidence (data and text regenerated would still disagree)
+    t = copy.deepcopy(d)
+    e = next(e for e in t["hypotheses"][0]["evidence"] if e["kind"] == "zero-count"
+             and e["data"]["count"] > 0)
+    e["data"]["count"] += 1
+    e["text"] = evidence_text(e)  # its sentence regenerated: only the count can tell
+    rep = verify_certificate(Certificate.from_dict(t))
+    assert [c.name for c in rep.failures] == [
+        f"GRH evidence for L(s, chi_{{{e['l_function'].replace('.', ',')}}}): argument-principle "
+        "count, no zero missing below the isolation height"]
