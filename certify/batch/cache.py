@@ -45,7 +45,7 @@ from dataclasses import dataclass
 
 from .. import __version__
 from ..arith import flint_version
-from ..errors import BadInput
+from ..errors import BadInput, CertifyError
 from ..spectrum.spectrum import PrimitiveSpectrum, SpectrumStore
 from ..spectrum.zeros import ZeroList
 from .recheck import recheck_spectrum
@@ -175,6 +175,9 @@ class SpectrumCache:
         # (entry id, digest) -> (bytes, re-derived spectrum): an entry is re-derived once per
         # process, and again only if its bytes change
         self._rechecked: dict = {}
+        # conductor -> (K, bits, {label: (S_1..S_K, L(1/2))}) re-derived by the batched path
+        # for the characters of that conductor in this cache, once per process
+        self._batched: dict = {}
         self.rechecked = 0
         self.recheck_seconds = 0.0
 
@@ -292,7 +295,7 @@ class SpectrumCache:
                 self.loads += 1
                 return _fresh_copy(memo[1])
             sp = decode(blob, digest)
-            sp, seconds = recheck_spectrum(sp)
+            sp, seconds = recheck_spectrum(sp, self._batched_rederivation(sp))
             self._rechecked[(int(entry_id), digest)] = (blob, _fresh_copy(sp))
         except KeyError:
             self.damaged.append(int(entry_id))
@@ -304,6 +307,52 @@ class SpectrumCache:
         self.recheck_seconds += seconds
         self.loads += 1
         return sp
+
+    def _batched_rederivation(self, sp):
+        """(S_1..S_K, L(1/2)) of ``sp``'s character re-derived afresh, or None.
+
+        The first time a conductor is met, the power sums and central values of every
+        primitive character of that conductor with an entry in this cache are computed in
+        one batch (:func:`certify.spectrum.moments.conductor_power_sums`: one Hurwitz jet
+        per class and a DFT), at the largest count and accuracy those entries ask for, and
+        kept for the process.  Only the labels, counts and accuracies of the rows are read
+        (to size the batch); nothing stored enters the values.  None (the one-character
+        path) when the batch does not pay, does not cover the entry, or fails.
+        """
+        from ..spectrum.afe import JET_AFE_MIN_CONDUCTOR
+        from ..spectrum.moments import conductor_power_sums, prefer_batch
+
+        c = int(sp.conductor)
+        if not (3 <= c < JET_AFE_MIN_CONDUCTOR) or not sp.power_sums:
+            return None
+        memo = self._batched.get(c)
+        if memo is None:
+            memo = (0, 0, {})
+            t0 = time.perf_counter()
+            try:
+                rows = self.connection().execute(
+                    "SELECT label, moments, moment_bits FROM spectra WHERE conductor = ? "
+                    "AND version = ?", (c, self.version)).fetchall()
+                # sizes bounded as recheck_spectrum bounds them; other rows go one at a time
+                rows = [(int(n), int(k), int(b)) for n, k, b in rows
+                        if 1 <= int(n) < c and math.gcd(int(n), c) == 1
+                        and 1 <= int(k) <= 200 and 0 <= int(b) <= 20000]
+                from flint import dirichlet_char
+
+                rows = [r for r in rows if dirichlet_char(c, r[0]).is_primitive()]
+                labels = sorted({n for n, _, _ in rows})
+                if prefer_batch(c, len(labels)):
+                    K = max(k for _, k, _ in rows)
+                    B = max(b for _, _, b in rows)
+                    memo = (K, B, conductor_power_sums(c, labels, K, B))
+            except (CertifyError, ArithmeticError, ValueError, KeyError, sqlite3.Error):
+                memo = (0, 0, {})
+            self._batched[c] = memo
+            self.recheck_seconds += time.perf_counter() - t0
+        K, B, data = memo
+        if sp.label not in data or len(sp.power_sums) > K or int(sp.power_sum_bits) > B:
+            return None
+        return data[sp.label]
 
     def best_entry(self, key, height: float = 0.0, width: float = float("inf"),
                    moments: int = 0, bits: int = 0, fraction: float = 1.0) -> EntryInfo | None:

@@ -41,8 +41,14 @@ class RecheckFailed(BadInput):
     """A cached spectrum disagrees with its re-derivation (the entry is wrong)."""
 
 
-def recheck_spectrum(sp):
+def recheck_spectrum(sp, rederived=None):
     """``sp`` with re-derived power sums and L(1/2); its zeros re-checked by sign changes.
+
+    ``rederived``, if given, is ``(S_1..S_K, L(1/2))`` for this character computed
+    afresh by the batched path (:func:`certify.spectrum.moments.conductor_power_sums`,
+    all characters of the conductor at once, each S_m of radius below
+    2^-bits for some bits >= the entry's, K >= the entry's count): it replaces
+    the one-character computation.  It is a re-derivation, never stored data.
 
     Returns ``(spectrum, seconds)``.  Raises :class:`RecheckFailed` naming the
     first quantity that fails.
@@ -76,16 +82,21 @@ def recheck_spectrum(sp):
         prev = g
     # power sums and L(1/2): re-derived; the stored balls must at least overlap them
     sums = []
-    if sp.power_sums:
+    if sp.power_sums and rederived is not None:
+        sums = list(rederived[0][:len(sp.power_sums)])
+        if len(sums) != len(sp.power_sums):
+            raise RecheckFailed(f"{name}: batched re-derivation has too few power sums")
+    elif sp.power_sums:
         sums = zero_power_sums(sp.conductor, sp.label, sp.parity, len(sp.power_sums),
                                int(sp.power_sum_bits))
+    if sp.power_sums:
         for m, (old, new) in enumerate(zip(sp.power_sums, sums), start=1):
             if not old.overlaps(new):
                 raise RecheckFailed(f"{name}: stored power sum S_{m} = {old.str(10)} disagrees "
                                     f"with its re-derivation {new.str(10)}")
     central = sp.central
     if central is not None:
-        fresh = central_value(sp.conductor, sp.label)
+        fresh = rederived[1] if rederived is not None else central_value(sp.conductor, sp.label)
         if not central.overlaps(fresh):
             raise RecheckFailed(f"{name}: stored L(1/2) disagrees with its re-derivation")
         central = fresh
