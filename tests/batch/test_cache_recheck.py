@@ -185,3 +185,41 @@ def test_a_forged_spectrum_from_a_worker_is_refused_before_use(tmp_path, monkeyp
     wr = json.loads((out2 / "batch.json").read_text())["spectra"]["worker_recheck"]
     assert wr["entries"] == json.loads((out2 / "batch.json").read_text())["spectra"]["computed"] >= 2
     assert wr["refused"] == 0 and 0 <= wr["seconds"] < 30
+
+
+def test_batched_rederivation_of_a_conductor_refuses_a_forged_entry(tmp_path):
+    """The characters of one conductor are re-derived together (one batch per process): a
+    forged power sum (valid digest) among them is still refused, the others are loaded with
+    power sums that overlap those computed afresh one character at a time."""
+    from certify.spectrum.moments import zero_power_sums
+
+    st = SpectrumStore()
+    certify_race(two_way(7, 3, 1), 4, store=st)
+    keys = sorted(k for k in st.spectra if k[0] == 7)
+    assert len(keys) >= 4  # enough characters for the batched path
+    path = str(tmp_path / "c.sqlite")
+    c = SpectrumCache(path)
+    for k in keys:
+        c.save(st.spectra[k])
+    c.close()
+    con = sqlite3.connect(path)
+    eid, data = con.execute("SELECT id, data FROM spectra WHERE conductor=7 AND label=?",
+                            (keys[0][1],)).fetchone()
+    d = json.loads(zlib.decompress(bytes(data)))
+    _shift_power_sum(d)
+    blob = zlib.compress(json.dumps(d, separators=(",", ":"), sort_keys=True).encode(), 6)
+    con.execute("UPDATE spectra SET data=?, digest=? WHERE id=?",
+                (blob, hashlib.sha256(blob).hexdigest(), eid))
+    con.commit()
+    con.close()
+    cache = SpectrumCache(path)
+    with pytest.warns(CacheWarning, match="power sum"):
+        assert cache.load(keys[0]) is None
+    assert keys[0][1] in cache._batched[7][2]  # refused by the batched re-derivation
+    for k in keys[1:]:
+        sp = cache.load(k)
+        assert sp is not None
+        alone = zero_power_sums(7, k[1], sp.parity, len(sp.power_sums), sp.power_sum_bits)
+        for a, b in zip(sp.power_sums, alone):
+            assert a.overlaps(b) and float(arb(a.rad())) < 2.0 ** -sp.power_sum_bits
+    cache.close()
