@@ -323,7 +323,7 @@ def _memo_counts(requests) -> dict:
     keys = [(int(c), int(n), int(p), Fraction(h)) for c, n, p, h in requests]
     todo = sorted({k for k in keys if k not in _COUNTS})
     if todo:
-        got = zero_counts(todo)
+        got = zero_counts(todo, memo=True)
         for k in todo:
             _COUNTS[k] = got[(k[0], k[1])]
     return {(k[0], k[1]): _COUNTS[k] for k in keys}

@@ -35,6 +35,7 @@ the critical line and is simple: GRH holds for L(s, chi) up to height T.
 
 from __future__ import annotations
 
+import math
 from fractions import Fraction
 
 from flint import dirichlet_char
@@ -421,8 +422,44 @@ def _batch_horizontal(batch: _Batch, near_one, labels, t: Fraction, x0: Fraction
     return total, failed
 
 
+_BOTTOM: dict = {}  # (conductor, prec, max_pieces) -> (labels, d_bottom, failed, l0), per process
+_BOTTOM_ALL_MAX = 400  # conductors up to this get the bottom edge of every primitive label at once
+
+
+def _bottom_edge(conductor: int, labels, prec: int, max_pieces: int, memo: bool = False):
+    """({label: change of arg L(x, chi) for x from 1/2 to RIGHT_EDGE}, failed labels,
+    {label: L(RIGHT_EDGE, chi)}) at the current precision.
+
+    The bottom edge (t = 0) is the same for every height, and its cost is that of the
+    conductor (one Hurwitz value per class per point), not of the number of labels: it is
+    walked once per process for every primitive character of the conductor (small
+    conductors) and memoised, so the many counts of a table (one call per certificate)
+    do not walk it again.  The memo holds the result of the same deterministic proof;
+    without ``memo`` (verify, which recounts on its own) the edge is walked afresh."""
+    if not memo:
+        batch = _Batch(conductor, labels)
+        d_bottom, failed = _batch_horizontal(batch, _BatchNearOne(batch), labels, Fraction(0),
+                                             Fraction(1, 2), RIGHT_EDGE, max_pieces)
+        return d_bottom, failed, batch.at(acb(_q(RIGHT_EDGE), 0))
+    key = (conductor, prec, max_pieces)
+    got = _BOTTOM.get(key)
+    if got is not None and set(labels) <= got[0]:
+        return got[1], set(got[2]), got[3]
+    every = set(labels)
+    if conductor <= _BOTTOM_ALL_MAX:
+        every |= {n for n in range(1, conductor)
+                  if math.gcd(n, conductor) == 1 and dirichlet_char(conductor, n).is_primitive()}
+    every = sorted(every)
+    batch = _Batch(conductor, every)
+    d_bottom, failed = _batch_horizontal(batch, _BatchNearOne(batch), every, Fraction(0),
+                                         Fraction(1, 2), RIGHT_EDGE, max_pieces)
+    l0 = batch.at(acb(_q(RIGHT_EDGE), 0))
+    _BOTTOM[key] = (frozenset(every), d_bottom, frozenset(failed), l0)
+    return d_bottom, set(failed), l0
+
+
 def count_zeros_many(conductor: int, requests: dict, prec: int = 64,
-                     max_pieces: int = 20000) -> dict:
+                     max_pieces: int = 20000, memo: bool = False) -> dict:
     """{label: N or None} for ``requests`` = {label: (parity, height)}, all characters mod
     ``conductor`` at once; N = #{rho of L(s, chi): 0 < gamma < height}, rigorously (as
     :func:`count_zeros`), None where this precision did not establish it.
@@ -446,11 +483,9 @@ def count_zeros_many(conductor: int, requests: dict, prec: int = 64,
     labels = sorted(todo)
     with workprec(prec):
         batch = _Batch(conductor, labels)
-        near_one = _BatchNearOne(batch)
         a = Fraction(1, 2)
-        d_bottom, failed = _batch_horizontal(batch, near_one, labels, Fraction(0), a,
-                                             RIGHT_EDGE, max_pieces)
-        l0 = batch.at(acb(_q(RIGHT_EDGE), 0))
+        d_bottom, failed, l0 = _bottom_edge(conductor, labels, prec, max_pieces, memo)
+        failed &= set(labels)
         by_height: dict = {}
         for n in labels:
             by_height.setdefault(todo[n][1], []).append(n)
@@ -482,7 +517,7 @@ def count_zeros_many(conductor: int, requests: dict, prec: int = 64,
     return out
 
 
-def count_zeros_batched(conductor: int, requests: dict) -> dict:
+def count_zeros_batched(conductor: int, requests: dict, memo: bool = False) -> dict:
     """{label: N or None}: :func:`count_zeros_many` at 64, 128 and 256 bits, then, for any
     character still undecided, :func:`count_zeros` one character at a time (same precisions)."""
     out = {n: None for n, (_, h) in requests.items() if Fraction(h) < 0}
@@ -490,7 +525,7 @@ def count_zeros_batched(conductor: int, requests: dict) -> dict:
     for prec in (64, 128, 256):
         if not left:
             break
-        got = count_zeros_many(conductor, left, prec=prec)
+        got = count_zeros_many(conductor, left, prec=prec, memo=memo)
         for n, N in got.items():
             if N is not None:
                 out[n] = N
@@ -506,10 +541,11 @@ def count_zeros_batched(conductor: int, requests: dict) -> dict:
     return out
 
 
-def zero_counts(requests) -> dict:
+def zero_counts(requests, memo: bool = False) -> dict:
     """{(conductor, label): N or None} for ``requests`` = [(conductor, label, parity, height)]:
     the characters of each conductor counted together (:func:`count_zeros_batched`); None
-    where no precision up to 256 bits established the count."""
+    where no precision up to 256 bits established the count.  ``memo``: reuse the bottom
+    edges walked earlier in this process (:func:`_bottom_edge`; the table's certificates)."""
     by_cond: dict = {}
     for c, n, p, h in requests:
         by_cond.setdefault(int(c), {})[int(n)] = (int(p), Fraction(h))
@@ -520,6 +556,6 @@ def zero_counts(requests) -> dict:
             for n in req:
                 out[(c, n)] = None
             continue
-        for n, N in count_zeros_batched(c, req).items():
+        for n, N in count_zeros_batched(c, req, memo).items():
             out[(c, n)] = N
     return out

@@ -43,6 +43,29 @@ def test_same_height_shares_the_top_edge_and_agrees_with_one_at_a_time():
         assert one == sum(1 for z in zl.zeros if exact_ends(z)[1] < T)
 
 
+def test_memoised_bottom_edge_gives_the_sign_change_counts_mod_13():
+    """The table's counts (one call per certificate, memo=True) walk the bottom edge once per
+    conductor for every character and reuse it: the counts of later calls, for other
+    characters and heights, still equal the sign changes of each character's own Z."""
+    from certify.certificate import zerocount
+
+    q = 13
+    zerocount._BOTTOM.clear()
+    calls = [[2, 3], [5, 7], [4, 11]]
+    for i, labels in enumerate(calls):
+        req, expected = [], {}
+        for n in labels:
+            zl = find_zeros(q, n, 20.0, 1e-8)
+            ends = sorted(exact_ends(z) for z in zl.zeros)
+            k = 1 + (i + n) % 3
+            T = (ends[k - 1][1] + ends[k][0]) / 2
+            req.append((q, n, primitive_character(q, n).parity, T))
+            expected[(q, n)] = k
+        assert zero_counts(req, memo=True) == expected
+        assert len([key for key in zerocount._BOTTOM if key[0] == q]) == 1  # walked once
+    assert zerocount._BOTTOM[(q, 64, 20000)][0] == frozenset(range(2, 13))
+
+
 @pytest.mark.slow
 def test_large_modulus_certificate_verifies_and_a_missing_zero_is_caught():
     """delta(101;2,1): 99 L-functions counted by the batched path, in the builder and in
