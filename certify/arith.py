@@ -216,11 +216,27 @@ def certified_significant(lo: Fraction, hi: Fraction, max_digits: int = 80) -> t
     return k, f"{lead[0]}{'.' + lead[1:] if k > 1 else ''}e{e}"
 
 
+_BALL_STRINGS: dict = {}  # exact (mantissa, exponent) of mid and radius -> strings, per process
+_BALL_STRINGS_MAX = 200000
+
+
 def ball_strings(x: arb) -> tuple[str, str]:
-    """Exact decimal strings (midpoint, radius) of a ball; :func:`ball_from_strings` inverts."""
-    mid = arb_to_fraction(x)
-    rad = _exact_to_fraction(arb(x.rad()))
-    return _exact_decimal(mid), _exact_decimal(rad)
+    """Exact decimal strings (midpoint, radius) of a ball; :func:`ball_from_strings` inverts.
+
+    Memoised on the exact dyadic midpoint and radius (a table writes the same zero balls
+    into many certificates); the strings are a function of those integers alone."""
+    if not x.is_finite():
+        raise ValueError("ball is not finite")
+    r = arb(x.rad())
+    (mm, me), (rm, re_) = x.mid().man_exp(), r.mid().man_exp()
+    key = (int(mm), int(me), int(rm), int(re_))
+    got = _BALL_STRINGS.get(key)
+    if got is None:
+        got = (_exact_decimal(arb_to_fraction(x)), _exact_decimal(_exact_to_fraction(r)))
+        if len(_BALL_STRINGS) >= _BALL_STRINGS_MAX:
+            _BALL_STRINGS.clear()
+        _BALL_STRINGS[key] = got
+    return got
 
 
 def _exact_decimal(v: Fraction) -> str:

@@ -393,11 +393,34 @@ class SpectralGroup:
         return " & ".join(str(c) for c in self.characters)
 
 
+_GROUPS: dict = {}  # (question, working precision) -> groups, per process
+_GROUPS_MAX = 20000
+
+
 def spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
     """The groups of characters with W(chi) != 0, with their scales 2|W(chi)|.
 
     The li race has one group: zeta (the trivial character, conductor 1), scale 2.
+    Memoised per process on the (frozen) question and the working precision: a race
+    asks for its groups several times (plan, driver, certificate), and the result is a
+    deterministic function of both.
     """
+    from flint import ctx
+
+    try:
+        key = (question, ctx.prec)
+        got = _GROUPS.get(key)
+    except TypeError:  # an unhashable question: computed afresh
+        return _spectral_groups(question)
+    if got is None:
+        got = tuple(_spectral_groups(question))
+        if len(_GROUPS) >= _GROUPS_MAX:
+            _GROUPS.clear()
+        _GROUPS[key] = got
+    return list(got)
+
+
+def _spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
     if question.is_li_race:
         from ..source.dirichlet import primitive_character
 
