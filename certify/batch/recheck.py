@@ -26,6 +26,10 @@ Measured cost (2-core machine under load, certify at this commit): about
 digits asks (power sums 0.01-0.035 s, L(1/2) < 0.005 s, sign checks
 0.001-0.025 s), against 1.6 s for the race itself; 0.014 s for chi_{4,3}
 with 36 zeros.  The batch summary reports the total (``spectra.recheck``).
+The cache re-derives the power sums and L(1/2) of all its characters of one
+conductor in one batched computation per process
+(:meth:`certify.batch.cache.SpectrumCache._batched_rederivation`, passed in as
+``rederived``): 95 entries mod 97 in 0.9 s instead of 10.3 s.
 """
 
 from __future__ import annotations
