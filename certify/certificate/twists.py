@@ -35,6 +35,7 @@ from fractions import Fraction
 
 from ..arith import arb, decimal_down, decimal_up
 from ..errors import BadInput, CertifyError, Inconsistent
+from .curves import REFERENCES  # the same sources as a single curve's race
 from .model import Certificate, thaw
 from .numbers import places_for, sci
 from .recount import answer_from_enclosure, provenance, timed_report
@@ -44,12 +45,6 @@ DEFINITION = ("the mean, over the members E_f of the family, of the natural dens
               "lim_{N -> oo} (1/N) #{1 <= X <= N : the normalised trace sum of E_f is positive at X}; "
               "each member's density enclosed by the measure of {limit function > 0} "
               "(`docs/elliptic_curves.md`)")
-REFERENCES = (
-    "Weil's conjectures, proof for L-functions of elliptic curves over function fields: "
-    "La conjecture de Weil II, Publications Mathematiques de l'IHES 52 (1980).",
-    "Degree of L(E, u): Formule de Lefschetz et rationalite des fonctions L, Seminaire Bourbaki "
-    "279 (1965).",
-)
 #: bounds on what a stored certificate may ask the verifier to recount
 LIMITS = {"max_boxes": 10**7, "bins": 1000, "d": 12, "n": 12}
 MAX_MEMBERS = 5000
