@@ -159,6 +159,73 @@ class SmoothedL:
                 total += c.conjugate() * f
             return total + acb(arb(0, tail), arb(0, tail))
 
+    def disc(self, centre: acb, radius: arb, order: int, rho0: arb, prec: int,
+             tail_bits: float, real: bool = False) -> tuple[list, arb]:
+        """(c, E): |Lambda(centre + e, chi) - sum_{j<order} c_j e^j| <= E for every complex
+        |e| <= radius (docs/method.md, section 3e).
+
+        The c_j are the Taylor coefficients of the first N terms of both sums (Arb series in
+        e, rigorous balls); E bounds the Taylor remainder of those terms by the Cauchy-type
+        estimate with the majorant on the circle of radius ``rho0`` (> radius) and the terms
+        n > N uniformly over the disc, N chosen for a tail below 2^-tail_bits.  ``real``:
+        the character is real (root number 1, no Gauss sum).
+        """
+        from flint import acb_series
+
+        from ..arith import series_cap
+        from ..errors import PrecisionExhausted
+
+        q, k = self.q, self.parity
+        need = tail_bits * math.log(2) + 10
+        N = max(2, int(math.sqrt(q * need / math.pi)) + 2)
+        with workprec(prec):
+            r = arb(radius)
+            R = arb(rho0)
+            if not (r < R):
+                raise ValueError("smoothed disc: rho0 must exceed the radius")
+            half = arb(1) / 2
+            w0 = (centre + k) / 2
+            v0 = (1 - centre + k) / 2
+            eps = acb(1) if real else self.root_number(prec)
+            aA = acb(w0.real + R / 2)
+            aB = acb(v0.real + R / 2)
+            pi_q = arb.pi() / q
+            with series_cap(order):
+                wa = acb_series([w0, acb(half)])
+                wb = acb_series([v0, acb(-half)])
+                ga, gb = wa.gamma(), wb.gamma()
+                A = acb_series([acb(0)])
+                B = acb_series([acb(0)])
+                maj = arb(0)
+                for n in range(1, N + 1):
+                    c = self.value(n)
+                    if c == 0:
+                        continue
+                    x = pi_q * n * n
+                    ta = _scaled_gamma_upper(wa, x, ga)
+                    tb = _scaled_gamma_upper(wb, x, gb)
+                    lx = acb(x.log())
+                    m = ((-aA * lx).exp() * acb(x).gamma_upper(aA)).real + \
+                        ((-aB * lx).exp() * acb(x).gamma_upper(aB)).real
+                    if k:
+                        ta, tb, m = ta * n, tb * n, m * n
+                    A += ta * c
+                    B += tb * c.conjugate()
+                    maj += m
+                cs = (A + B * eps).coeffs()
+            cs = cs + [acb(0)] * (order - len(cs))
+            # terms n > N over the whole disc: |f| <= n^k e^(-x_n) / (x_n - m), u^m <= e^(m(u-1))
+            mexp = max(w0.real, v0.real) + r / 2 - 1
+            mexp = mexp if mexp > 0 else arb(0)
+            x1 = pi_q * (N + 1) ** 2
+            rho = arb((N + 2) / arb(N + 1)) ** k * (-arb.pi() * (2 * N + 3) / q).exp()
+            if not (x1 > mexp and rho < 1):
+                raise PrecisionExhausted("not certified: smoothed disc tail bound does not apply")
+            tail = 2 * arb(N + 1) ** k * (-x1).exp() / ((x1 - mexp) * (1 - rho))
+            ratio = r / R
+            E = ratio ** order / (1 - ratio) * maj + tail
+            return cs[:order], arb(E.upper())
+
     def central_value(self, prec: int = 64) -> acb:
         """L(1/2, chi) = Lambda(1/2) / ((q/pi)^w Gamma(w)), w = (1/2 + kappa)/2."""
         with workprec(prec + 20):
