@@ -625,14 +625,15 @@ def _verify_zero_count(report: VerifyReport, ev_grh, key: str, lf, zeros, height
     d = thaw(e["data"])
     from .zerocount import MAX_COUNT_CONDUCTOR
 
-    if int(lf["conductor"]) > MAX_COUNT_CONDUCTOR:
-        # not attempted above this conductor (cost ~ q per box): the certificate must say so
-        report.add(name, d == {"established": False, "height": height},
-                   f"not attempted (conductor above {MAX_COUNT_CONDUCTOR}); stored {d}")
-        return
     T = Fraction(height)
     found = sum(1 for z in zeros if exact_ends(ball_of(z))[1] < T)
     N = counts.get((int(lf["conductor"]), int(lf["label"])))
+    if N is None and int(lf["conductor"]) > MAX_COUNT_CONDUCTOR:
+        # the smoothed count (the only one attempted above this conductor) failed here too:
+        # the certificate must say "not established", and nothing more
+        report.add(name, d == {"established": False, "height": height},
+                   f"the count is not established on re-derivation either; stored {d}")
+        return
     if N is None:
         report.add(name, False, f"the argument-principle count at {float(T):.6g} could not be "
                    "established")

@@ -46,10 +46,25 @@ from ..errors import PrecisionExhausted
 RIGHT_EDGE = Fraction(2)
 
 # Arb's L(s, chi) on the boxes of the contour costs ~ q per box (Hurwitz sums): above
-# this conductor the count is not attempted, and the certificate records the evidence
-# as not established (GRH stays a hypothesis either way; the residual power sums
-# still check that no zero is missing, docs/method.md section 2)
+# this conductor the count uses the smoothed functional equation instead (cost ~ sqrt q
+# per disc, :mod:`zerocount_afe`, docs/method.md section 3e); where that fails too the
+# certificate records the evidence as not established (GRH stays a hypothesis either way;
+# the residual power sums still check that no zero is missing, docs/method.md section 2)
 MAX_COUNT_CONDUCTOR = 3000
+# from this conductor a request of at most SMOOTHED_MAX_LABELS characters of one conductor
+# is counted by the smoothed sum, one character at a time, also below MAX_COUNT_CONDUCTOR
+# (measured, bench/bench_zerocount_afe.py: one real character of conductor ~1000 takes
+# ~0.3 s there against 3-20 s by Arb's boxes; many characters of one conductor share
+# Arb's batched boxes instead)
+SMOOTHED_MIN_CONDUCTOR = 300
+SMOOTHED_MAX_LABELS = 4
+
+
+def counted_by_smoothed_sum(conductor: int, labels: int) -> bool:
+    """Whether :func:`zero_counts` counts ``labels`` characters of this conductor by the
+    smoothed sum (else by Arb's L on boxes)."""
+    return conductor > MAX_COUNT_CONDUCTOR or (
+        conductor >= SMOOTHED_MIN_CONDUCTOR and labels <= SMOOTHED_MAX_LABELS)
 
 
 def _q(x: Fraction) -> arb:
@@ -551,10 +566,12 @@ def zero_counts(requests, memo: bool = False) -> dict:
         by_cond.setdefault(int(c), {})[int(n)] = (int(p), Fraction(h))
     out = {}
     for c, req in sorted(by_cond.items()):
-        if c > MAX_COUNT_CONDUCTOR:
-            # not attempted (cost ~ q per box): recorded as not established
-            for n in req:
-                out[(c, n)] = None
+        if counted_by_smoothed_sum(c, len(req)):
+            from .zerocount_afe import count_zeros_smoothed_retry
+
+            # one character at a time, cost ~ sqrt(c); None (not established) where it fails
+            for n, (p, h) in sorted(req.items()):
+                out[(c, n)] = count_zeros_smoothed_retry(c, n, p, h)
             continue
         for n, N in count_zeros_batched(c, req, memo).items():
             out[(c, n)] = N
