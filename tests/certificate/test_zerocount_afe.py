@@ -115,9 +115,9 @@ def test_smoothed_count_equals_arb_boxes_on_random_real_characters_300_to_3000()
     ~ sqrt q) give the same count wherever both decide."""
     rng = random.Random(3000)
     agreed = 0
-    for q, n in _random_real_characters(rng, 300, 3000, 10):
+    for q, n in _random_real_characters(rng, 300, 3000, 8):
         p = int(dirichlet_char(q, n).parity())
-        T = Fraction(rng.randrange(10, 90), 10)
+        T = Fraction(rng.randrange(10, 50), 10)
         arb_count = count_zeros_many(q, {n: (p, T)})[n]
         try:
             ours = count_zeros_smoothed(q, n, p, T)[0]
@@ -127,7 +127,7 @@ def test_smoothed_count_equals_arb_boxes_on_random_real_characters_300_to_3000()
             continue
         assert ours == arb_count, (q, n, T)
         agreed += 1
-    assert agreed >= 8
+    assert agreed >= 6
 
 
 def _mpmath_sign_changes(q: int, n: int, T: float, step: float) -> int:
