@@ -213,6 +213,8 @@ def count_zeros_smoothed(conductor: int, label: int, parity: int, height: Fracti
             raise PrecisionExhausted("not certified: Re L(2 + it) > 0 failed")
         d_right = l1.arg() - l0.arg() + log_factor(s1).imag - log_factor(acb(_q(RIGHT))).imag
         total = (d_bottom + d_right + d_top) / arb.pi()
+        if not total.is_finite():
+            raise PrecisionExhausted("not certified: the argument count is not finite")
         n = round(float(total.mid()))
         if not (abs(total - n) < arb(1) / 4):
             raise PrecisionExhausted(f"not certified: the argument count {total.str(8)} is not "
@@ -229,6 +231,6 @@ def count_zeros_smoothed_retry(conductor: int, label: int, parity: int, height: 
     for bits in (24, 48):
         try:
             return count_zeros_smoothed(conductor, label, parity, Fraction(height), bits=bits)[0]
-        except PrecisionExhausted:
+        except (PrecisionExhausted, ValueError):  # undecided: not established, never a guess
             continue
     return None
