@@ -177,8 +177,13 @@ def _spectrum(req: dict, start: tuple | None = None, batched: dict | None = None
             "zeros": len(sp.zeros.zeros), "height": sp.height, "pid": os.getpid()}
 
 
-def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -> list[dict]:
+def race_task(items: list, digits: int, spectra: dict, command_line: str = "",
+              plans: list | None = None) -> list[dict]:
     """Certify each (slug, question) of ``items`` from the shipped ``spectra``.
+
+    ``plans`` (optional, one per item, None where absent) are the plans the coordinator
+    made for these races (:meth:`certify.races.RacePlan.to_wire`); a race with one does
+    not plan again (:func:`certify.races.shipped_plan` recomputes its exact variance).
 
     ``spectra`` maps "conductor.label" to (blob, digest).  Each race sees them
     truncated to the heights it asks for.  A spectrum a race had to extend (a
@@ -188,7 +193,7 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
     coordinator to store.  The order of races in a task is fixed by the plan,
     so the enclosures do not depend on the executor.
     """
-    from ..races import certify_race
+    from ..races import certify_race, shipped_plan
     from .cache import CachedStore
 
     with _LOCK:
@@ -200,12 +205,15 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             digests[key] = digest
         out = []
         extended = {}
-        for slug, question in items:
+        for j, (slug, question) in enumerate(items):
             store = CachedStore(backend=None, spectra=base)
             t0 = time.perf_counter()
+            wire = plans[j] if plans is not None and j < len(plans) else None
             try:
                 with _MemoryCap(RACE_MEMORY):
-                    r = certify_race(question, digits, store=store, command_line=command_line)
+                    plan = shipped_plan(question, digits, store, wire) if wire else None
+                    r = certify_race(question, digits, store=store, command_line=command_line,
+                                     plan=plan)
             except CertifyError as exc:
                 out.append({"slug": slug, "ok": False, "error": str(exc),
                             "error_kind": type(exc).__name__, "new_spectra": [],

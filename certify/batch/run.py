@@ -193,7 +193,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
         # ---- plan -------------------------------------------------------
         t0 = time.time()
         plan_store = CachedStore(backend=cache)
-        reqs = spectrum_requests(pending, digits, plan_store) if pending else {}
+        plans: dict = {}  # slug -> the race's plan, shipped with it (planned once, here)
+        reqs = spectrum_requests(pending, digits, plan_store, plans) if pending else {}
         keys_of = {it.slug: _keys_of(it) for it in pending}
         summary["timings_seconds"]["plan"] = round(time.time() - t0, 3)
         summary["spectra"]["needed"] = len(reqs)
@@ -282,7 +283,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
             for ch in chunks:
                 keys = sorted({k for it in ch for k in keys_of[it.slug]})
                 shipped = {f"{c}.{n}": blobs[f"{c}.{n}"] for c, n in keys if f"{c}.{n}" in blobs}
-                args.append(([(it.slug, it.question) for it in ch], digits, shipped, command_line))
+                args.append(([(it.slug, it.question) for it in ch], digits, shipped, command_line,
+                             [plans.get(it.slug) for it in ch]))
             prog = Progress("races", len(pending), enabled=progress)
             for i, results in run_all(executor, race_task, args):
                 if isinstance(results, BaseException):

@@ -104,3 +104,40 @@ def test_leader_first_and_ranking():
                                                      (Fraction("0.4999"), False)]
     top = ranking(rows, 2)
     assert [r.lower for r in top] == [Fraction("0.79"), Fraction("0.4999")]
+
+
+def test_a_shipped_plan_gives_the_race_it_would_have_planned():
+    """A table plans each race once, in the coordinator, and ships the plan (as JSON-able
+    data) to the worker.  On random races the shipped plan must give exactly the result
+    of a race that plans itself: the same enclosure, ball, variance and parameters."""
+    import json
+    import random
+
+    from certify.race.question import two_way
+    from certify.races import RacePlan, certify_race, plan_race, shipped_plan
+
+    def strip(d):
+        d = dict(d)
+        d.pop("timings_seconds", None)
+        d["provenance"] = {k: v for k, v in d["provenance"].items() if k != "date"}
+        return d
+
+    rng = random.Random(3)
+    for _ in range(4):
+        q = rng.choice([7, 9, 11, 13, 15])
+        units = [a for a in range(1, q) if math.gcd(a, q) == 1]
+        a, b = rng.sample(units, 2)
+        question = two_way(q, a, b)
+        wire = json.loads(json.dumps(plan_race(question, 6, SpectrumStore()).to_wire()))
+        store = SpectrumStore()
+        shipped = certify_race(question, 6, store=store,
+                               plan=shipped_plan(question, 6, store, wire))
+        itself = certify_race(question, 6, store=SpectrumStore())
+        assert strip(shipped.to_dict()) == strip(itself.to_dict())
+        assert shipped.density.lower == itself.density.lower
+        # a plan made for another race is refused
+        other = json.loads(json.dumps(plan_race(two_way(q, b, a), 6, SpectrumStore()).to_wire()))
+        if other["mean"] != wire["mean"]:
+            with pytest.raises(BadInput):
+                shipped_plan(question, 6, SpectrumStore(), other)
+    assert isinstance(RacePlan.from_wire(wire, shipped.variance), RacePlan)
