@@ -179,6 +179,17 @@ def member_table(cert: Certificate) -> list[dict]:
     return rows
 
 
+def observation_context(cert: Certificate):
+    """The observed race of an ``ecq-race`` certificate (verify recounts it), or None: a label
+    saying it is observed data and no part of the proven enclosure, and its sentences."""
+    if cert.kind != "ecq-race" or "observation" not in cert.spectrum:
+        return None
+    from ..ecobserve import OBSERVATION_LABEL, observation_lines
+
+    rec = cert.spectrum["observation"]
+    return {"label": OBSERVATION_LABEL, "bound": rec["bound"], "lines": observation_lines(rec)}
+
+
 def recount_context(cert: Certificate, file_name: str) -> dict:
     """The context of a certificate verified by a recount (F_q[t] races, curve races): every
     field shown was compared by ``verify`` with its re-derived value."""
@@ -226,6 +237,7 @@ def recount_context(cert: Certificate, file_name: str) -> dict:
         "groups": [],
         "spectrum_lines": _spectrum_lines(cert),
         "members": member_table(cert),
+        "observation": observation_context(cert),
         "parameters": params,
         "provenance": {"command_line": cert.provenance["command_line"],
                        "input_digest": cert.provenance["input_digest"]},
@@ -283,6 +295,7 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
         "label": question.label,
         "spectrum_lines": [],
         "members": [],
+        "observation": None,
         "question": {"kind": question.kind, "modulus": question.modulus,
                      "setting_line": f"Race: {question.kind} modulo {question.modulus}; "
                                      f"weights {weights}",
