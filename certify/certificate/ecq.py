@@ -16,8 +16,8 @@ from fractions import Fraction
 
 from ..errors import BadInput, Inconsistent
 from .model import Certificate, ball_record
-from .recount import (answer_from_enclosure, budget_records, hypothesis_records, provenance,
-                      timed_report)
+from .ecq_items import hypothesis_records, independent_items
+from .recount import answer_from_enclosure, budget_records, provenance, timed_report
 
 DEFINITION = ("logarithmic density: lim_{X -> oo} (1/log X) int_2^X 1[sum_{p <= x} a_p/sqrt(p) > 0] "
               "dx/x, equal to P(X > 0) for the limit law of `docs/elliptic_curves_q.md` (section 5)")
@@ -52,6 +52,12 @@ def ecq_certificate(result, grh_height: float, seconds: float, observation=None)
     }
     inputs = {"setting": "E/Q", "ainvs": question["ainvs"], "digits": result.digits_requested,
               "grh_height": float(grh_height)}
+    # the independent checks as structured items (verify re-derives each and its sentence)
+    curve = spectrum["curve"]
+    spectrum["evidence"] = independent_items(
+        tuple(int(x) for x in E.minimal), int(E.conductor), set(int(p) for p in E.bad_primes),
+        result.rank.root_number, result.rank.rank,
+        {int(d["p"]): d for d in curve["local_data"]}, result.rank.theorem)
     if observation is not None:
         spectrum["observation"] = observation.record()
         inputs["observe"] = int(observation.bound)

@@ -92,7 +92,8 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
                 f"root number {rk['root_number']:+d}; analytic rank {rk['value']} "
                 f"({'certified' if rk['certified'] else 'not certified: at most ' + str(rk['upper_bound'])})",
                 f"{len(sp['zeros'])} zeros of L(E, s) isolated to height {sp['isolation_height']}; "
-                f"{len(sp['power_sums_all_zeros'])} exact power sums; mean 1 - 2r = {sp['mean']}"]
+                f"{len(sp['power_sums_all_zeros'])} exact power sums; mean 1 - 2r = {sp['mean']}",
+                *(f"independent check: {e['text']}" for e in sp.get("evidence", []))]
     if cert.kind == "order-race":
         lines = []
         for g in sp["groups"]:
