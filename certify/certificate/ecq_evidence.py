@@ -20,7 +20,14 @@ evidence rests on:
   Lambda'(1) = (sqrt N / 2 pi) 2 sum_n a_n/n E_1(2 pi n / sqrt N); a_n from the counted
   a_p (multiplicative, the Hecke recursion at good p), the tail bounded by |a_n| <= d(n)
   sqrt n <= 2n (so |a_n/n| <= 2) and E_1(x) <= exp(-x)/x.  The enclosure must meet the
-  stored central coefficient and exclude 0 (so the certified order is re-proved);
+  stored central coefficient and exclude 0 (so the certified order is re-proved); for
+  rank 2 or 3 (not certified) the same series with G_r (:func:`g_function`,
+  docs/method.md section 11) must give Lambda^(r)(1)/r! excluding 0 (rank <= r
+  re-proved) and the lower coefficients of r's parity as balls containing 0 (which
+  does not prove that they vanish);
+* **structured items**: every evidence item (:mod:`.ecq_items`) has a known kind, exactly
+  its fields and the sentence generated from them; the items of ``spectrum.evidence``
+  are re-derived here field by field;
 * **zero-count evidence**: the sentences that state how many zeros were isolated to
   which height, and the argument-principle count when one was asked for, must state the
   stored zero list and heights (the recount then re-proves the count itself).
@@ -335,8 +342,8 @@ def check_ecq_evidence(cert, E, report) -> bool:
         diffs = _item_differences(stored, fresh, problem)
     except CertifyError as exc:
         diffs = [str(exc)[:120]]
-    ok &= report.add("E/Q evidence: the independent items (a_p table, Hasse's bound, reduction "
-                     "types, root number, rank proof) re-derived field by field, each sentence "
+    ok &= report.add("E/Q evidence: the independent items (a_p table, the bound |a_p| <= 2 sqrt p, "
+                     "reduction types, root number, rank proof) re-derived field by field, each sentence "
                      "generated from its fields", not diffs, "; ".join(diffs[:3]))
     # -- the zero-count evidence states the stored zeros and heights
     grh = [h for h in hyps if h.get("name") == "GRH"]

@@ -14,7 +14,7 @@ Two families:
   its fields and the certificate is refused (fail closed) unless the sentence generated
   from the fields is the pipeline's sentence, character for character;
 * the independent checks (``spectrum.evidence``): the a_p table by a literal point count,
-  Hasse's bound, the reduction types, the root number and the rank proof by an independent
+  the bound |a_p| <= 2 sqrt(p), the reduction types, the root number and the rank proof by an independent
   series (:func:`independent_items`).
 """
 
@@ -47,7 +47,7 @@ FIELDS = {
     "rank-theorem": ("rank", "reference"),
     # the independent checks (spectrum.evidence)
     "a_p-table": ("below", "primes", "a_p"),
-    "hasse-bound": ("good_primes", "largest_ratio"),
+    "trace-bound": ("good_primes", "largest_ratio"),
     "reduction-types": ("primes", "a_p", "types"),
     "root-number-check": ("value", "method"),
     "rank-proof": ("rank", "root_number", "conductor", "value", "terms", "lower", "published"),
@@ -135,7 +135,7 @@ def sentence(kind: str, data: dict) -> str:
         pairs = ", ".join(f"a_{p} = {a}" for p, a in zip(d["primes"], d["a_p"]))
         return (f"a_p for the {len(d['primes'])} primes p < {d['below']} by a literal count of the "
                 f"points of the minimal model mod p: {pairs}")
-    if kind == "hasse-bound":
+    if kind == "trace-bound":
         return (f"|a_p| <= 2 sqrt(p) at each of the {d['good_primes']} good primes of the table "
                 f"(largest a_p^2/(4p): {d['largest_ratio']})")
     if kind == "reduction-types":
@@ -248,7 +248,7 @@ def hypothesis_records(hypotheses) -> list:
 
 # -- the independent checks -------------------------------------------------------------------
 
-def hasse_ratio(primes, aps, bad) -> str:
+def trace_bound_ratio(primes, aps, bad) -> str:
     """The largest a_p^2/(4p) over the good primes, an exact fraction as text."""
     best = max((Fraction(a * a, 4 * p) for p, a in zip(primes, aps) if p not in bad),
                default=Fraction(0))
@@ -258,7 +258,7 @@ def hasse_ratio(primes, aps, bad) -> str:
 def independent_items(model, N: int, bad: set, eps, rank: int, stored_local: dict | None,
                       published: str, prec: int = 80) -> list:
     """The items of ``spectrum.evidence`` from computations that do not use the pipeline:
-    a_p by a literal point count for p < SMALL_P, Hasse's bound on them, the reduction type at
+    a_p by a literal point count for p < SMALL_P, the bound |a_p| <= 2 sqrt(p) on them, the reduction type at
     each bad prime, the root number (semistable formula, else the local root numbers) and the
     rank proof by the series of :func:`.ecq_evidence.central_derivative` (every rank)."""
     import math
@@ -271,8 +271,8 @@ def independent_items(model, N: int, bad: set, eps, rank: int, stored_local: dic
     for p in bad:
         counted.setdefault(p, trace(model, p))
     items = [item("a_p-table", {"below": SMALL_P, "primes": small, "a_p": [counted[p] for p in small]}),
-             item("hasse-bound", {"good_primes": sum(1 for p in small if p not in bad),
-                                  "largest_ratio": hasse_ratio(small, [counted[p] for p in small], bad)})]
+             item("trace-bound", {"good_primes": sum(1 for p in small if p not in bad),
+                                  "largest_ratio": trace_bound_ratio(small, [counted[p] for p in small], bad)})]
     bp = sorted(bad)
     items.append(item("reduction-types", {"primes": bp, "a_p": [counted[p] for p in bp],
                                           "types": [REDUCTION_NAMES.get(counted[p], "?") for p in bp]}))

@@ -626,8 +626,8 @@ ECQ_ITEMS = {
     "independent: a prime dropped from the table": _ecq_edit(
         None, "a_p-table", lambda x: (x["primes"].pop(), x["a_p"].pop())),
     "independent: table bound raised": _ecq_edit(None, "a_p-table", lambda x: x.update(below=1000)),
-    "independent: Hasse ratio lowered": _ecq_edit(
-        None, "hasse-bound", lambda x: x.update(largest_ratio="1/2")),
+    "independent: trace bound ratio lowered": _ecq_edit(
+        None, "trace-bound", lambda x: x.update(largest_ratio="1/2")),
     "independent: reduction type changed": _ecq_edit(
         None, "reduction-types", lambda x: x.update(types=["nonsplit"])),
     "independent: root number flipped": _ecq_edit(
