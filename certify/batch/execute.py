@@ -28,6 +28,7 @@ import threading
 import time
 
 from ..errors import CertifyError
+from ..io import compact_json
 from .serial import decode, encode
 
 _LOCK = threading.Lock()
@@ -226,9 +227,9 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             # the row's certificate (verify re-checks it): built from this store's spectra
             cert_doc = None
             try:
-                from ..certificate.build import certificate_from_result
+                from ..certificate.build import certificate_document
 
-                cert_doc = certificate_from_result(r, store).to_dict()
+                cert_doc = certificate_document(r, store)
             except CertifyError as exc:
                 d["certificate_error"] = str(exc)
             used = sorted({f"{c}.{n}" for g in r.groups for (c, n) in g.primitive_keys})
@@ -239,7 +240,16 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
                 "spectra": {k: digests.get(k, "computed in this task") for k in used},
                 "spectra_extended_in_task": [f"{c}.{n}" for c, n in dict.fromkeys(store.computed)],
             }
-            out.append({"slug": slug, "ok": True, "result": d, "certificate": cert_doc,
+            # serialised here, in the worker, with the C encoder (compact JSON): the
+            # coordinator only writes the text, so it does not become the bottleneck
+            out.append({"slug": slug, "ok": True, "result": d,
+                        "result_text": compact_json(d),
+                        "certificate_text": (compact_json(cert_doc) if cert_doc is not None
+                                             else None),
+                        # what the table index shows of the certificate (it need not re-read it)
+                        "certificate_summary": (None if cert_doc is None else {
+                            "answer": {"enclosure": dict(cert_doc["answer"]["enclosure"])},
+                            "question": {"label": cert_doc["question"]["label"]}}),
                         "target_met": r.target_met,
                         "timings": dict(r.timings), "seconds": time.perf_counter() - t0,
                         "z_calls": store.z_calls, "new_spectra": []})

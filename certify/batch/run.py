@@ -188,6 +188,7 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                     "certify does not prove GRH or LI."),
     }
     executor = None
+    written: dict = {}  # certificate path -> what the table index shows of it
     try:
         # ---- plan -------------------------------------------------------
         t0 = time.time()
@@ -300,10 +301,10 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                                                     "error": res["error"]})
                         prog.advance(1)
                         continue
-                    write_atomic(result_path(out, it), json.dumps(res["result"], indent=1) + "\n")
-                    if res.get("certificate"):
-                        write_atomic(certificate_path(out, it),
-                                     json.dumps(res["certificate"], indent=1) + "\n")
+                    write_atomic(result_path(out, it), res["result_text"])
+                    if res.get("certificate_text"):
+                        write_atomic(certificate_path(out, it), res["certificate_text"])
+                        written[certificate_path(out, it)] = res["certificate_summary"]
                     done[it.slug] = res["result"]
                     pq = per_q[it.modulus]
                     pq["races"] += 1
@@ -330,7 +331,7 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
     t0 = time.time()
     ordered = [(it, done.get(it.slug)) for it in items]
     files = write_tables(out, ordered, digits, top=top, command_line=command_line,
-                         equivalences=equivalences)
+                         equivalences=equivalences, certificates=written)
     summary["timings_seconds"]["tables"] = round(time.time() - t0, 3)
     summary["timings_seconds"]["total"] = round(time.time() - t_start, 3)
     summary["files"] = files
