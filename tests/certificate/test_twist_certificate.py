@@ -300,7 +300,9 @@ def test_render_markdown_and_latex(clean, tmp_path):
     p.write_text(json.dumps(clean))
     assert main(["render", str(p), "--out", str(tmp_path), "--formats", "md,tex,fragment"]) == 0
     md = (tmp_path / "fam.md").read_text()
-    assert "all 20 twists" in md and "f = t^2 + 4" in md and "certify verify fam.json" in md
+    assert "all 20 twists" in md and "certify verify fam.json" in md
+    # the members as a table: a header and one row per member, beginning with f
+    assert "| Member f | Conductor degree |" in md and "\n| t^2 + 4 | " in md
     tex = (tmp_path / "fam.tex").read_text()
     assert r"\begin{document}" in tex and "elliptic" in tex
 
