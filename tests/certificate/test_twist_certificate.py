@@ -295,6 +295,22 @@ def test_render_of_a_bundle_refuses_a_tampered_member(tmp_path, capsys):
     assert main(["verify", str(out)]) == 4
 
 
+@pytest.mark.parametrize("edit", ["base curve renamed", "field added", "question field added"])
+def test_bundle_claims_beyond_its_certificates_rejected(tmp_path, edit):
+    out = tmp_path / "b.json"
+    assert main(["twists", *CURVE, "--degrees", "1,2", "--width", "1e-3", "--json", str(out)]) == 0
+    b = json.loads(out.read_text())
+    if edit == "base curve renamed":
+        b["question"]["base_curve"] = b["question"]["base_curve"].replace("t^2 + 1", "t^2 + 2")
+    elif edit == "field added":
+        b["verified_by"] = "a referee"
+    else:
+        b["question"]["proved"] = "yes"
+    out.write_text(json.dumps(b))
+    assert main(["verify", str(out)]) != 0
+    assert main(["render", str(out), "--out", str(tmp_path / "r")]) != 0
+
+
 def test_render_markdown_and_latex(clean, tmp_path):
     p = tmp_path / "fam.json"
     p.write_text(json.dumps(clean))
