@@ -33,6 +33,7 @@ FIELDS = {
     # evidence of GRH
     "zeros-on-line": ("zeros", "height"),
     "residual-sums": ("l_function", "moments", "height", "first", "expected"),
+    "residual-sums-moments-only": ("l_function", "moments", "first"),
     "root-number": ("value", "source"),
     "zero-count": ("height", "models", "zeros", "disc_radius", "inside", "assumed_order"),
     "zero-count-failed": ("height", "reason"),
@@ -98,6 +99,9 @@ def sentence(kind: str, data: dict) -> str:
         return (f"{d['l_function']}: residual sums R_1..R_{d['moments']} non-negative and consistent "
                 f"with no zero missing below T = {d['height']} (R_1 = {d['first']}; expected "
                 f"{d['expected']})")
+    if kind == "residual-sums-moments-only":
+        return (f"{d['l_function']}: no zero isolated (moments only); residual sums "
+                f"R_1..R_{d['moments']} non-negative (R_1 = {d['first']})")
     if kind == "root-number":
         return f"root number {d['value']:+d} ({d['source']}); functional equation checked in balls"
     if kind == "zero-count":
@@ -176,6 +180,9 @@ _PATTERNS = [
     ("residual-sums", r"(?P<l_function>L\(E, s\), conductor \d+): residual sums R_1\.\.R_(?P<moments>\d+) "
                       r"non-negative and consistent with no zero missing below T = (?P<height>\S+) "
                       r"\(R_1 = (?P<first>" + _BALL + r"); expected (?P<expected>\S+)\)"),
+    ("residual-sums-moments-only", r"(?P<l_function>L\(E, s\), conductor \d+): no zero isolated "
+                                   r"\(moments only\); residual sums R_1\.\.R_(?P<moments>\d+) "
+                                   r"non-negative \(R_1 = (?P<first>" + _BALL + r")\)"),
     ("root-number", r"root number (?P<value>[+-]1) \((?P<source>[^()]*(?:\([^()]*\)[^()]*)*)\); "
                     r"functional equation checked in balls"),
     ("zero-count", r"GRH verified to height (?P<height>\S+) by a zero count \(argument principle with "

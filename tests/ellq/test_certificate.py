@@ -128,3 +128,40 @@ def test_observation_above_the_verify_limit_refused_before_work(tmp_path, capsys
     err = capsys.readouterr().err
     assert len(err.strip().splitlines()) == 1 and "1000000" in err
     assert not (tmp_path / "o.json").exists()
+
+
+def test_schema_lists_every_evidence_kind_with_exactly_its_fields():
+    from certify.certificate.ecq_items import FIELDS
+    from certify.certificate.schema import load_schema
+
+    d = load_schema()["$defs"]["ecq_evidence"]
+    assert d["properties"]["kind"]["enum"] == list(FIELDS)
+    for cond in d["allOf"]:
+        kind = cond["if"]["properties"]["kind"]["const"]
+        data = cond["then"]["properties"]["data"]
+        assert data["required"] == list(FIELDS[kind]) and data["additionalProperties"] is False
+
+
+def test_verifier_itself_refuses_unknown_and_missing_fields():
+    """Beside the schema: the verifier's own check fails an item with a field added or removed
+    (the certificate built in memory, never validated against the schema)."""
+    r, cert = certify_ecq([0, -1, 1, -10, -20], 2)
+    for edit in ("added", "removed"):
+        d = json.loads(cert.to_json())
+        data = d["hypotheses"][0]["evidence"][0]["data"]
+        if edit == "added":
+            data["checked_by"] = "hand"
+        else:
+            data.pop("height")
+        from certify.certificate.model import SECTIONS
+        from certify.certificate.verify import VerifyReport
+        from certify.certificate.ecq_evidence import check_ecq_evidence
+        from certify.source.ellcurve import curve_from_ainvs
+
+        # the constructor directly: no schema in the way
+        tampered = Certificate(**{k: d[k] for k in SECTIONS}, kind=d["kind"],
+                               schema_version=d["schema_version"])
+        rep = VerifyReport("t")
+        assert not check_ecq_evidence(tampered, curve_from_ainvs([0, -1, 1, -10, -20]), rep)
+        names = [c.name for c in rep.failures]
+        assert any("exactly the fields of that kind" in n for n in names), names
