@@ -128,6 +128,8 @@ KIND_COMMANDS = {
     "curve-race": ["curve", "5", "t^2 + 1", "t^3 + t + 2", "--digits", "6"],
     "order-race": ["order", "5", "1", "2", "3", "--digits", "2"],
     "ecq-race": ["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--observe", "0"],
+    # with the observed race: its labelled, uncertified section in both documents
+    "ecq-race-observed": ["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--observe", "2000"],
     "twist-family-race": ["twists", "5", "t", "t^2 + 1", "--degrees", "2", "--width", "1e-3"],
     "li-race": ["lirace", "--digits", "3"],
 }
@@ -144,7 +146,8 @@ def kind_document(request, tmp_path_factory):
     assert main(KIND_COMMANDS[kind] + ["--json", str(js)]) == 0
     import json
 
-    assert json.loads(js.read_text())["kind"] == ("dirichlet-race" if kind == "li-race" else kind)
+    want = {"li-race": "dirichlet-race", "ecq-race-observed": "ecq-race"}.get(kind, kind)
+    assert json.loads(js.read_text())["kind"] == want
     assert main(["render", str(js), "--out", str(out), "--formats", "tex,fragment"]) == 0
     return kind, out
 
@@ -165,6 +168,9 @@ def test_every_kind_has_no_ascii_formula(kind_document):
 
 def test_every_kind_compiles_standalone_and_as_a_fragment(kind_document):
     kind, out = kind_document
+    if kind == "ecq-race-observed":
+        for name in ("cert.tex", "cert-fragment.tex"):
+            assert "Observed data (not certified)" in (out / name).read_text()
     pdf = _compile(out, "cert.tex")
     assert _pages(pdf)
     (out / "paper.tex").write_text(
