@@ -226,3 +226,10 @@ def test_bundle_compiles_standalone_and_as_a_fragment(bundle_documents):
         "\\documentclass{amsart}\n\\usepackage{amsmath,booktabs,siunitx}\n\\begin{document}\n"
         "Text before.\n\n\\input{tw-fragment}\n\nText after.\n\\end{document}\n")
     _compile(out, "paper.tex")
+
+
+def test_derivative_orders_are_set_as_derivatives_not_powers():
+    """Lambda^(2)(1) is the second derivative (rank evidence of a curve over Q), not a square."""
+    assert r"\Lambda ^{(2)}(1)" in tex_text("Lambda^(2)(1)/2! excludes 0")
+    assert r"L^{(3)}(E, 1)" in tex_text("L^(3)(E, 1) = 6")
+    assert r"q^{X/2}" in tex_text("q^(X/2)")  # a power stays a power
