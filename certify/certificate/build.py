@@ -315,6 +315,22 @@ def _refined(c: int, n: int, mid: str, rad: str, bits: int) -> dict:
     return ball_record(refine_ordinate(c, n, ball_of({"mid": mid, "rad": rad}), bits))
 
 
+_RELATIONS: dict = {}  # stored ordinate strings -> relation search, per process
+
+
+def _memo_relation_search(key: tuple, balls: list) -> dict:
+    """:func:`relation_search` of the ordinates ``balls`` (whose stored strings are ``key``),
+    memoised per process: the rows of a table mostly search the same lowest ordinates
+    (a deterministic function of them; verify searches again on its own)."""
+    got = _RELATIONS.get(key)
+    if got is None:
+        got = relation_search(balls, RELATION_SCALE_BITS)
+        if len(_RELATIONS) > 4096:
+            _RELATIONS.clear()
+        _RELATIONS[key] = got
+    return dict(got)
+
+
 _COUNTS: dict = {}  # (conductor, label, parity, height) -> N or None, per process
 
 
@@ -454,7 +470,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                 rec = dict(_refined(lf["conductor"], lf["label"], z["mid"], z["rad"],
                                     RELATION_WIDTH_BITS))
             refined.append((lf, rec, ball_of(rec)))
-        rs = relation_search([b for _, _, b in refined], RELATION_SCALE_BITS)
+        rs = _memo_relation_search(tuple((rec["mid"], rec["rad"]) for _, rec, _ in refined),
+                                   [b for _, _, b in refined])
         li_ev.append(_item("integer-relation-search", {
             "size": rs["size"], "scale_bits": rs["scale_bits"],
             "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **rec}
