@@ -172,7 +172,11 @@ def certified_digits(lo: Fraction, hi: Fraction, max_digits: int = 60) -> str:
     """
     if lo > hi:
         raise ValueError("empty interval")
-    return _certified_digits(Fraction(lo), Fraction(hi), max_digits)
+    if type(lo) is not Fraction:
+        lo = Fraction(lo)
+    if type(hi) is not Fraction:
+        hi = Fraction(hi)
+    return _certified_digits(lo, hi, max_digits)
 
 
 @functools.lru_cache(maxsize=1 << 16)

@@ -141,3 +141,35 @@ def test_a_shipped_plan_gives_the_race_it_would_have_planned():
             with pytest.raises(BadInput):
                 shipped_plan(question, 6, SpectrumStore(), other)
     assert isinstance(RacePlan.from_wire(wire, shipped.variance), RacePlan)
+
+
+def test_ranking_equals_sort_then_first_of_each_law_on_random_rows():
+    """ranking() picks one row per law before sorting; on random rows (many sharing a
+    result file and enclosure, ties in the lower bound, uncertified rows) it must list
+    exactly what sorting every row by (-lower, q, label) and keeping the first row of each
+    (file, lower, upper) lists."""
+    import random
+
+    rng = random.Random(11)
+    for _ in range(30):
+        laws = []
+        for j in range(rng.randrange(1, 12)):
+            lo = Fraction(rng.randrange(1, 50), 50)
+            laws.append((f"results/r{j}.json", lo, lo + Fraction(1, 10**rng.randrange(3, 9))))
+        rows = []
+        for _ in range(rng.randrange(1, 60)):
+            src, lo, hi = rng.choice(laws)
+            q = rng.randrange(3, 40)
+            lab = f"delta({q};{rng.randrange(1, q)},{rng.randrange(1, q)})"
+            if rng.random() < 0.1:
+                rows.append(Row(q, "two-way", 1, 2, lab, None, None, False, "", src, ""))
+            else:
+                rows.append(Row(q, "two-way", 1, 2, lab, lo, hi, True, "", src, ""))
+        ok = sorted((r for r in rows if r.certified), key=lambda r: (-r.lower, r.q, r.label))
+        seen, expected = set(), []
+        for r in ok:
+            if (r.source, r.lower, r.upper) not in seen:
+                seen.add((r.source, r.lower, r.upper))
+                expected.append(r)
+        top = rng.randrange(1, 15)
+        assert ranking(rows, top) == expected[:top]
