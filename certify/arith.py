@@ -172,18 +172,31 @@ def certified_digits(lo: Fraction, hi: Fraction, max_digits: int = 60) -> str:
     """
     if lo > hi:
         raise ValueError("empty interval")
+    if type(lo) is not Fraction:
+        lo = Fraction(lo)
+    if type(hi) is not Fraction:
+        hi = Fraction(hi)
+    return _certified_digits(lo, hi, max_digits)
+
+
+@functools.lru_cache(maxsize=1 << 16)
+def _certified_digits(lo: Fraction, hi: Fraction, max_digits: int) -> str:
+    # memoised: a table prints the same enclosure on every row read from one race
     if (lo < 0) != (hi < 0) and lo != 0:
         return ""
-    best = ""
+    last = None  # (d, floor(|lo| 10^d)) for the longest common truncation so far
+    alo, ahi = abs(lo), abs(hi)
     for d in range(0, max_digits + 1):
         scale = 10**d
-        a = (abs(lo) * scale).__floor__()
-        b = (abs(hi) * scale).__floor__()
-        if a != b:
-            break
-        best = _fraction_decimal(Fraction(a, scale) * (1 if lo >= 0 else -1), d, up=False)
+        a = (alo * scale).__floor__()
         # a truncation boundary inside the interval would change the digit
-    return best
+        if a != (ahi * scale).__floor__():
+            break
+        last = (d, a)
+    if last is None:
+        return ""
+    d, a = last
+    return _fraction_decimal(Fraction(a, 10**d) * (1 if lo >= 0 else -1), d, up=False)
 
 
 def certified_significant(lo: Fraction, hi: Fraction, max_digits: int = 80) -> tuple[int, str]:

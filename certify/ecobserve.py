@@ -39,6 +39,8 @@ class Observation:
     share_positive_late: float  # the same share over [1000, X] (small x are erratic)
     samples_x: np.ndarray  # x at which s(x) is sampled (for plots)
     samples_s: np.ndarray
+    positive: int = 0  # #{p <= bound : a_p > 0} (exact)
+    negative: int = 0  # #{p <= bound : a_p < 0} (exact)
 
     def as_dict(self) -> dict:
         return {
@@ -51,6 +53,55 @@ class Observation:
             "log_scale_mean_of_normalised_sum": round(self.mean_normalised, 6),
             "share_of_log_scale_positive_from_1000": round(self.share_positive_late, 6),
         }
+
+    def record(self) -> dict:
+        """The observation as a certificate stores it (section ``spectrum.observation`` of an
+        ``ecq-race`` certificate): exact prime counts and the floating-point statistics rounded
+        to 6 places, under a label that says it is no part of the proven enclosure; ``verify``
+        recounts it from the a_p up to the bound."""
+        return {
+            "label": OBSERVATION_LABEL,
+            "bound": self.bound, "primes": self.primes,
+            "primes_with_a_p_positive": self.positive, "primes_with_a_p_negative": self.negative,
+            "primes_with_a_p_zero": self.primes - self.positive - self.negative,
+            "normalised_sum_at_bound": _six(self.final_value),
+            "share_of_log_scale_positive": _six(self.share_positive),
+            "share_of_log_scale_positive_from_1000": _six(self.share_positive_late),
+            "log_scale_mean_of_normalised_sum": _six(self.mean_normalised),
+            "sign_changes": self.sign_changes,
+            "last_sign_change": self.last_sign_change,
+        }
+
+
+def _six(x: float):
+    """x rounded to 6 places; None where it is not defined (a NaN: the range is empty)."""
+    return round(x, 6) if math.isfinite(x) else None
+
+
+def _f(x, fmt: str) -> str:
+    return "not defined (the bound is below the range)" if x is None else format(x, fmt)
+
+
+OBSERVATION_LABEL = ("observed data, not certified: computed in floating point from the exact a_p "
+                     "up to the bound; no part of the proven enclosure")
+
+
+def observation_lines(rec: dict) -> list[str]:
+    """Sentences of a stored observation record (every renderer shows these)."""
+    last = rec["last_sign_change"]
+    return [
+        f"primes p <= {rec['bound']}: {rec['primes']}, of which {rec['primes_with_a_p_positive']} "
+        f"with a_p > 0, {rec['primes_with_a_p_negative']} with a_p < 0 and "
+        f"{rec['primes_with_a_p_zero']} with a_p = 0 (exact counts)",
+        f"normalised sum (log x/sqrt(x)) sum_(p <= x) a_p/sqrt(p) at x = {rec['bound']}: "
+        f"{_f(rec['normalised_sum_at_bound'], '+.6f')}; its log-scale mean over [100, {rec['bound']}]: "
+        f"{_f(rec['log_scale_mean_of_normalised_sum'], '+.6f')}",
+        f"share of log-scale in [2, {rec['bound']}] where the sum is positive: "
+        f"{_f(rec['share_of_log_scale_positive'], '.6f')} "
+        f"({_f(rec['share_of_log_scale_positive_from_1000'], '.6f')} "
+        f"over [1000, {rec['bound']}]); {rec['sign_changes']} sign changes"
+        + ("" if last is None else f", the last at p = {last:.0f}"),
+    ]
 
 
 def observe(E: EllipticCurveQ, bound: int = 10**6, samples: int = 4000) -> Observation:
@@ -85,7 +136,8 @@ def observe(E: EllipticCurveQ, bound: int = 10**6, samples: int = 4000) -> Obser
     share_late = (float(gaps[late & (S > 0)].sum() / gaps[late].sum())
                   if late.any() and gaps[late].sum() > 0 else float("nan"))
     return Observation(bound, int(ps.size), float(S[-1] * math.log(bound) / math.sqrt(bound)),
-                       share, int(changes.size), last, mean, share_late, sx, ss)
+                       share, int(changes.size), last, mean, share_late, sx, ss,
+                       int((ap > 0).sum()), int((ap < 0).sum()))
 
 
 def limit_law_density(mu: float, weights, residual_variance: float, xs: np.ndarray) -> np.ndarray:

@@ -80,21 +80,29 @@ class RankReport:
                 f"rank = {self.rank} mod 2")
 
     def hypothesis(self) -> Hypothesis | None:
+        """The rank r >= 2 as a hypothesis: Lambda^(r)(1) != 0 proves rank <= r, the root number
+        the parity; the lower derivatives of r's parity are balls containing 0, which is
+        consistent with rank r but does not prove that they vanish (unless a published proof
+        applies to this curve, cited as such)."""
         if self.certified:
             return None
-        ev = [f"Lambda^({k})(1)/{k}! = {c.real.str(5, radius=True)} (ball contains 0; radius "
-              f"{float(c.real.rad()):.1e})" for k, c in enumerate(self.central_coefficients[:self.rank])
+        ev = [f"Lambda^({k})(1)/{k}! = {c.real.str(5, radius=True)} contains 0 (radius "
+              f"{float(c.real.rad()):.1e}): consistent with rank {self.rank}; vanishing is not "
+              "proven numerically"
+              for k, c in enumerate(self.central_coefficients[:self.rank])
               if (k % 2 == 0) == (self.root_number == 1)]
         ev.append(f"Lambda^({self.rank})(1)/{self.rank}! = "
-                  f"{self.central_coefficients[self.rank].real.str(8)} excludes 0: rank <= {self.rank} proven")
-        ev.append(f"root number {self.root_number:+d}: rank = {self.rank} mod 2 proven")
+                  f"{self.central_coefficients[self.rank].real.str(8)} excludes 0: analytic rank "
+                  f"<= {self.rank} proven")
+        ev.append(f"root number {self.root_number:+d}: Lambda^(k)(1) = 0 for every k of the other "
+                  f"parity (functional equation); rank = {self.rank} mod 2 proven")
         status, ref = "assumed", ""
         if self.theorem:
             ev.append(f"published proof that this curve has analytic rank {self.rank}: {self.theorem}")
             status, ref = "theorem", self.theorem
         return Hypothesis(
             "rank", f"L(E, s) vanishes to order exactly {self.rank} at s = 1 (the lower "
-            "derivatives of matching parity vanish).", status, tuple(ev), ref)
+            f"derivatives of the parity of {self.rank} vanish).", status, tuple(ev), ref)
 
 
 def analytic_rank(L: EllipticL, prec: int = 100) -> RankReport:

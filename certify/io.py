@@ -2,8 +2,19 @@
 
 from __future__ import annotations
 
+import json
 import os
 import tempfile
+
+
+def compact_json(obj) -> str:
+    """``obj`` as one line of JSON (C encoder, no indentation) and a newline.
+
+    Used where a batch writes thousands of large documents (result files,
+    certificates); any JSON reader, ``certify verify`` and ``certify render``
+    read them as they read the indented ones.
+    """
+    return json.dumps(obj, separators=(",", ":"), ensure_ascii=False) + "\n"
 
 
 def write_atomic(path: str, text: str) -> None:

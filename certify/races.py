@@ -14,7 +14,7 @@ from .result import NotebookDisplay
 
 import math
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from functools import lru_cache
 
@@ -231,14 +231,7 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
         s = float(g.scale.mid())
         key = tuple(qs for (qs, _) in g.primitive_keys)
         if key not in models:
-            gams = [np.asarray(_model_ordinates(qs, 2000.0)) for qs in key]
-            gam = np.sort(np.concatenate(gams)) if gams else np.zeros(0)
-            suffix = None
-            if sums is not None:
-                a = 1 / (0.25 + gam ** 2)
-                pw = a[:, None] ** np.arange(1, K + 1)[None, :]
-                suffix = np.vstack([np.cumsum(pw[::-1], axis=0)[::-1], np.zeros((1, K))])
-            models[key] = (gam, suffix)
+            models[key] = _group_model(key, K if sums is not None else None)
         gam, suffix = models[key]
         parts.append((s, gam, s / np.hypot(0.5, gam), suffix))
     use_residual = sums is not None and height_factor is not None and len(sums) == len(parts)
@@ -269,6 +262,25 @@ def plan_frequency_range(groups, V: float, mu: float, tau: float,
                 return xi
         xi *= 1.15
     return xi
+
+
+@lru_cache(maxsize=4096)
+def _group_model(key: tuple, K: int | None):
+    """(model ordinates, suffix power sums 1..K or None) of a group whose L-functions have
+    the conductors ``key``; memoised (a table plans thousands of races over the same
+    characters), read-only arrays."""
+    import numpy as np
+
+    gams = [np.asarray(_model_ordinates(qs, 2000.0)) for qs in key]
+    gam = np.sort(np.concatenate(gams)) if gams else np.zeros(0)
+    suffix = None
+    if K is not None:
+        a = 1 / (0.25 + gam ** 2)
+        pw = a[:, None] ** np.arange(1, K + 1)[None, :]
+        suffix = np.vstack([np.cumsum(pw[::-1], axis=0)[::-1], np.zeros((1, K))])
+        suffix.flags.writeable = False
+    gam.flags.writeable = False
+    return gam, suffix
 
 
 def _model_tail(parts, cut, sums, iso, eps: float, xi: float, goal: float) -> float:
@@ -408,6 +420,24 @@ class RacePlan:
         bits = int(self.digits * 3.33 + 2 * self.moments * math.log2(grow) + 40)
         return height, self.width, self.moments, bits
 
+    def to_wire(self) -> dict:
+        """The plan as plain data for another process, without the variance ball (which the
+        receiver recomputes: :func:`shipped_plan`)."""
+        from dataclasses import fields
+
+        d = {f.name: getattr(self, f.name) for f in fields(self) if f.name != "variance"}
+        d["mean"] = (self.mean.numerator, self.mean.denominator)
+        d["inverse_rho"] = [[list(k), v] for k, v in self.inverse_rho.items()]
+        return d
+
+    @classmethod
+    def from_wire(cls, d: dict, variance: arb) -> "RacePlan":
+        d = dict(d)
+        d["variance"] = variance
+        d["mean"] = Fraction(*d["mean"])
+        d["inverse_rho"] = {tuple(k): v for k, v in d["inverse_rho"]}
+        return cls(**d)
+
     def spectrum_requests(self, groups) -> list[tuple]:
         """(conductor, label, parity, height, width, moments, bits) for every L-function needed."""
         out = []
@@ -417,11 +447,10 @@ class RacePlan:
         return out
 
 
-def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> RacePlan:
-    """The first-round plan of a race: exact variance (first moments), frequency range, sizes."""
-    tau = 10.0 ** (-digits)
+def _first_moments(question: RaceQuestion, digits: int, store: SpectrumStore):
+    """(prec, groups, moments, V, sums, inverse_rho): the exact variance V (first moments)
+    and the float power sums the plan reads, from ``store``."""
     prec = max(80, int(digits * 3.33) + 48)
-    mu_q = mean_of(question)
     groups = spectral_groups(question)
     if not groups:
         raise BadInput(f"{question.label}: every character sum W(chi) vanishes; the race is degenerate")
@@ -445,6 +474,14 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
             pos = [(k, x) for k, x in enumerate(sums[-1], start=1) if x > 0]
             if pos:
                 inverse_rho[g.primitive_keys[0]] = min(x ** (1 / (2 * k)) for k, x in pos)
+    return prec, groups, moments, V, sums, inverse_rho
+
+
+def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> RacePlan:
+    """The first-round plan of a race: exact variance (first moments), frequency range, sizes."""
+    tau = 10.0 ** (-digits)
+    mu_q = mean_of(question)
+    prec, groups, moments, V, sums, inverse_rho = _first_moments(question, digits, store)
     xi_max = plan_frequency_range(groups, float(V.mid()), float(mu_q), tau,
                                   height_factor=PLAN_HEIGHT_FACTOR, sums=sums,
                                   inverse_rho=[inverse_rho.get(g.primitive_keys[0])
@@ -454,9 +491,23 @@ def plan_race(question: RaceQuestion, digits: int, store: SpectrumStore) -> Race
                     inverse_rho=inverse_rho)
 
 
+def shipped_plan(question: RaceQuestion, digits: int, store: SpectrumStore,
+                 wire: dict) -> RacePlan:
+    """The plan another process made for this race (:meth:`RacePlan.to_wire`), with the
+    exact variance recomputed here from ``store`` (a ball does not cross processes bit for
+    bit), so the race runs exactly as if it had planned itself; the frequency range, the
+    costly part of planning, is taken as shipped."""
+    prec, _, moments, V, _, _ = _first_moments(question, digits, store)
+    plan = RacePlan.from_wire(wire, V)
+    if (plan.digits, plan.prec, plan.moments, plan.mean) != (digits, prec, moments,
+                                                             mean_of(question)):
+        raise BadInput(f"{question.label}: the shipped plan is not this race's plan")
+    return plan
+
+
 def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
                  store: SpectrumStore | None = None, max_rounds: int = 5,
-                 command_line: str = "") -> RaceResult:
+                 command_line: str = "", plan: RacePlan | None = None) -> RaceResult:
     """Certify the density of ``question`` to width 10^-digits (or say how close it got).
 
     Parameters
@@ -485,7 +536,10 @@ def certify_race(question: RaceQuestion, digits: int = DEFAULT_DIGITS,
         raise BadInput(f"digits must be between 1 and {MAX_DIGITS} (got {digits})")
     t_start = time.time()
     store = store or SpectrumStore()
-    plan = plan_race(question, digits, store)
+    # a batch plans each race once, where it decides which spectra to compute, and passes
+    # that plan here (the plan only decides how far to compute; nothing trusts it)
+    plan = (plan_race(question, digits, store) if plan is None
+            else replace(plan, inverse_rho=dict(plan.inverse_rho)))
     tau, prec, mu_q, V = plan.tau, plan.prec, plan.mean, plan.variance
     best = None
     timings = {"spectra": 0.0, "density": 0.0}

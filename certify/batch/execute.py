@@ -28,6 +28,7 @@ import threading
 import time
 
 from ..errors import CertifyError
+from ..io import compact_json
 from .serial import decode, encode
 
 _LOCK = threading.Lock()
@@ -176,8 +177,13 @@ def _spectrum(req: dict, start: tuple | None = None, batched: dict | None = None
             "zeros": len(sp.zeros.zeros), "height": sp.height, "pid": os.getpid()}
 
 
-def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -> list[dict]:
+def race_task(items: list, digits: int, spectra: dict, command_line: str = "",
+              plans: list | None = None) -> list[dict]:
     """Certify each (slug, question) of ``items`` from the shipped ``spectra``.
+
+    ``plans`` (optional, one per item, None where absent) are the plans the coordinator
+    made for these races (:meth:`certify.races.RacePlan.to_wire`); a race with one does
+    not plan again (:func:`certify.races.shipped_plan` recomputes its exact variance).
 
     ``spectra`` maps "conductor.label" to (blob, digest).  Each race sees them
     truncated to the heights it asks for.  A spectrum a race had to extend (a
@@ -187,7 +193,7 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
     coordinator to store.  The order of races in a task is fixed by the plan,
     so the enclosures do not depend on the executor.
     """
-    from ..races import certify_race
+    from ..races import certify_race, shipped_plan
     from .cache import CachedStore
 
     with _LOCK:
@@ -199,12 +205,15 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             digests[key] = digest
         out = []
         extended = {}
-        for slug, question in items:
+        for j, (slug, question) in enumerate(items):
             store = CachedStore(backend=None, spectra=base)
             t0 = time.perf_counter()
+            wire = plans[j] if plans is not None and j < len(plans) else None
             try:
                 with _MemoryCap(RACE_MEMORY):
-                    r = certify_race(question, digits, store=store, command_line=command_line)
+                    plan = shipped_plan(question, digits, store, wire) if wire else None
+                    r = certify_race(question, digits, store=store, command_line=command_line,
+                                     plan=plan)
             except CertifyError as exc:
                 out.append({"slug": slug, "ok": False, "error": str(exc),
                             "error_kind": type(exc).__name__, "new_spectra": [],
@@ -226,9 +235,9 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
             # the row's certificate (verify re-checks it): built from this store's spectra
             cert_doc = None
             try:
-                from ..certificate.build import certificate_from_result
+                from ..certificate.build import certificate_document
 
-                cert_doc = certificate_from_result(r, store).to_dict()
+                cert_doc = certificate_document(r, store)
             except CertifyError as exc:
                 d["certificate_error"] = str(exc)
             used = sorted({f"{c}.{n}" for g in r.groups for (c, n) in g.primitive_keys})
@@ -239,7 +248,16 @@ def race_task(items: list, digits: int, spectra: dict, command_line: str = "") -
                 "spectra": {k: digests.get(k, "computed in this task") for k in used},
                 "spectra_extended_in_task": [f"{c}.{n}" for c, n in dict.fromkeys(store.computed)],
             }
-            out.append({"slug": slug, "ok": True, "result": d, "certificate": cert_doc,
+            # serialised here, in the worker, with the C encoder (compact JSON): the
+            # coordinator only writes the text, so it does not become the bottleneck
+            out.append({"slug": slug, "ok": True, "result": d,
+                        "result_text": compact_json(d),
+                        "certificate_text": (compact_json(cert_doc) if cert_doc is not None
+                                             else None),
+                        # what the table index shows of the certificate (it need not re-read it)
+                        "certificate_summary": (None if cert_doc is None else {
+                            "answer": {"enclosure": dict(cert_doc["answer"]["enclosure"])},
+                            "question": {"label": cert_doc["question"]["label"]}}),
                         "target_met": r.target_met,
                         "timings": dict(r.timings), "seconds": time.perf_counter() - t0,
                         "z_calls": store.z_calls, "new_spectra": []})

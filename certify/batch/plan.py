@@ -209,22 +209,35 @@ def first_round_requests(question: RaceQuestion, digits: int, store) -> list[tup
     If a race needs more (a refinement round), it extends the spectra itself
     (counted as ``extended_by_races`` in the batch summary).
     """
+    return first_round_plan(question, digits, store)[1]
+
+
+def first_round_plan(question: RaceQuestion, digits: int, store) -> tuple:
+    """(plan, requests): the race's plan (:func:`certify.races.plan_race`) and the
+    requests of :func:`first_round_requests`."""
     from ..races import plan_race
 
     plan = plan_race(question, digits, store)
     with workprec(plan.prec):
         groups = spectral_groups(question)
-    return [tuple(r) for r in plan.spectrum_requests(groups)]
+    return plan, [tuple(r) for r in plan.spectrum_requests(groups)]
 
 
-def spectrum_requests(items: list[RaceItem], digits: int, store=None) -> dict:
-    """{(conductor, label): Request} covering the first round of every race in ``items``."""
+def spectrum_requests(items: list[RaceItem], digits: int, store=None,
+                      plans: dict | None = None) -> dict:
+    """{(conductor, label): Request} covering the first round of every race in ``items``.
+
+    ``plans``, if given, receives {slug: plan as plain data} (:meth:`RacePlan.to_wire`),
+    so the races need not plan again."""
     from ..spectrum.spectrum import SpectrumStore
 
     store = store if store is not None else SpectrumStore()
     reqs: dict[tuple[int, int], Request] = {}
     for it in items:
-        for (c, n, par, h, w, k, b) in first_round_requests(it.question, digits, store):
+        plan, first = first_round_plan(it.question, digits, store)
+        if plans is not None:
+            plans[it.slug] = plan.to_wire()
+        for (c, n, par, h, w, k, b) in first:
             r = reqs.setdefault((c, n), Request(c, n, par))
             r.widen(h, w, k, b)
     return reqs

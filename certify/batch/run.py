@@ -188,11 +188,13 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                     "certify does not prove GRH or LI."),
     }
     executor = None
+    written: dict = {}  # certificate path -> what the table index shows of it
     try:
         # ---- plan -------------------------------------------------------
         t0 = time.time()
         plan_store = CachedStore(backend=cache)
-        reqs = spectrum_requests(pending, digits, plan_store) if pending else {}
+        plans: dict = {}  # slug -> the race's plan, shipped with it (planned once, here)
+        reqs = spectrum_requests(pending, digits, plan_store, plans) if pending else {}
         keys_of = {it.slug: _keys_of(it) for it in pending}
         summary["timings_seconds"]["plan"] = round(time.time() - t0, 3)
         summary["spectra"]["needed"] = len(reqs)
@@ -281,7 +283,8 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
             for ch in chunks:
                 keys = sorted({k for it in ch for k in keys_of[it.slug]})
                 shipped = {f"{c}.{n}": blobs[f"{c}.{n}"] for c, n in keys if f"{c}.{n}" in blobs}
-                args.append(([(it.slug, it.question) for it in ch], digits, shipped, command_line))
+                args.append(([(it.slug, it.question) for it in ch], digits, shipped, command_line,
+                             [plans.get(it.slug) for it in ch]))
             prog = Progress("races", len(pending), enabled=progress)
             for i, results in run_all(executor, race_task, args):
                 if isinstance(results, BaseException):
@@ -300,10 +303,10 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
                                                     "error": res["error"]})
                         prog.advance(1)
                         continue
-                    write_atomic(result_path(out, it), json.dumps(res["result"], indent=1) + "\n")
-                    if res.get("certificate"):
-                        write_atomic(certificate_path(out, it),
-                                     json.dumps(res["certificate"], indent=1) + "\n")
+                    write_atomic(result_path(out, it), res["result_text"])
+                    if res.get("certificate_text"):
+                        write_atomic(certificate_path(out, it), res["certificate_text"])
+                        written[certificate_path(out, it)] = res["certificate_summary"]
                     done[it.slug] = res["result"]
                     pq = per_q[it.modulus]
                     pq["races"] += 1
@@ -330,7 +333,7 @@ def run_batch(moduli: list[int], digits: int, out: str, workers: int | None = No
     t0 = time.time()
     ordered = [(it, done.get(it.slug)) for it in items]
     files = write_tables(out, ordered, digits, top=top, command_line=command_line,
-                         equivalences=equivalences)
+                         equivalences=equivalences, certificates=written)
     summary["timings_seconds"]["tables"] = round(time.time() - t0, 3)
     summary["timings_seconds"]["total"] = round(time.time() - t_start, 3)
     summary["files"] = files

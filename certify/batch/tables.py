@@ -17,6 +17,7 @@ Every row names the result file it comes from and that file's SHA-256.
 from __future__ import annotations
 
 import csv
+import functools
 import hashlib
 import io
 import math
@@ -94,6 +95,7 @@ def rows_from_equivalences(out: str, ordered, equivalences) -> list[Row]:
     rows = []
     named = set()
     digests: dict = {}
+    parsed: dict = {}  # slug -> (lo, hi, mean, exact, path, rel): ~45 rows share one race
     for e in equivalences:
         tq = (residue_race(e.target_q) if e.target_a is None
               else two_way(e.target_q, e.target_a, e.target_b))
@@ -102,17 +104,24 @@ def rows_from_equivalences(out: str, ordered, equivalences) -> list[Row]:
         it, d = by_slug.get(slug, (RaceItem(tq), None))
         kind = "residues" if e.a is None else "two-way"
         label = f"delta({e.q};N,R)" if e.a is None else f"delta({e.q};{e.a},{e.b})"
-        path = result_path(out, it)
-        rel = os.path.relpath(path, out)
+        got = parsed.get(slug)
+        if got is None:
+            path = result_path(out, it)
+            rel = os.path.relpath(path, out)
+            if d is not None:
+                ex = (d["density"].get("exact") or {}).get("value")
+                got = (Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"]),
+                       Fraction(d["mean"]) if d.get("mean") else None,
+                       Fraction(ex) if ex else None, path, rel)
+            else:
+                got = (None, None, None, None, path, rel)
+            parsed[slug] = got
+        lo, hi, mean, exact, path, rel = got
         if d is None:
             rows.append(Row(e.q, kind, e.a, e.b, label, None, None, False, "", rel, "",
                             derived=not e.is_identity, error="not certified (see batch.json)",
                             equals=e.target_label, relation=e.reason))
             continue
-        lo, hi = Fraction(d["density"]["lower"]), Fraction(d["density"]["upper"])
-        mean = Fraction(d["mean"]) if d.get("mean") else None
-        ex = (d["density"].get("exact") or {}).get("value")
-        exact = Fraction(ex) if ex else None
         if e.flip:
             lo, hi = 1 - hi, 1 - lo
             mean = -mean if mean is not None else None
@@ -203,7 +212,13 @@ def one_minus_text(row: Row, latex: bool) -> str:
     """1 - delta in scientific notation where delta is close to 1 (else empty)."""
     if not row.certified or row.lower < CLOSE_TO_ONE or row.exact is not None:
         return ""
-    lo, hi = 1 - row.upper, 1 - row.lower
+    return _one_minus_text(row.lower, row.upper, latex)
+
+
+@functools.lru_cache(maxsize=1 << 15)
+def _one_minus_text(lower: Fraction, upper: Fraction, latex: bool) -> str:
+    # memoised: the rows a table reads from one race share its enclosure
+    lo, hi = 1 - upper, 1 - lower
     if lo <= 0:
         return ""
     parts = sci_parts(lo, hi)
@@ -340,17 +355,23 @@ CSV_FIELDS = ["q", "kind", "a", "b", "race", "lower", "upper", "width", "certifi
 CSV_CONDITION = "GRH and LI for the L-functions used (assumed, not proven)"
 
 
+@functools.lru_cache(maxsize=1 << 15)
+def _csv_numbers(lo: Fraction, hi: Fraction) -> tuple[str, str, str, str]:
+    """(lower, upper, width, certified digits) cells of an enclosure, memoised (the rows a
+    table reads from one race share it)."""
+    return (decimal_down(lo, 30).rstrip("0"), decimal_up(hi, 30).rstrip("0"),
+            sci_up(hi - lo, 4), certified_digits(lo, hi))
+
+
 def render_csv(rows: list[Row]) -> str:
     buf = io.StringIO()
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(CSV_FIELDS)  # the header on the first line; the caution in every row
     for r in rows:
         if r.certified:
-            lower = decimal_down(r.lower, 30).rstrip("0")
-            upper = decimal_up(r.upper, 30).rstrip("0")
+            lower, upper, width, common = _csv_numbers(r.lower, r.upper)
             w.writerow([r.q, r.kind, r.a if r.a is not None else "", r.b if r.b is not None else "",
-                        r.label, lower, upper, sci_up(r.upper - r.lower, 4),
-                        certified_digits(r.lower, r.upper), one_minus_text(r, False),
+                        r.label, lower, upper, width, common, one_minus_text(r, False),
                         "yes" if r.target_met else "no", r.mean, "yes" if r.derived else "no",
                         r.source, r.sha256, "certified",
                         fraction_text(r.exact) if r.exact is not None else "", r.equals, r.relation,
@@ -367,20 +388,22 @@ def ranking(rows: list[Row], top: int) -> list[Row]:
 
     Rows that are one law (one result file read in one orientation) are listed once.
     """
-    ok = [r for r in rows if r.certified]
-    ok.sort(key=lambda r: (-r.lower, r.q, r.label))
     # the same law read several times (symmetric classes, or the same race at q and 2q)
     # is one result file in one orientation: list it once, by its row of least modulus
-    seen = set()
-    out = []
-    for r in ok:
+    # (then label); one row per law is chosen first, so only those few are sorted exactly
+    first: dict = {}
+    for r in rows:
+        if not r.certified:
+            continue
         key = (r.source, r.lower, r.upper)
-        if key not in seen:
-            seen.add(key)
-            out.append(r)
+        best = first.get(key)
+        if best is None or (r.q, r.label) < (best.q, best.label):
+            first[key] = r
+    out = sorted(first.values(), key=lambda r: (-r.lower, r.q, r.label))
     return out[:top]
 
 
+@functools.lru_cache(maxsize=1 << 15)
 def _one_minus(x: str) -> str:
     from decimal import Decimal, localcontext
 
@@ -389,14 +412,19 @@ def _one_minus(x: str) -> str:
         return str(Decimal(1) - Decimal(x))
 
 
-def certificate_index(out: str, rows: list) -> list:
+def certificate_index(out: str, rows: list, known: dict | None = None) -> list:
     """Rows of the table index: each names its certificate and shows the certificate's
     enclosure (or 1 minus it, ends swapped, for a row equal to a reversed race).  A row
-    whose result has a certificate names that file in every table instead of the result."""
+    whose result has a certificate names that file in every table instead of the result.
+
+    ``known`` maps the paths of certificates this run wrote to their enclosure and label
+    (as read back they would be); any other certificate is read from its file."""
     import json
 
     index = []
-    read: dict = {}  # path -> (enclosure, label): rows read by symmetry share a certificate
+    # path -> (enclosure, label): rows read by symmetry share a certificate
+    read: dict = dict(known or {})
+    ends: dict = {}  # path -> midpoint of the certificate's enclosure
     for row in rows:
         if row.lower is None or not row.source.startswith("results" + os.sep):
             continue
@@ -414,11 +442,13 @@ def certificate_index(out: str, rows: list) -> list:
         if cert is None:
             continue
         enc = cert["answer"]["enclosure"]
-        clo, chi = Fraction(enc["lower"]), Fraction(enc["upper"])
+        if path not in ends:
+            ends[path] = (Fraction(enc["lower"]) + Fraction(enc["upper"])) / 2
+        cmid = ends[path]
         mid = (row.lower + row.upper) / 2
         # a row equal to the reversed race shows 1 - delta; ties (delta = 1/2) need the labels
         flip = (row.label != cert["question"]["label"]
-                and abs(mid - (1 - (clo + chi) / 2)) <= abs(mid - (clo + chi) / 2))
+                and abs(mid - (1 - cmid)) <= abs(mid - cmid))
         lower, upper = ((_one_minus(enc["upper"]), _one_minus(enc["lower"])) if flip
                         else (enc["lower"], enc["upper"]))
         index.append({"label": row.label, "lower": lower, "upper": upper, "certificate": rel,
@@ -429,7 +459,7 @@ def certificate_index(out: str, rows: list) -> list:
 
 
 def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: str = "",
-                 equivalences=None) -> dict:
+                 equivalences=None, certificates: dict | None = None) -> dict:
     """Write table.{tex,csv,md} and ranking.{tex,md,csv}; returns {kind: path}.
 
     With ``equivalences`` (:func:`certify.batch.plan.table_equivalences`) every row is
@@ -437,7 +467,7 @@ def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: st
     """
     rows = (rows_from_equivalences(out, ordered, equivalences) if equivalences is not None
             else rows_from_results(out, ordered))
-    index = certificate_index(out, rows)
+    index = certificate_index(out, rows, certificates)
     shown = leader_first(rows)
     best = ranking(rows, top)
     files = {
@@ -453,10 +483,14 @@ def write_tables(out: str, ordered, digits: int, top: int = 20, command_line: st
 
     from ..certificate.model import envelope
 
-    write_atomic(files["table_index"], json.dumps(envelope("table", {
-        "title": "prime races", "rows": index,
+    # one row per line (each row by the C encoder): readable, and fast for 10^5 rows
+    head = json.dumps(envelope("table", {
+        "title": "prime races", "rows": [],
         "note": "each row names the certificate it comes from; `certify verify table.json` "
-                "re-checks every certificate and every row against it"}), indent=1) + "\n")
+                "re-checks every certificate and every row against it"}), indent=1)
+    body = ",\n  ".join(json.dumps(r, ensure_ascii=False) for r in index)
+    text = head.replace('"rows": []', '"rows": [\n  ' + body + "\n ]" if index else '"rows": []', 1)
+    write_atomic(files["table_index"], text + "\n")
     moduli = sorted({r.q for r in rows})
     span = f"{moduli[0]}..{moduli[-1]}" if moduli else ""
     write_atomic(files["table_tex"], render_latex(shown, digits))

@@ -11,13 +11,13 @@ up, enclosure ends are decimals rounded outward.
 from __future__ import annotations
 
 import functools
-
 import hashlib
+import math
 import json
 from fractions import Fraction
 
-from ..arith import (certified_digits, certified_significant, decimal_down, decimal_up, sci_down,
-                     workprec)
+from ..arith import (ball_strings, certified_digits, certified_significant, decimal_down,
+                     decimal_up, sci_down, workprec)
 from ..errors import PrecisionExhausted
 from ..race.question import RaceQuestion
 from ..races import DEFAULT_DIGITS, PUBLISHED_RH, RaceResult, certify_race
@@ -239,7 +239,12 @@ def grh_statement(spectrum) -> str:
 
 def _g(x) -> str:
     """A height or lower bound in a sentence: rounded down (the sentence then claims less)."""
-    return decimal_down(Fraction(str(x)), 4)
+    return _g_text(str(x))
+
+
+@functools.lru_cache(maxsize=1 << 14)
+def _g_text(x: str) -> str:
+    return decimal_down(Fraction(x), 4)
 
 
 def evidence_text(item, rh: str = "GRH") -> str:
@@ -310,6 +315,22 @@ def _refined(c: int, n: int, mid: str, rad: str, bits: int) -> dict:
     return ball_record(refine_ordinate(c, n, ball_of({"mid": mid, "rad": rad}), bits))
 
 
+_RELATIONS: dict = {}  # stored ordinate strings -> relation search, per process
+
+
+def _memo_relation_search(key: tuple, balls: list) -> dict:
+    """:func:`relation_search` of the ordinates ``balls`` (whose stored strings are ``key``),
+    memoised per process: the rows of a table mostly search the same lowest ordinates
+    (a deterministic function of them; verify searches again on its own)."""
+    got = _RELATIONS.get(key)
+    if got is None:
+        got = relation_search(balls, RELATION_SCALE_BITS)
+        if len(_RELATIONS) > 4096:
+            _RELATIONS.clear()
+        _RELATIONS[key] = got
+    return dict(got)
+
+
 _COUNTS: dict = {}  # (conductor, label, parity, height) -> N or None, per process
 
 
@@ -321,12 +342,37 @@ def _memo_counts(requests) -> dict:
     from .zerocount import zero_counts
 
     keys = [(int(c), int(n), int(p), Fraction(h)) for c, n, p, h in requests]
-    todo = sorted({k for k in keys if k not in _COUNTS})
-    if todo:
-        got = zero_counts(todo, memo=True)
-        for k in todo:
+    todo = {k for k in keys if k not in _COUNTS}
+    # a top edge costs one Hurwitz jet per class of the conductor whatever the number of
+    # characters it serves: count every primitive character of a small conductor at a
+    # height asked for, so the following rows of the table find their counts here
+    for c, h in {(k[0], k[3]) for k in todo}:
+        if c <= _EVERY_LABEL_MAX:
+            todo |= {k for k in _primitive_keys(c, h) if k not in _COUNTS}
+    # zero_counts takes one height per L-function: one call per height
+    by_height: dict = {}
+    for k in sorted(todo):
+        by_height.setdefault(k[3], []).append(k)
+    for h, ks in sorted(by_height.items()):
+        got = zero_counts(ks, memo=True)
+        for k in ks:
             _COUNTS[k] = got[(k[0], k[1])]
     return {(k[0], k[1]): _COUNTS[k] for k in keys}
+
+
+_EVERY_LABEL_MAX = 400  # as zerocount._BOTTOM_ALL_MAX
+
+
+@functools.lru_cache(maxsize=1024)
+def _primitive_labels(c: int) -> tuple:
+    from flint import dirichlet_char
+
+    return tuple((n, int(dirichlet_char(c, n).parity())) for n in range(1, c)
+                 if math.gcd(n, c) == 1 and dirichlet_char(c, n).is_primitive())
+
+
+def _primitive_keys(c: int, h: Fraction) -> list:
+    return [(c, n, p, h) for n, p in _primitive_labels(c)]
 
 
 def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH",
@@ -351,6 +397,31 @@ def _zero_count_evidence(lf: dict, zeros: list, height: str, rh: str = "GRH",
                  l_function=key)
 
 
+_CONSEQUENCES: dict = {}  # stored group data -> moment consequences, per process
+
+
+def _group_consequences(rec: dict, g, prec: int) -> dict:
+    """What the exact moments say about a group's stored zeros (completeness height, simple
+    zeros), from the stored (re-parsed) balls, exactly as verify will recompute it.
+
+    Memoised per process on the stored strings (the races of one modulus share their
+    groups): a deterministic function of its arguments, recomputed by verify on its own."""
+    key = (tuple((z["mid"], z["rad"]) for z in rec["zeros"]),
+           tuple(ball_strings(t) for t in g.target_sums), prec)
+    got = _CONSEQUENCES.get(key)
+    if got is None:
+        stored_zeros = [ball_of(z) for z in rec["zeros"]]
+        with workprec(prec):
+            residual = residual_sums(list(g.target_sums), stored_zeros)
+        got = moment_consequences(residual, stored_zeros, prec=max(prec, 128))
+        # a relative margin of 1e-9 below the recomputable value, then rounded down
+        got["complete_below"] = got["complete_below"] * (1 - Fraction(1, 10**9))
+        if len(_CONSEQUENCES) > 20000:
+            _CONSEQUENCES.clear()
+        _CONSEQUENCES[key] = got
+    return dict(got)
+
+
 def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
     """GRH (RH for zeta) and LI with structured evidence (each item: kind, text, data)."""
     from ..race.question import riemann_hypothesis_name
@@ -362,13 +433,7 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                           for rec in spectrum["groups"] for lf in rec["l_functions"]])
     for gi, (g, rec) in enumerate(zip(result.groups, spectrum["groups"])):
         prec = int(result.parameters.get("working_precision_bits", 128))
-        # evidence from the stored (re-parsed) balls, exactly as verify will recompute it
-        stored_zeros = [ball_of(z) for z in rec["zeros"]]
-        with workprec(prec):
-            residual = residual_sums(list(g.target_sums), stored_zeros)
-        cons = moment_consequences(residual, stored_zeros, prec=max(prec, 128))
-        # a relative margin of 1e-9 below the recomputable value, then rounded down
-        cons["complete_below"] = cons["complete_below"] * (1 - Fraction(1, 10**9))
+        cons = _group_consequences(rec, g, prec)
         for li, lf in enumerate(rec["l_functions"]):
             c, n = lf["conductor"], lf["label"]
             count = sum(1 for z in rec["zeros"] if z["l"] == li)
@@ -405,7 +470,8 @@ def _hypotheses(result: RaceResult, spectrum: dict, relation_size: int) -> list:
                 rec = dict(_refined(lf["conductor"], lf["label"], z["mid"], z["rad"],
                                     RELATION_WIDTH_BITS))
             refined.append((lf, rec, ball_of(rec)))
-        rs = relation_search([b for _, _, b in refined], RELATION_SCALE_BITS)
+        rs = _memo_relation_search(tuple((rec["mid"], rec["rad"]) for _, rec, _ in refined),
+                                   [b for _, _, b in refined])
         li_ev.append(_item("integer-relation-search", {
             "size": rs["size"], "scale_bits": rs["scale_bits"],
             "ordinates": [{"l_function": f"{lf['conductor']}.{lf['label']}", **rec}
@@ -447,6 +513,28 @@ def riemann_hypothesis_name(question) -> str:
 def certificate_from_result(result: RaceResult, store: SpectrumStore,
                             relation_size: int = RELATION_SIZE) -> Certificate:
     """The certificate of a race result computed with ``store``."""
+    return Certificate(**_sections(result, store, relation_size))
+
+
+def certificate_document(result: RaceResult, store: SpectrumStore,
+                         relation_size: int = RELATION_SIZE) -> dict:
+    """``certificate_from_result(result, store).to_dict()`` without the frozen copy.
+
+    A table writes one certificate per row: the document is built once, as plain data,
+    and serialised at once (the frozen and thawed copies of ~10^5 values each cost more
+    than the rest of the row's certificate)."""
+    from .model import SCHEMA_ID, SCHEMA_VERSION, SECTIONS
+
+    sections = _sections(result, store, relation_size)
+    doc = {"schema": SCHEMA_ID, "schema_version": SCHEMA_VERSION, "kind": "dirichlet-race"}
+    for name in SECTIONS:
+        doc[name] = sections[name]
+    # serialised, this is the JSON of to_dict (tuples become lists, keys strings); the values
+    # may be shared with per-process memos, so the caller serialises it and does not edit it
+    return doc
+
+
+def _sections(result: RaceResult, store: SpectrumStore, relation_size: int) -> dict:
     spectrum = _spectrum_record(result, store)
     params = certificate_parameters(result)
     prov = dict(result.provenance)
@@ -457,7 +545,7 @@ def certificate_from_result(result: RaceResult, store: SpectrumStore,
     budget = [{"name": e.name, "bound": sci_bound(e.bound, 3), "description": e.description}
               for e in result.budget]
     refs = certificate_references()
-    return Certificate(
+    return dict(
         question=question_record(result.question),
         answer=answer_record(result),
         hypotheses=_hypotheses(result, spectrum, relation_size),

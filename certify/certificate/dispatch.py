@@ -109,6 +109,15 @@ def _verify_twist_bundle(path: str, data: dict) -> list:
             q.get("twist_degrees") == ds and len(set(ds)) == len(ds), f"listed {q.get('twist_degrees')}, "
             f"certificates {ds}")
     rep.add("bundle: one curve, field and mode", len(curves) == 1, f"{len(curves)} different")
+    # the curve the bundle names is the one in every certificate's (verified) label
+    named = str(q.get("base_curve"))
+    rep.add("bundle: the base curve named is that of the certificates",
+            all(str(c["question"].get("label", "")).endswith(f"of E: {named}") for c in certs),
+            f"bundle names {named[:80]!r}")
+    rep.add("bundle: no field beyond its question, certificates, caution and written files",
+            set(data) <= {"schema", "schema_version", "kind", "question", "certificates", "caution",
+                          "figure"} and set(q) == {"kind", "base_curve", "twist_degrees"},
+            f"fields {sorted(data)}, question fields {sorted(q)}")
     rep.add("bundle: the caution is that of the last certificate", data.get("caution") == certs[-1]["caution"],
             "differs")
     return out + [Outcome(path, rep)]

@@ -16,21 +16,26 @@ from fractions import Fraction
 
 from ..errors import BadInput, Inconsistent
 from .model import Certificate, ball_record
-from .recount import (answer_from_enclosure, budget_records, hypothesis_records, provenance,
-                      timed_report)
+from .ecq_items import hypothesis_records, independent_items
+from .recount import answer_from_enclosure, budget_records, provenance, timed_report
 
 DEFINITION = ("logarithmic density: lim_{X -> oo} (1/log X) int_2^X 1[sum_{p <= x} a_p/sqrt(p) > 0] "
               "dx/x, equal to P(X > 0) for the limit law of `docs/elliptic_curves_q.md` (section 5)")
-LIMITS = {"digits": 12, "conductor": 10**5}
+LIMITS = {"digits": 12, "conductor": 10**5, "observe": 10**6}
 
 
-def ecq_certificate(result, grh_height: float, seconds: float) -> Certificate:
+def ecq_certificate(result, grh_height: float, seconds: float, observation=None) -> Certificate:
+    """The certificate of an :class:`~certify.ecrace.ECRaceResult`; with ``observation`` (an
+    :class:`~certify.ecobserve.Observation`), a section ``spectrum.observation`` of observed data
+    (labelled as such: no part of the proven enclosure; verify recounts it)."""
     E = result.curve
     question = {"setting": "E/Q", "ainvs": [int(x) for x in E.ainvs],
                 "label": result.question.label, "statement": result.question.statement,
                 "definition": DEFINITION}
     params = {k: v for k, v in result.parameters.items()}
     params.update({"digits": result.digits_requested, "grh_height": float(grh_height)})
+    if observation is not None:
+        params["observe"] = int(observation.bound)
     spectrum = {
         "curve": E.as_dict(),
         "analytic_rank": {"value": result.rank.rank, "certified": result.rank.certified,
@@ -47,9 +52,19 @@ def ecq_certificate(result, grh_height: float, seconds: float) -> Certificate:
     }
     inputs = {"setting": "E/Q", "ainvs": question["ainvs"], "digits": result.digits_requested,
               "grh_height": float(grh_height)}
+    # the independent checks as structured items (verify re-derives each and its sentence)
+    curve = spectrum["curve"]
+    spectrum["evidence"] = independent_items(
+        tuple(int(x) for x in E.minimal), int(E.conductor), set(int(p) for p in E.bad_primes),
+        result.rank.root_number, result.rank.rank,
+        {int(d["p"]): d for d in curve["local_data"]}, result.rank.theorem)
+    if observation is not None:
+        spectrum["observation"] = observation.record()
+        inputs["observe"] = int(observation.bound)
     cmd = " ".join(shlex.quote(a) for a in [
         "certify", "ecrace", "[" + ",".join(str(x) for x in E.ainvs) + "]",
-        "--digits", str(result.digits_requested), "--observe", "0",
+        "--digits", str(result.digits_requested),
+        "--observe", str(observation.bound if observation is not None else 0),
         "--grh-height", f"{float(grh_height):g}"])
     lo, hi = result.density.lower, result.density.upper
     return Certificate(
@@ -61,13 +76,29 @@ def ecq_certificate(result, grh_height: float, seconds: float) -> Certificate:
         "`certify verify`.", kind="ecq-race")
 
 
-def certify_ecq(ainvs, digits: int, grh_height: float = 0.0):
-    """(result, certificate) of a curve's trace race over Q."""
+def certify_ecq(ainvs, digits: int, grh_height: float = 0.0, observe_bound: int = 0):
+    """(result, certificate) of a curve's trace race over Q (with the observed race up to
+    ``observe_bound`` when it is not 0)."""
     from ..ecrace import certify_ec_race
 
     t0 = time.time()
     r = certify_ec_race(ainvs, digits, grh_height=grh_height)
-    return r, ecq_certificate(r, grh_height, time.time() - t0)
+    obs = None
+    if observe_bound:
+        from ..ecobserve import observe
+
+        obs = observe(r.curve, observe_bound)
+    return r, ecq_certificate(r, grh_height, time.time() - t0, obs)
+
+
+def observe_parameter(params) -> int:
+    """The stored observation bound (0: none), bounded before any work (BadInput)."""
+    if "observe" not in params:
+        return 0
+    b = params["observe"]
+    if type(b) is not int or not 10 <= b <= LIMITS["observe"]:
+        raise BadInput(f"parameter observe = {str(b)[:20]} outside 10..{LIMITS['observe']}")
+    return b
 
 
 def _limits(cert: Certificate) -> None:
@@ -81,6 +112,7 @@ def _limits(cert: Certificate) -> None:
     gh = p["grh_height"]
     if not isinstance(gh, (int, float)) or not 0 <= gh <= 200:
         raise BadInput(f"parameter grh_height = {str(gh)[:20]} outside [0, 200]")
+    observe_parameter(p)
     E = curve_from_ainvs(list(cert.question["ainvs"]))
     if E.conductor > LIMITS["conductor"]:
         raise BadInput(f"conductor {E.conductor} above the recount limit {LIMITS['conductor']}")
@@ -91,7 +123,9 @@ def _rebuild(cert: Certificate) -> Certificate:
 
     _limits(cert)
     E = curve_from_ainvs(list(cert.question["ainvs"]))
-    return certify_ecq(E, cert.parameters["digits"], float(cert.parameters["grh_height"]))[1]
+    # the observed race, if stored, is recounted from the a_p up to its bound (not trusted)
+    return certify_ecq(E, cert.parameters["digits"], float(cert.parameters["grh_height"]),
+                       observe_parameter(cert.parameters))[1]
 
 
 def _rebuild_checked(cert: Certificate, report) -> Certificate:

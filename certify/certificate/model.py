@@ -15,6 +15,7 @@ must be built from a dictionary and will be judged by ``verify`` on its own.
 
 from __future__ import annotations
 
+import functools
 import json
 import os
 import re
@@ -48,18 +49,24 @@ SECTIONS = ("question", "answer", "hypotheses", "error_budget", "parameters", "s
 
 def freeze(obj: Any) -> Any:
     """A read-only deep copy: dicts become mapping proxies, lists become tuples."""
-    if isinstance(obj, Mapping):
+    t = type(obj)
+    if t is str or t is int or t is float or t is bool or obj is None:
+        return obj  # the common leaves first: a certificate holds ~10^5 of them
+    if t is dict or t is MappingProxyType or isinstance(obj, Mapping):
         return MappingProxyType({str(k): freeze(v) for k, v in obj.items()})
-    if isinstance(obj, (list, tuple)):
+    if t is list or t is tuple or isinstance(obj, (list, tuple)):
         return tuple(freeze(v) for v in obj)
     return obj
 
 
 def thaw(obj: Any) -> Any:
     """The plain JSON-ready copy of a frozen value."""
-    if isinstance(obj, Mapping):
+    t = type(obj)
+    if t is str or t is int or t is float or t is bool or obj is None:
+        return obj
+    if t is MappingProxyType or t is dict or isinstance(obj, Mapping):
         return {k: thaw(v) for k, v in obj.items()}
-    if isinstance(obj, tuple):
+    if t is tuple or isinstance(obj, tuple):
         return [thaw(v) for v in obj]
     return obj
 
@@ -90,6 +97,8 @@ def ball_of(record: Mapping, where: str = "ball") -> arb:
     """The ball of a ``{"mid", "rad"}`` record (containing the ball that was stored)."""
     try:
         mid, rad = record["mid"], record["rad"]
+        if type(mid) is str and type(rad) is str:
+            return _ball_of_strings(mid, rad, where)
         safe_fraction(mid, where)
         safe_fraction(rad, where)
         if Fraction(rad) < 0:
@@ -97,6 +106,17 @@ def ball_of(record: Mapping, where: str = "ball") -> arb:
         return ball_from_strings(mid, rad)
     except (KeyError, TypeError, ValueError, ZeroDivisionError) as exc:
         raise BadInput(f"{where}: not a ball record {{mid, rad}} of decimal strings ({exc})") from None
+
+
+@functools.lru_cache(maxsize=1 << 16)
+def _ball_of_strings(mid: str, rad: str, where: str) -> arb:
+    # memoised (a ball is immutable, a function of its two strings): a table's certificates
+    # and their evidence sentences parse the same stored balls many times
+    safe_fraction(mid, where)
+    safe_fraction(rad, where)
+    if Fraction(rad) < 0:
+        raise ValueError("negative radius")
+    return ball_from_strings(mid, rad)
 
 
 @dataclass(frozen=True)

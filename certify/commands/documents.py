@@ -133,6 +133,11 @@ def run_render(args) -> int:
     from ..render.files import parse_formats, write_files
 
     check_outputs(args)
+    from ..certificate.model import read_document
+
+    data = read_document(args.file)
+    if data["kind"] == "twist-family":
+        return _render_bundle(args, data)
     cert = read_certificate(args.file)
     # a document shows only what verify re-derives: render nothing that does not verify
     rep = verify_any(cert)
@@ -146,6 +151,28 @@ def run_render(args) -> int:
     base = args.name or os.path.splitext(os.path.basename(args.file))[0]
     formats = tuple(f for f in parse_formats(args.formats) if f != "json")
     for f, p in write_files(cert, out, formats, base).items():
+        print(f"wrote {f:<9} {p}")
+    return 0
+
+
+def _render_bundle(args, data) -> int:
+    """``certify render`` of a ``twist-family`` bundle: every certificate in it and the bundle's
+    own claims verified first, then one document with a section per twist degree."""
+    from ..certificate.dispatch import _verify_twist_bundle
+    from ..render.files import parse_formats, write_bundle_files
+
+    outcomes = _verify_twist_bundle(args.file, data)
+    failures = [c for o in outcomes for c in o.report.failures]
+    if failures:
+        for c in failures[:5]:
+            print(f"  FAIL {c.name}: {c.detail}", file=sys.stderr)
+        print(f"certify: error: {args.file} does not verify; nothing rendered", file=sys.stderr)
+        return EXIT_MISMATCH
+    out = args.out or os.path.dirname(os.path.abspath(args.file))
+    check_out_dir(out)
+    base = args.name or os.path.splitext(os.path.basename(args.file))[0]
+    formats = tuple(f for f in parse_formats(args.formats) if f != "json")
+    for f, p in write_bundle_files(data, out, formats, base).items():
         print(f"wrote {f:<9} {p}")
     return 0
 

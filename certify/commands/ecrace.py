@@ -98,6 +98,13 @@ def run_ecrace(args) -> int:
 
         if not (10 <= bound <= MAX_OBSERVE):
             raise BadInput(f"--observe must be 0 or between 10 and {MAX_OBSERVE} (got {bound})")
+    if bound and (args.json or args.certificate):
+        from ..certificate.ecq import LIMITS as CERT_LIMITS
+
+        if bound > CERT_LIMITS["observe"]:
+            raise BadInput(f"--observe {bound} with a certificate: verify recounts the observed race, "
+                           f"so a certificate keeps it only up to {CERT_LIMITS['observe']} (or use "
+                           "--observe 0)")
     grh = parse_height(args.grh_height, "--grh-height")
     E = curve_from_ainvs(args.ainvs)
     check_ec_size(E, digits, bound, limits)
@@ -106,26 +113,27 @@ def run_ecrace(args) -> int:
     with stages("ecrace", progress_enabled(args)) as say:
         say(f"certifying the trace race of E (conductor {E.conductor}) to width 1e-{digits}")
         result = certify_ec_race(E, digits, command_line=cmd, grh_height=grh)
+        if bound:
+            say(f"observed race: a_p for p <= {bound}")
+            obs = observe(E, bound)
         cert = None
         if args.certificate or args.json:
             from ..certificate.ecq import ecq_certificate
 
-            cert = ecq_certificate(result, grh, __import__("time").time() - t_run)
+            # the observation goes in as a labelled, uncertified section that verify recounts
+            cert = ecq_certificate(result, grh, __import__("time").time() - t_run, obs)
         if args.certificate:
             from ..certificate.model import write_certificate
 
             say("writing the certificate")
             write_certificate(cert, args.certificate)
-        if bound:
-            say(f"observed race: a_p for p <= {bound}")
-            obs = observe(E, bound)
     if args.plot:
         if obs is None:
             raise BadInput("--plot needs --observe X > 0 (the observed race to plot)")
         plot_observation(obs, result, args.plot)
     if args.json:
         # --json writes the certificate (kind ecq-race): the one shape of every certify document,
-        # re-checked by `certify verify`; the observed race is on the screen and in --plot
+        # re-checked by `certify verify`, with the observed race as a labelled uncertified section
         if args.json == "-":
             sys.stdout.write(cert.to_json())
         else:

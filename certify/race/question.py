@@ -342,12 +342,15 @@ def mean_of(question: RaceQuestion) -> Fraction:
                 Fraction(0))
 
 
-def weight_sum_is_zero(question: RaceQuestion, chi: Character) -> bool:
-    """Whether W(chi) = sum_a w_a chi(a) is exactly 0 (in the cyclotomic field)."""
+def weight_sum_is_zero(question: RaceQuestion, chi: Character, weights=None) -> bool:
+    """Whether W(chi) = sum_a w_a chi(a) is exactly 0 (in the cyclotomic field).
+
+    ``weights``: the question's normalised weights, if the caller has them already."""
+    weights = question.normalised_weights if weights is None else weights
     if chi.order == 1:
-        return sum(w for _, w in question.normalised_weights) == 0
+        return sum(w for _, w in weights) == 0
     coeffs: dict = {}
-    for a, w in question.normalised_weights:
+    for a, w in weights:
         e = chi.exponent(a)
         coeffs[e] = coeffs.get(e, Fraction(0)) + w
     coeffs = {e: c for e, c in coeffs.items() if c != 0}
@@ -362,10 +365,10 @@ def weight_sum_is_zero(question: RaceQuestion, chi: Character) -> bool:
     return fmpz_poly(ints) % fmpz_poly.cyclotomic(chi.order) == 0
 
 
-def weight_modulus(question: RaceQuestion, chi: Character) -> arb:
-    """|W(chi)| as a ball, for the normalised weights."""
+def weight_modulus(question: RaceQuestion, chi: Character, weights=None) -> arb:
+    """|W(chi)| as a ball, for the normalised weights (``weights``, if the caller has them)."""
     s = acb(0)
-    for a, w in question.normalised_weights:
+    for a, w in (question.normalised_weights if weights is None else weights):
         s += chi.value(a) * (arb(w.numerator) / w.denominator)
     return abs(s)
 
@@ -433,14 +436,15 @@ def _spectral_groups(question: RaceQuestion) -> list[SpectralGroup]:
     out = []
     seen = set()
     by_label = {c.label: c for c in characters(question.modulus)}
+    weights = question.normalised_weights
     for chi in characters(question.modulus):
         if chi.is_principal or chi.label in seen:
             continue
         seen.add(chi.label)
-        if weight_sum_is_zero(question, chi):
+        if weight_sum_is_zero(question, chi, weights):
             seen.add(chi.conjugate_label)
             continue
-        scale = 2 * weight_modulus(question, chi)
+        scale = 2 * weight_modulus(question, chi, weights)
         q_star, n_star = chi.primitive_key
         if chi.is_real:
             out.append(SpectralGroup((chi,), ((q_star, n_star),), chi.parity, True, scale))

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from fractions import Fraction
 
-from ..arith import ball_from_strings, decimal_down
+from ..arith import ball_from_strings, decimal_down, decimal_up
 from ..certificate.model import Certificate, ball_of
 from ..certificate.numbers import sci
 
@@ -92,7 +92,8 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
                 f"root number {rk['root_number']:+d}; analytic rank {rk['value']} "
                 f"({'certified' if rk['certified'] else 'not certified: at most ' + str(rk['upper_bound'])})",
                 f"{len(sp['zeros'])} zeros of L(E, s) isolated to height {sp['isolation_height']}; "
-                f"{len(sp['power_sums_all_zeros'])} exact power sums; mean 1 - 2r = {sp['mean']}"]
+                f"{len(sp['power_sums_all_zeros'])} exact power sums; mean 1 - 2r = {sp['mean']}",
+                *(f"independent check: {e['text']}" for e in sp.get("evidence", []))]
     if cert.kind == "order-race":
         lines = []
         for g in sp["groups"]:
@@ -117,6 +118,8 @@ def _spectrum_lines(cert: Certificate) -> list[str]:
 
 #: members listed one by one in a document (all of them are in the JSON file)
 MAX_MEMBER_LINES = 40
+#: decimal places of a member's density shown in the table (the JSON file keeps every place)
+SHOWN_PLACES = 12
 
 
 def _twist_lines(cert: Certificate) -> list[str]:
@@ -146,16 +149,46 @@ def _twist_lines(cert: Certificate) -> list[str]:
         lines.append(f"histogram of the midpoints over {nb} bins of width 1/{nb} on [0, 1]: "
                      + ", ".join(f"[{Fraction(j, nb)}, {Fraction(j + 1, nb)}): {c}"
                                  for j, c in enumerate(h["counts"]) if c))
-    for m in sp["members"][:MAX_MEMBER_LINES]:
-        dn = m["density"]
-        dens = (m["status"] if not dn else f"density {dn['lower']} exactly" if dn["lower"] == dn["upper"]
-                else f"density in [{dn['lower']}, {dn['upper']}]")
-        lines.append(f"f = {m['f']}: conductor degree {m['conductor_degree']}, L(E_f, u) of degree "
-                     f"{m['l_degree']}, sign {m['sign']:+d}, analytic rank {m['rank']}; {dens}")
     if n_mem > MAX_MEMBER_LINES:
-        lines.append(f"... and {n_mem - MAX_MEMBER_LINES} more members (every one is in the JSON file "
-                     "and re-checked by verify)")
+        lines.append(f"the table below lists the first {MAX_MEMBER_LINES} members; the other "
+                     f"{n_mem - MAX_MEMBER_LINES} are in the JSON file and re-checked by verify")
     return lines
+
+
+def member_table(cert: Certificate) -> list[dict]:
+    """One row per listed member of a twist family (at most :data:`MAX_MEMBER_LINES`), each
+    cell a field verify re-derives (the density as stored, or the reason it is not certified)."""
+    if cert.kind != "twist-family-race":
+        return []
+    rows = []
+    for m in cert.spectrum["members"][:MAX_MEMBER_LINES]:
+        dn = m["density"]
+        if not dn:
+            lo = hi = ""
+            note = str(m["status"])
+        elif dn["lower"] == dn["upper"]:
+            lo, hi, note = dn["lower"], dn["upper"], "exact"
+        else:
+            # long stored ends shown with SHOWN_PLACES places, rounded outward (still an enclosure)
+            lo, hi, note = dn["lower"], dn["upper"], ""
+            if len(lo) > SHOWN_PLACES + 2 or len(hi) > SHOWN_PLACES + 2:
+                lo = decimal_down(Fraction(lo), SHOWN_PLACES)
+                hi = decimal_up(Fraction(hi), SHOWN_PLACES)
+        rows.append({"f": m["f"], "conductor_degree": m["conductor_degree"], "l_degree": m["l_degree"],
+                     "sign": f"{m['sign']:+d}", "rank": m["rank"], "lower": lo, "upper": hi,
+                     "note": note})
+    return rows
+
+
+def observation_context(cert: Certificate):
+    """The observed race of an ``ecq-race`` certificate (verify recounts it), or None: a label
+    saying it is observed data and no part of the proven enclosure, and its sentences."""
+    if cert.kind != "ecq-race" or "observation" not in cert.spectrum:
+        return None
+    from ..ecobserve import OBSERVATION_LABEL, observation_lines
+
+    rec = cert.spectrum["observation"]
+    return {"label": OBSERVATION_LABEL, "bound": rec["bound"], "lines": observation_lines(rec)}
 
 
 def recount_context(cert: Certificate, file_name: str) -> dict:
@@ -204,6 +237,8 @@ def recount_context(cert: Certificate, file_name: str) -> dict:
         "budget_total": sci(total, 3, up=True),
         "groups": [],
         "spectrum_lines": _spectrum_lines(cert),
+        "members": member_table(cert),
+        "observation": observation_context(cert),
         "parameters": params,
         "provenance": {"command_line": cert.provenance["command_line"],
                        "input_digest": cert.provenance["input_digest"]},
@@ -260,6 +295,8 @@ def certificate_context(cert: Certificate, file_name: str = "certificate.json") 
     return {
         "label": question.label,
         "spectrum_lines": [],
+        "members": [],
+        "observation": None,
         "question": {"kind": question.kind, "modulus": question.modulus,
                      "setting_line": f"Race: {question.kind} modulo {question.modulus}; "
                                      f"weights {weights}",

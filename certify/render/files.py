@@ -73,3 +73,23 @@ def write_files(cert: Certificate, out_dir: str, formats=TEXT_FORMATS, base: str
             raise BadInput(f"unknown format {f!r}")
         paths[f] = p
     return paths
+
+
+def write_bundle_files(data: dict, out_dir: str, formats, base: str) -> dict[str, str]:
+    """Write the Markdown / LaTeX / fragment of a ``twist-family`` bundle (one section per degree)."""
+    from . import render_bundle_fragment, render_bundle_latex, render_bundle_markdown
+
+    os.makedirs(out_dir, exist_ok=True)
+    json_name = f"{base}.json"
+    writers = {"md": (f"{base}.md", render_bundle_markdown), "tex": (f"{base}.tex", render_bundle_latex),
+               "fragment": (f"{base}-fragment.tex", render_bundle_fragment)}
+    paths = {}
+    for f in formats:
+        if f not in writers:
+            raise BadInput(f"format {f!r} is not available for a bundle of twist degrees "
+                           "(choose md, tex, fragment)")
+        name, fn = writers[f]
+        p = os.path.join(out_dir, name)
+        write_atomic(p, fn(data, json_name))
+        paths[f] = p
+    return paths

@@ -69,6 +69,8 @@ def _math_expr(e: str) -> str:
     e = re.sub(r"\bsqrt\(([^()]*(?:\([^()]*\)[^()]*)*)\)", r"\\sqrt{\1}", e)
     e = re.sub(r"_\{([^{}]*)\}", lambda m: "_{" + m.group(1) + "}", e)
     e = re.sub(r"_\(([^()]*)\)", r"_{\1}", e)            # sum_(p <= x)
+    # a derivative: Lambda^(2)(1), L^(k)(E, 1) (certify writes no power of Lambda or L this way)
+    e = re.sub(r"\b(Lambda|L)\^\((\w+)\)", r"\1^{(\2)}", e)
     e = re.sub(r"\^\(([^()]*)\)", r"^{\1}", e)           # q^(X/2)
     e = re.sub(r"\^(\w+'?)", r"^{\1}", e)
     e = re.sub(r"_(\w+)", lambda m: "_{" + " ".join(_sym(p) for p in [m.group(1)]) + "}", e)

@@ -104,3 +104,72 @@ def test_leader_first_and_ranking():
                                                      (Fraction("0.4999"), False)]
     top = ranking(rows, 2)
     assert [r.lower for r in top] == [Fraction("0.79"), Fraction("0.4999")]
+
+
+def test_a_shipped_plan_gives_the_race_it_would_have_planned():
+    """A table plans each race once, in the coordinator, and ships the plan (as JSON-able
+    data) to the worker.  On random races the shipped plan must give exactly the result
+    of a race that plans itself: the same enclosure, ball, variance and parameters."""
+    import json
+    import random
+
+    from certify.race.question import two_way
+    from certify.races import RacePlan, certify_race, plan_race, shipped_plan
+
+    def strip(d):
+        d = dict(d)
+        d.pop("timings_seconds", None)
+        d["provenance"] = {k: v for k, v in d["provenance"].items() if k != "date"}
+        return d
+
+    rng = random.Random(3)
+    for _ in range(4):
+        q = rng.choice([7, 9, 11, 13, 15])
+        units = [a for a in range(1, q) if math.gcd(a, q) == 1]
+        a, b = rng.sample(units, 2)
+        question = two_way(q, a, b)
+        wire = json.loads(json.dumps(plan_race(question, 6, SpectrumStore()).to_wire()))
+        store = SpectrumStore()
+        shipped = certify_race(question, 6, store=store,
+                               plan=shipped_plan(question, 6, store, wire))
+        itself = certify_race(question, 6, store=SpectrumStore())
+        assert strip(shipped.to_dict()) == strip(itself.to_dict())
+        assert shipped.density.lower == itself.density.lower
+        # a plan made for another race is refused
+        other = json.loads(json.dumps(plan_race(two_way(q, b, a), 6, SpectrumStore()).to_wire()))
+        if other["mean"] != wire["mean"]:
+            with pytest.raises(BadInput):
+                shipped_plan(question, 6, SpectrumStore(), other)
+    assert isinstance(RacePlan.from_wire(wire, shipped.variance), RacePlan)
+
+
+def test_ranking_equals_sort_then_first_of_each_law_on_random_rows():
+    """ranking() picks one row per law before sorting; on random rows (many sharing a
+    result file and enclosure, ties in the lower bound, uncertified rows) it must list
+    exactly what sorting every row by (-lower, q, label) and keeping the first row of each
+    (file, lower, upper) lists."""
+    import random
+
+    rng = random.Random(11)
+    for _ in range(30):
+        laws = []
+        for j in range(rng.randrange(1, 12)):
+            lo = Fraction(rng.randrange(1, 50), 50)
+            laws.append((f"results/r{j}.json", lo, lo + Fraction(1, 10**rng.randrange(3, 9))))
+        rows = []
+        for _ in range(rng.randrange(1, 60)):
+            src, lo, hi = rng.choice(laws)
+            q = rng.randrange(3, 40)
+            lab = f"delta({q};{rng.randrange(1, q)},{rng.randrange(1, q)})"
+            if rng.random() < 0.1:
+                rows.append(Row(q, "two-way", 1, 2, lab, None, None, False, "", src, ""))
+            else:
+                rows.append(Row(q, "two-way", 1, 2, lab, lo, hi, True, "", src, ""))
+        ok = sorted((r for r in rows if r.certified), key=lambda r: (-r.lower, r.q, r.label))
+        seen, expected = set(), []
+        for r in ok:
+            if (r.source, r.lower, r.upper) not in seen:
+                seen.add((r.source, r.lower, r.upper))
+                expected.append(r)
+        top = rng.randrange(1, 15)
+        assert ranking(rows, top) == expected[:top]

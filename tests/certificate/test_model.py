@@ -120,3 +120,24 @@ def test_zero_attribution_without_the_store(cert_4_3_1):
     assert _owner_by_sign_change(z, [(4, 3)]) == 0
     with pytest.raises(Exception, match="cannot be attributed"):
         _owner_by_sign_change(z, [(5, 2)])
+
+
+def test_batch_document_is_the_certificate_json(cert_4_3_1, more_certs):
+    """certificate_document (the plain document a table writes, without the frozen copy)
+    serialises to exactly the JSON of the Certificate's to_dict, for every race kind, and
+    the compact text a table writes reads back as a certificate that verifies."""
+    from certify.certificate.build import certificate_document, certificate_from_result
+    from certify.certificate.verify import verify_certificate
+    from certify.io import compact_json
+    from certify.race.question import residue_race, two_way
+    from certify.races import certify_race
+    from certify.spectrum.spectrum import SpectrumStore
+
+    for q in (two_way(5, 2, 1), residue_race(8), two_way(7, 3, 1)):
+        store = SpectrumStore()
+        r = certify_race(q, 6, store=store)
+        a = json.dumps(certificate_from_result(r, store).to_dict(), sort_keys=True)
+        text = compact_json(certificate_document(r, store))
+        assert json.dumps(json.loads(text), sort_keys=True) == a
+        back = Certificate.from_dict(json.loads(text))
+        assert verify_certificate(back).ok

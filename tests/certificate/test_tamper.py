@@ -474,12 +474,42 @@ def _ecq_ev(d, hyp="GRH", i=0):
 
 
 def _ecq_count_sentence(d):
-    _hyp(d, "GRH")["evidence"].insert(1, {
-        "kind": "recount", "data": {},
-        "text": "GRH verified to height 200 by a zero count (argument principle with Taylor "
-                "models, 40 models): the 9 zeros with 0.1 < gamma < 200 are exactly the "
-                "certified sign changes (all simple, on the line), and |s - 1| < 0.1 holds "
-                "exactly 0 zero(s)"})
+    """A zero count to height 200 inserted as a well-formed item (its sentence generated from
+    its fields): only the re-derivation (no count was asked for, none is re-proved) rejects it."""
+    _hyp(d, "GRH")["evidence"].insert(1, _ecq_regen({
+        "kind": "zero-count", "text": "",
+        "data": {"height": "200", "models": 40, "zeros": 9, "disc_radius": "0.1", "inside": 0,
+                 "assumed_order": None}}))
+
+
+def _ecq_regen(item):
+    """The item with its sentence generated from its (edited) fields: a consistent forgery."""
+    from certify.certificate.ecq_items import sentence
+
+    item["text"] = sentence(item["kind"], item["data"])
+    return item
+
+
+def _ecq_ind(d, kind):
+    return next(e for e in d["spectrum"]["evidence"] if e["kind"] == kind)
+
+
+def _ecq_edit(where, kind, edit):
+    """Edit the data of an item (a GRH item by index, or an independent item by kind) and
+    regenerate its sentence."""
+    def f(d):
+        it = _ecq_ev(d, i=where) if isinstance(where, int) else _ecq_ind(d, kind)
+        edit(it["data"])
+        _ecq_regen(it)
+    return f
+
+
+def _ecq_ap_changed(x):
+    x["a_p"][3] += 1
+
+
+def _ecq_rank_moved(x):
+    x["value"]["mid"] = str(float(x["value"]["mid"]) * 1.001)
 
 
 def _ecq_rank_theorem(d):
@@ -573,6 +603,50 @@ ECQ = {
     "crafted: central value radius 1e-99999": lambda d: d["spectrum"]["analytic_rank"][
         "central_coefficients"][0].update(rad="1e-99999"),
 }
+# structured evidence items: consistent forgeries (fields edited, sentence regenerated), fields
+# unknown or missing, sentences not generated from the fields, independent items edited
+ECQ_ITEMS = {
+    "item: zero count raised, sentence regenerated": _ecq_edit(0, None, lambda x: x.update(zeros=10)),
+    "item: isolation height raised, sentence regenerated": _ecq_edit(
+        0, None, lambda x: x.update(height="40")),
+    "item: residual R_1 changed, sentence regenerated": _ecq_edit(
+        1, None, lambda x: x.update(first="[0.0600000 +/- 2.55e-8]")),
+    "item: residual moments changed, sentence regenerated": _ecq_edit(
+        1, None, lambda x: x.update(moments=20)),
+    "item: root number flipped, sentence regenerated": _ecq_edit(2, None, lambda x: x.update(value=-1)),
+    "item: unknown field added": lambda d: _ecq_ev(d)["data"].update(checked_by="hand"),
+    "item: field removed": lambda d: _ecq_ev(d)["data"].pop("height"),
+    "item: field of the wrong type": lambda d: _ecq_ev(d)["data"].update(zeros="9"),
+    "item: key added beside kind, text, data": lambda d: _ecq_ev(d).update(verified=True),
+    "item: sentence of another item": lambda d: _ecq_ev(d).update(text=_ecq_ev(d, i=1)["text"]),
+    "item: LI sentence reworded": lambda d: _ecq_ev(d, "LI").update(text="simplicity proven"),
+    "item: no-count caveat given a field": lambda d: _hyp(d, "GRH")["evidence"][3]["data"].update(
+        height="0"),
+    "independent: a_p changed, sentence regenerated": _ecq_edit(None, "a_p-table", _ecq_ap_changed),
+    "independent: a prime dropped from the table": _ecq_edit(
+        None, "a_p-table", lambda x: (x["primes"].pop(), x["a_p"].pop())),
+    "independent: table bound raised": _ecq_edit(None, "a_p-table", lambda x: x.update(below=1000)),
+    "independent: trace bound ratio lowered": _ecq_edit(
+        None, "trace-bound", lambda x: x.update(largest_ratio="1/2")),
+    "independent: reduction type changed": _ecq_edit(
+        None, "reduction-types", lambda x: x.update(types=["nonsplit"])),
+    "independent: root number flipped": _ecq_edit(
+        None, "root-number-check", lambda x: x.update(value=-1)),
+    "independent: rank proof value moved": _ecq_edit(None, "rank-proof", _ecq_rank_moved),
+    "independent: rank proof widened": _ecq_edit(
+        None, "rank-proof", lambda x: x["value"].update(rad="1")),
+    "independent: rank proof terms changed": _ecq_edit(None, "rank-proof", lambda x: x.update(terms=10)),
+    "independent: rank proof claims a published theorem": _ecq_edit(
+        None, "rank-proof", lambda x: x.update(published="a proof, Annals 2030")),
+    "independent: rank proof rank raised": _ecq_edit(None, "rank-proof", lambda x: x.update(rank=2)),
+    "independent: an item removed": lambda d: d["spectrum"]["evidence"].pop(1),
+    "independent: items reordered": lambda d: d["spectrum"]["evidence"].reverse(),
+    "independent: the section removed": lambda d: d["spectrum"].pop("evidence"),
+    "independent: an item's kind unknown": lambda d: d["spectrum"]["evidence"][0].update(kind="proof"),
+    "independent: an item's sentence reworded": lambda d: _ecq_ind(d, "rank-proof").update(
+        text=_ecq_ind(d, "rank-proof")["text"].replace("proven", "proven unconditionally")),
+}
+ECQ.update(ECQ_ITEMS)
 ECQ.update({
     "rank upper bound changed": lambda d: d["spectrum"]["analytic_rank"].update(upper_bound=3),
     "power sum removed": lambda d: d["spectrum"]["power_sums_all_zeros"].pop(),
@@ -597,6 +671,10 @@ ECQ_DEFAULT = {
     "budget entry duplicated", "parameter conductor changed", "crafted: digits 99",
     "crafted: GRH height 1e9", "crafted: conductor above the limit", "crafted: zero radius 1e30",
     "variance widened", "crafted: rank report a list",
+    "item: zero count raised, sentence regenerated", "item: root number flipped, sentence regenerated",
+    "item: unknown field added", "item: field removed", "independent: a_p changed, sentence regenerated",
+    "independent: rank proof value moved", "independent: rank proof claims a published theorem",
+    "independent: the section removed",
 }
 
 CASES = ([("dirichlet-race", k) for k in DIRICHLET] + [("ffield-race", k) for k in FFIELD]

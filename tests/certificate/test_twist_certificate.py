@@ -276,12 +276,49 @@ def test_several_degrees_bundle_verifies_and_a_tampered_entry_fails(tmp_path, ca
     assert main(["verify", str(out)]) != 0
 
 
+def test_render_of_a_bundle_refuses_a_tampered_member(tmp_path, capsys):
+    out = tmp_path / "b.json"
+    assert main(["twists", *CURVE, "--degrees", "1,2", "--width", "1e-3", "--json", str(out)]) == 0
+    b = json.loads(out.read_text())
+    assert main(["render", str(out), "--out", str(tmp_path / "ok"), "--formats", "md"]) == 0
+    assert (tmp_path / "ok" / "b.md").read_text().count("## Twist degree") == 2
+    # one member's enclosure narrowed inside the degree-2 certificate: nothing rendered
+    m = next(m for m in b["certificates"][1]["spectrum"]["members"]
+             if m["density"] and m["density"]["lower"] != m["density"]["upper"])
+    m["density"]["upper"] = m["density"]["lower"]
+    out.write_text(json.dumps(b))
+    capsys.readouterr()
+    assert main(["render", str(out), "--out", str(tmp_path / "bad"), "--formats", "md,tex"]) == 4
+    err = capsys.readouterr().err
+    assert "does not verify; nothing rendered" in err and "Traceback" not in err
+    assert not (tmp_path / "bad").exists() or not list((tmp_path / "bad").iterdir())
+    assert main(["verify", str(out)]) == 4
+
+
+@pytest.mark.parametrize("edit", ["base curve renamed", "field added", "question field added"])
+def test_bundle_claims_beyond_its_certificates_rejected(tmp_path, edit):
+    out = tmp_path / "b.json"
+    assert main(["twists", *CURVE, "--degrees", "1,2", "--width", "1e-3", "--json", str(out)]) == 0
+    b = json.loads(out.read_text())
+    if edit == "base curve renamed":
+        b["question"]["base_curve"] = b["question"]["base_curve"].replace("t^2 + 1", "t^2 + 2")
+    elif edit == "field added":
+        b["verified_by"] = "a referee"
+    else:
+        b["question"]["proved"] = "yes"
+    out.write_text(json.dumps(b))
+    assert main(["verify", str(out)]) != 0
+    assert main(["render", str(out), "--out", str(tmp_path / "r")]) != 0
+
+
 def test_render_markdown_and_latex(clean, tmp_path):
     p = tmp_path / "fam.json"
     p.write_text(json.dumps(clean))
     assert main(["render", str(p), "--out", str(tmp_path), "--formats", "md,tex,fragment"]) == 0
     md = (tmp_path / "fam.md").read_text()
-    assert "all 20 twists" in md and "f = t^2 + 4" in md and "certify verify fam.json" in md
+    assert "all 20 twists" in md and "certify verify fam.json" in md
+    # the members as a table: a header and one row per member, beginning with f
+    assert "| Member f | Conductor degree |" in md and "\n| t^2 + 4 | " in md
     tex = (tmp_path / "fam.tex").read_text()
     assert r"\begin{document}" in tex and "elliptic" in tex
 

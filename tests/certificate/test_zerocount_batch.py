@@ -104,3 +104,35 @@ def test_large_modulus_certificate_verifies_and_a_missing_zero_is_caught():
     assert [c.name for c in rep.failures] == [
         f"GRH evidence for L(s, chi_{{{e['l_function'].replace('.', ',')}}}): argument-principle "
         "count, no zero missing below the isolation height"]
+
+
+def test_table_memo_counts_characters_at_different_heights():
+    """The per-process memo of a table's certificates (build._memo_counts) counts every
+    primitive character of the conductor at each height asked for.  One certificate asks
+    for several characters at different heights; later rows ask for the other pairs.
+    Each count must equal the character's sign changes below that height (a memo or a
+    batch keyed by character alone would give one character one count for all heights)."""
+    import random
+
+    from certify.certificate import build
+
+    rng = random.Random(20261203)
+    q = 7
+    labels = [2, 3, 4, 5, 6]
+    ends = {n: sorted(exact_ends(z) for z in find_zeros(q, n, 32.0, 1e-8).zeros) for n in labels}
+    parity = {n: primitive_character(q, n).parity for n in labels}
+    for _ in range(3):
+        n1, n2 = rng.sample(labels, 2)
+        k1, k2 = rng.sample(range(2, 8), 2)
+        T1 = (ends[n1][k1 - 1][1] + ends[n1][k1][0]) / 2
+        T2 = (ends[n2][k2 - 1][1] + ends[n2][k2][0]) / 2
+        build._COUNTS.clear()
+        got = build._memo_counts([(q, n1, parity[n1], T1), (q, n2, parity[n2], T2)])
+        assert got[(q, n1)] == sum(1 for lo, hi in ends[n1] if hi < T1)
+        assert got[(q, n2)] == sum(1 for lo, hi in ends[n2] if hi < T2)
+        # the other pairs, now read from the memo filled by the first call
+        for n, T in ((n1, T2), (n2, T1)):
+            if any(lo <= T <= hi for lo, hi in ends[n]):
+                continue  # a height inside a zero's enclosure: no count to compare with
+            assert build._memo_counts([(q, n, parity[n], T)])[(q, n)] == \
+                sum(1 for lo, hi in ends[n] if hi < T)

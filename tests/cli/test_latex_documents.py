@@ -128,6 +128,8 @@ KIND_COMMANDS = {
     "curve-race": ["curve", "5", "t^2 + 1", "t^3 + t + 2", "--digits", "6"],
     "order-race": ["order", "5", "1", "2", "3", "--digits", "2"],
     "ecq-race": ["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--observe", "0"],
+    # with the observed race: its labelled, uncertified section in both documents
+    "ecq-race-observed": ["ecrace", "[0,-1,1,-10,-20]", "--digits", "3", "--observe", "2000"],
     "twist-family-race": ["twists", "5", "t", "t^2 + 1", "--degrees", "2", "--width", "1e-3"],
     "li-race": ["lirace", "--digits", "3"],
 }
@@ -144,7 +146,8 @@ def kind_document(request, tmp_path_factory):
     assert main(KIND_COMMANDS[kind] + ["--json", str(js)]) == 0
     import json
 
-    assert json.loads(js.read_text())["kind"] == ("dirichlet-race" if kind == "li-race" else kind)
+    want = {"li-race": "dirichlet-race", "ecq-race-observed": "ecq-race"}.get(kind, kind)
+    assert json.loads(js.read_text())["kind"] == want
     assert main(["render", str(js), "--out", str(out), "--formats", "tex,fragment"]) == 0
     return kind, out
 
@@ -165,6 +168,9 @@ def test_every_kind_has_no_ascii_formula(kind_document):
 
 def test_every_kind_compiles_standalone_and_as_a_fragment(kind_document):
     kind, out = kind_document
+    if kind == "ecq-race-observed":
+        for name in ("cert.tex", "cert-fragment.tex"):
+            assert "Observed data (not certified)" in (out / name).read_text()
     pdf = _compile(out, "cert.tex")
     assert _pages(pdf)
     (out / "paper.tex").write_text(
@@ -174,3 +180,56 @@ def test_every_kind_compiles_standalone_and_as_a_fragment(kind_document):
     log = (out / "paper.log").read_text(errors="replace")
     for m in re.finditer(r"Overfull \\hbox \(([\d.]+)pt too wide\)", log):
         assert float(m.group(1)) < 20, f"{kind}: {m.group(0)}"
+
+
+# -- a bundle of twist degrees (``certify twists --degrees 1,2 --json``): one document --------
+
+@pytest.fixture(scope="module")
+def bundle_documents(tmp_path_factory):
+    out = tmp_path_factory.mktemp("bundle")
+    js = out / "tw.json"
+    assert main(["twists", "5", "t", "t^2 + 1", "--degrees", "1,2", "--width", "1e-3",
+                 "--json", str(js)]) == 0
+    assert main(["render", str(js), "--out", str(out), "--formats", "md,tex,fragment"]) == 0
+    return out
+
+
+def test_bundle_renders_one_section_per_degree_in_every_format(bundle_documents):
+    out = bundle_documents
+    md = (out / "tw.md").read_text()
+    assert md.count("\n## Twist degree ") == 2 and md.index("## Twist degree 1") < md.index("## Twist degree 2")
+    # the members as a table: a header row and one row per member (5 of degree 1, 20 of degree 2)
+    assert md.count("| Member f |") == 2
+    assert len([ln for ln in md.splitlines() if ln.startswith("| t")]) == 5 + 20
+    assert "| t + 1 | 8 | 4 | +1 | 0 | 2/3 exactly |" in md
+    tex = (out / "tw.tex").read_text()
+    assert tex.count(r"\section*{Twist degree") == 2 and tex.count(r"\documentclass") == 1
+    assert tex.count(r"member $f$") == 2 and r"\item f = " not in tex
+    frag = (out / "tw-fragment.tex").read_text()
+    assert frag.count("Certified density:") == 2 and r"\documentclass" not in frag
+    for name in ("tw.tex", "tw-fragment.tex"):
+        prose = _prose((out / name).read_text())
+        for pat in ASCII_FORMULAS + MORE_ASCII:
+            found = re.findall(r".{0,30}" + pat + r".{0,30}", prose)
+            assert not found, f"bundle {name}: text-mode ASCII formula {pat!r}: {found[:3]}"
+
+
+def test_bundle_compiles_standalone_and_as_a_fragment(bundle_documents):
+    out = bundle_documents
+    pdf = _compile(out, "tw.tex")
+    assert len(_pages(pdf)) >= 2
+    log = (out / "tw.log").read_text(errors="replace")
+    # the member tables fit the page
+    for m in re.finditer(r"Overfull \\hbox \(([\d.]+)pt too wide\) in alignment", log):
+        raise AssertionError(m.group(0))
+    (out / "paper.tex").write_text(
+        "\\documentclass{amsart}\n\\usepackage{amsmath,booktabs,siunitx}\n\\begin{document}\n"
+        "Text before.\n\n\\input{tw-fragment}\n\nText after.\n\\end{document}\n")
+    _compile(out, "paper.tex")
+
+
+def test_derivative_orders_are_set_as_derivatives_not_powers():
+    """Lambda^(2)(1) is the second derivative (rank evidence of a curve over Q), not a square."""
+    assert r"\Lambda ^{(2)}(1)" in tex_text("Lambda^(2)(1)/2! excludes 0")
+    assert r"L^{(3)}(E, 1)" in tex_text("L^(3)(E, 1) = 6")
+    assert r"q^{X/2}" in tex_text("q^(X/2)")  # a power stays a power

@@ -39,3 +39,37 @@ def test_verdicts_are_three_valued():
     assert less_verdict(arb(1), arb(2)) is Verdict.PROVED
     with pytest.raises(TypeError):
         bool(Verdict.PROVED)
+
+
+def test_certified_digits_against_string_truncation_on_random_intervals():
+    """certified_digits (memoised, one decimal built) against an independent rule: the
+    longest prefix common to the two ends' decimal expansions truncated at every length,
+    checked on random intervals of many widths and signs."""
+    import random
+    from decimal import ROUND_FLOOR, Decimal, localcontext
+
+    def truncated(x: Fraction, d: int) -> str:
+        with localcontext() as ctx:
+            ctx.prec = 200
+            v = (Decimal(abs(x.numerator)) / Decimal(x.denominator)).quantize(
+                Decimal(1).scaleb(-d), rounding=ROUND_FLOOR)
+        # a truncation that is zero carries no sign ("0", "0.00"), as certify prints it
+        return ("-" if x < 0 and v != 0 else "") + (f"{v:.{d}f}")
+
+    def reference(lo: Fraction, hi: Fraction) -> str:
+        if (lo < 0) != (hi < 0) and lo != 0:
+            return ""
+        best = ""
+        for d in range(0, 61):
+            a, b = truncated(lo, d), truncated(hi, d)
+            if a != b:
+                break
+            best = a
+        return best
+
+    rng = random.Random(7)
+    for _ in range(400):
+        lo = Fraction(rng.randrange(-10**12, 10**12), 10**rng.randrange(0, 13))
+        width = Fraction(rng.randrange(0, 10**6), 10**rng.randrange(0, 20))
+        hi = lo + width
+        assert certified_digits(lo, hi) == reference(lo, hi), (lo, hi)
