@@ -54,7 +54,7 @@ def test_residue_certificate_above_conductor_3000_carries_the_count_and_tamper_i
               if e["kind"] == "zero-count"}
     big = counts["3027.3026"]
     assert big["data"]["established"] and big["data"]["verified"] and big["data"]["count"] >= 1
-    assert f"verified to height" in big["text"]
+    assert "verified to height" in big["text"]
     assert all(e["data"]["established"] for e in counts.values())
     assert verify_certificate(Certificate.from_dict(copy.deepcopy(d))).ok
     name = ("GRH evidence for L(s, chi_{3027,3026}): argument-principle count, no zero missing "
