@@ -130,7 +130,7 @@ def run_certificate(args) -> int:
 def run_render(args) -> int:
     from ..certificate.dispatch import verify_any
     from ..certificate.model import read_certificate
-    from ..render.files import parse_formats, write_files
+    from ..render.files import write_files
 
     check_outputs(args)
     from ..certificate.model import read_document
@@ -142,15 +142,27 @@ def run_render(args) -> int:
     # a document shows only what verify re-derives: render nothing that does not verify
     rep = verify_any(cert)
     if not rep.ok:
-        for c in rep.failures[:5]:
-            print(f"  FAIL {c.name}: {c.detail}", file=sys.stderr)
-        print(f"certify: error: {args.file} does not verify; nothing rendered", file=sys.stderr)
-        return EXIT_MISMATCH
+        return _refuse_unverified(args.file, rep.failures)
+    return _write_documents(args, lambda out, formats, base: write_files(cert, out, formats, base))
+
+
+def _refuse_unverified(path: str, failures) -> int:
+    """Say why a document is not rendered (its first failed checks) and return the exit code."""
+    for c in failures[:5]:
+        print(f"  FAIL {c.name}: {c.detail}", file=sys.stderr)
+    print(f"certify: error: {path} does not verify; nothing rendered", file=sys.stderr)
+    return EXIT_MISMATCH
+
+
+def _write_documents(args, write) -> int:
+    """Write the documents ``write(out, formats, base)`` makes, where ``render`` was asked to."""
+    from ..render.files import parse_formats
+
     out = args.out or os.path.dirname(os.path.abspath(args.file))
     check_out_dir(out)
     base = args.name or os.path.splitext(os.path.basename(args.file))[0]
     formats = tuple(f for f in parse_formats(args.formats) if f != "json")
-    for f, p in write_files(cert, out, formats, base).items():
+    for f, p in write(out, formats, base).items():
         print(f"wrote {f:<9} {p}")
     return 0
 
@@ -159,22 +171,14 @@ def _render_bundle(args, data) -> int:
     """``certify render`` of a ``twist-family`` bundle: every certificate in it and the bundle's
     own claims verified first, then one document with a section per twist degree."""
     from ..certificate.dispatch import _verify_twist_bundle
-    from ..render.files import parse_formats, write_bundle_files
+    from ..render.files import write_bundle_files
 
     outcomes = _verify_twist_bundle(args.file, data)
     failures = [c for o in outcomes for c in o.report.failures]
     if failures:
-        for c in failures[:5]:
-            print(f"  FAIL {c.name}: {c.detail}", file=sys.stderr)
-        print(f"certify: error: {args.file} does not verify; nothing rendered", file=sys.stderr)
-        return EXIT_MISMATCH
-    out = args.out or os.path.dirname(os.path.abspath(args.file))
-    check_out_dir(out)
-    base = args.name or os.path.splitext(os.path.basename(args.file))[0]
-    formats = tuple(f for f in parse_formats(args.formats) if f != "json")
-    for f, p in write_bundle_files(data, out, formats, base).items():
-        print(f"wrote {f:<9} {p}")
-    return 0
+        return _refuse_unverified(args.file, failures)
+    return _write_documents(args, lambda out, formats, base: write_bundle_files(data, out, formats,
+                                                                                base))
 
 
 # -- verify ---------------------------------------------------------------------
