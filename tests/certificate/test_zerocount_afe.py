@@ -217,3 +217,29 @@ def test_an_undecided_count_is_not_established_never_a_guess(monkeypatch):
     item = _zero_count_evidence({"conductor": 3001, "label": 3000, "parity": 0}, [], "3")
     assert item["data"] == {"established": False, "height": "3"}
     assert "not established" in item["text"]
+
+
+@pytest.mark.parametrize("q", [3001, pytest.param(10007, marks=pytest.mark.slow)])
+def test_complex_characters_above_the_old_cap_count_their_sign_changes(q):
+    """Complex characters of prime conductors 3001 and 10007 (above the conductor where Arb's
+    boxes are used): at a height midway between two sign changes of Z, the smoothed count,
+    also through the certificate's entry point, equals the number of sign changes below it
+    (two random characters of order > 2 each; the Gauss sum enters here, not for real ones)."""
+    import random
+
+    rng = random.Random(q)
+    done = 0
+    while done < 2:
+        n = rng.randrange(2, q - 1)
+        chi = dirichlet_char(q, n)
+        if chi.order() <= 2:
+            continue
+        ends = sorted(exact_ends(z) for z in find_zeros(q, n, 4.0, 1e-6).zeros)
+        assert len(ends) >= 2
+        T = (ends[-2][1] + ends[-1][0]) / 2
+        found = sum(1 for lo, hi in ends if hi < T)
+        parity = int(chi.parity())
+        N = count_zeros_smoothed(q, n, parity, T)[0]
+        assert N == found
+        assert zero_counts([(q, n, parity, T)]) == {(q, n): N}
+        done += 1
